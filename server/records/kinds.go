@@ -1,0 +1,163 @@
+// Package records defines Cornerbook's record kinds: the body of each kind
+// as a Go type, its validation in words a coach understands, the unit
+// conversions and the fields the hub derives (jump heights from flight
+// time, session load). It is pure: no I/O, no clock of its own.
+package records
+
+// Kind names, fixed by the record format.
+const (
+	KindAthlete   = "athlete"
+	KindSettings  = "settings"
+	KindBout      = "bout"
+	KindCheckin   = "checkin"
+	KindJump      = "jump"
+	KindRound     = "round"
+	KindIntervals = "intervals"
+	KindSession   = "session"
+	KindIncident  = "incident"
+	KindClearance = "clearance"
+	KindDecision  = "decision"
+	KindNote      = "note"
+)
+
+// Kinds lists every kind in a stable order (export, CSV files, docs).
+var Kinds = []string{
+	KindAthlete, KindSettings, KindBout, KindCheckin, KindJump, KindRound,
+	KindIntervals, KindSession, KindIncident, KindClearance, KindDecision, KindNote,
+}
+
+// Athlete is the body of an athlete record; the record id is the athlete id.
+type Athlete struct {
+	Name      string `json:"name"`
+	Units     string `json:"units"` // "kg" or "lb": display only, storage is kg
+	BirthYear int    `json:"birth_year,omitempty"`
+	Sex       string `json:"sex,omitempty"` // "f", "m" or empty
+	Active    *bool  `json:"active,omitempty"`
+}
+
+// Settings overrides flag thresholds. With an athlete, for that athlete;
+// without one, camp-wide (time zone, check-in hour, gym name and the
+// camp's default thresholds).
+type Settings struct {
+	Thresholds  map[string]map[string]float64 `json:"thresholds,omitempty"` // rule id → parameter → value
+	TimeZone    string                        `json:"time_zone,omitempty"`  // IANA, camp-wide
+	CheckinHour *float64                      `json:"checkin_hour,omitempty"`
+	GymName     string                        `json:"gym_name,omitempty"`
+}
+
+// Knot is one point of a planned mass path.
+type Knot struct {
+	Day    string  `json:"day"`
+	MassKg float64 `json:"mass_kg"`
+}
+
+// Week is one planned camp week (week 1 starts on camp_start).
+type Week struct {
+	Week          int    `json:"week"`
+	Level         string `json:"level"` // rest, low, medium, medium_heavy, heavy, taper
+	SparCapRounds *int   `json:"spar_cap_rounds,omitempty"`
+}
+
+// Bout is one fighter's bout and camp plan.
+type Bout struct {
+	Name            string  `json:"name,omitempty"` // e.g. "vs. R. Example, city hall"
+	CampStart       string  `json:"camp_start"`
+	WeighIn         string  `json:"weigh_in"`                // RFC 3339 with offset
+	WeighInZone     string  `json:"weigh_in_zone,omitempty"` // IANA zone of the weigh-in venue
+	WeighInType     string  `json:"weigh_in_type"`           // day_before or same_day
+	BoutDay         string  `json:"bout_day"`
+	WeightClass     string  `json:"weight_class,omitempty"` // id from the class table, or "custom"
+	LimitKg         float64 `json:"limit_kg"`
+	StartMassKg     float64 `json:"start_mass_kg"`
+	ReferenceLoadAU float64 `json:"reference_load_au,omitempty"` // the athlete's habitual weekly load
+	Path            []Knot  `json:"path,omitempty"`
+	Weeks           []Week  `json:"weeks,omitempty"`
+}
+
+// Checkin is the morning check-in. Wellness items are 1–5, 5 = best.
+type Checkin struct {
+	MassKg   *float64 `json:"mass_kg,omitempty"`
+	SleepH   *float64 `json:"sleep_h,omitempty"`
+	Sleep    *int     `json:"sleep,omitempty"`
+	Fatigue  *int     `json:"fatigue,omitempty"`
+	Soreness *int     `json:"soreness,omitempty"`
+	Stress   *int     `json:"stress,omitempty"`
+	Mood     *int     `json:"mood,omitempty"`
+	RHR      *int     `json:"rhr_bpm,omitempty"`
+	USG      *float64 `json:"usg,omitempty"`
+	Note     string   `json:"note,omitempty"`
+}
+
+// Jump is one jump test: either heights or flight times per attempt.
+// BestCm and MeanCm are derived by the hub.
+type Jump struct {
+	Test      string    `json:"test"` // "cmj"
+	HeightsCm []float64 `json:"heights_cm,omitempty"`
+	FlightMs  []float64 `json:"flight_ms,omitempty"`
+	Method    string    `json:"method,omitempty"` // mat, force_plate, other
+	BestCm    float64   `json:"best_cm,omitempty"`
+	MeanCm    float64   `json:"mean_cm,omitempty"`
+	Session   string    `json:"session,omitempty"` // optional id grouping a jump grid
+}
+
+// Round is one finished round.
+type Round struct {
+	Activity  string `json:"activity"` // spar, pads, bag, drill, other
+	Seconds   int    `json:"seconds"`
+	Intensity int    `json:"intensity"` // 1 easy, 2 moderate, 3 hard
+	Partner   string `json:"partner,omitempty"`
+	Note      string `json:"note,omitempty"`
+}
+
+// Intervals is a conditioning interval session.
+type Intervals struct {
+	Protocol string   `json:"protocol,omitempty"` // template id, if one was used
+	Modality string   `json:"modality"`
+	WorkS    float64  `json:"work_s"`
+	RestS    float64  `json:"rest_s"`
+	Reps     int      `json:"reps"`
+	Sets     int      `json:"sets"`
+	SetRestS float64  `json:"set_rest_s,omitempty"`
+	DoneReps *int     `json:"done_reps,omitempty"`
+	HRPeak   *int     `json:"hr_peak,omitempty"`
+	HRMean   *int     `json:"hr_mean,omitempty"`
+	RPE      *float64 `json:"rpe,omitempty"`
+	Minutes  float64  `json:"minutes,omitempty"` // derived when absent
+}
+
+// Session is a training session with its session RPE; Load is derived
+// (rpe × minutes, AU; Foster et al. 2001).
+type Session struct {
+	Type    string  `json:"type"` // boxing, spar, conditioning, strength, other
+	Focus   string  `json:"focus,omitempty"`
+	Minutes float64 `json:"minutes"`
+	RPE     float64 `json:"rpe"`
+	LoadAU  float64 `json:"load_au,omitempty"`
+	Note    string  `json:"note,omitempty"`
+}
+
+// Incident is a head knock, knockdown, stoppage, knockout or injury.
+type Incident struct {
+	Type string `json:"type"`
+	Note string `json:"note,omitempty"`
+}
+
+// Clearance ends the stand-down of one incident.
+type Clearance struct {
+	Incident string `json:"incident"` // incident record id
+	By       string `json:"by"`       // who cleared, e.g. "Dr. A. Example"
+	Note     string `json:"note,omitempty"`
+}
+
+// Decision is a coach's acknowledgement of a flag.
+type Decision struct {
+	Rule string `json:"rule"`
+	Note string `json:"note"`
+	By   string `json:"by,omitempty"`
+}
+
+// Note is a free note from staff.
+type Note struct {
+	Text string `json:"text"`
+	By   string `json:"by,omitempty"`
+}

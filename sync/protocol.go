@@ -1,0 +1,112 @@
+package sync
+
+// Operations a mutation may carry.
+const (
+	OpUpsert  = "upsert"  // create or edit (Deleted false)
+	OpDelete  = "delete"  // tombstone (Deleted true)
+	OpRestore = "restore" // undo a delete: Deleted false, Gen one above the tombstone's
+)
+
+// Limits of one push, enforced by the server.
+const (
+	MaxMutationsPerPush = 500
+	MaxPushBytes        = 1 << 20 // 1 MiB request body
+	DefaultPullLimit    = 500
+	MaxPullLimit        = 2000
+	// MaxDriftMs is how far in the hub's future a stamp may be before the
+	// push is refused with CodeClockSkew (common practice in HLC
+	// implementations: 60 s).
+	MaxDriftMs = 60_000
+)
+
+// Rejection codes. They cross the wire: only ever append.
+const (
+	CodeValidation = "VALIDATION" // the record breaks a rule; Field says which
+	CodeClockSkew  = "CLOCK_SKEW" // a stamp is too far in the hub's future
+	CodeForbidden  = "FORBIDDEN"  // this device may not write this record
+	CodeBadRequest = "BAD_REQUEST"
+)
+
+// Mutation is one numbered change from one device. N is strictly
+// increasing per device; gaps are allowed.
+type Mutation struct {
+	N      uint64 `json:"n"`
+	Op     string `json:"op"`
+	Record Record `json:"record"`
+}
+
+// PushRequest is the body of POST /api/push.
+type PushRequest struct {
+	Device    string     `json:"device"`
+	Epoch     string     `json:"epoch,omitempty"`
+	Mutations []Mutation `json:"mutations"`
+}
+
+// Rejection says why one mutation was not applied. The batch's other
+// mutations are unaffected, and the device's counter still advances past
+// it so the queue is never blocked.
+type Rejection struct {
+	N      uint64 `json:"n"`
+	ID     string `json:"id,omitempty"`
+	Code   string `json:"code"`
+	Field  string `json:"field,omitempty"`
+	Reason string `json:"reason"`
+}
+
+// PushResponse answers a push after its transaction committed.
+type PushResponse struct {
+	AckedThrough uint64      `json:"ackedThrough"`
+	Rejected     []Rejection `json:"rejected"`
+	Applied      int         `json:"applied"`    // mutations whose version won
+	Superseded   int         `json:"superseded"` // valid, but an equal or later version was already stored
+	Duplicates   int         `json:"duplicates"` // n at or below the device's counter
+	ServerTime   int64       `json:"serverTime"` // Unix ms
+	ServerHLC    HLC         `json:"serverHLC"`
+	MaxSeq       uint64      `json:"maxSeq"`
+	Epoch        string      `json:"epoch"`
+}
+
+// PullResponse is one page of GET /api/pull?since=N.
+type PullResponse struct {
+	Epoch      string   `json:"epoch"`
+	Records    []Record `json:"records"`
+	Next       uint64   `json:"next"` // the cursor to send next time
+	More       bool     `json:"more"`
+	MaxSeq     uint64   `json:"maxSeq"`
+	ServerTime int64    `json:"serverTime"`
+	ServerHLC  HLC      `json:"serverHLC"`
+}
+
+// ErrorBody is the JSON of any non-2xx answer.
+type ErrorBody struct {
+	Code       string `json:"code"`
+	Field      string `json:"field,omitempty"`
+	Reason     string `json:"reason"`
+	ServerTime int64  `json:"serverTime,omitempty"`
+}
+
+// Check verifies that the operation agrees with the record it carries.
+func (m *Mutation) Check() error {
+	switch m.Op {
+	case OpUpsert:
+		if m.Record.Deleted {
+			return Invalid("op", "an upsert cannot carry a deleted record; use op \"delete\"")
+		}
+	case OpDelete:
+		if !m.Record.Deleted {
+			return Invalid("op", "a delete must carry \"deleted\": true")
+		}
+	case OpRestore:
+		if m.Record.Deleted || m.Record.Gen < 1 {
+			return Invalid("op", "a restore must carry \"deleted\": false and \"gen\" one above the deleted version")
+		}
+	case "":
+		return Invalid("op", "is required (upsert, delete or restore)")
+	default:
+		return Invalid("op", "%q is not an operation (upsert, delete or restore)", m.Op)
+	}
+	if m.N == 0 {
+		return Invalid("n", "must be a counter of 1 or more")
+	}
+	return nil
+}
