@@ -1,0 +1,270 @@
+// The sync loop: push the outbox, then pull pages since the cursor. One
+// sync at a time across tabs and the service worker (Web Locks). The
+// websocket only says "there is something new"; data always moves through
+// push and pull. This module is also imported by the service worker, so it
+// touches no window or document at load time.
+import {
+  ack, applyPage, deviceId, getMeta, notify, outboxBatch, outboxCount, rejectRows,
+  rejectedList, resetForEpoch, restamp, setMeta,
+} from './db.js';
+
+const PUSH_BATCH = 200;
+const PULL_LIMIT = 500;
+const TIMEOUT_MS = 10000;
+
+export class HubError extends Error {
+  constructor(status, body) {
+    super((body && body.reason) || `hub answered ${status}`);
+    this.status = status;
+    this.body = body || {};
+  }
+}
+
+async function api(method, url, body) {
+  const token = await getMeta('token');
+  const headers = { Accept: 'application/json' };
+  if (token) headers.Authorization = `Bearer ${token}`;
+  if (body !== undefined) headers['Content-Type'] = 'application/json';
+  const ctl = new AbortController();
+  const timer = setTimeout(() => ctl.abort(), TIMEOUT_MS);
+  let res;
+  try {
+    res = await fetch(url, { method, headers, body: body === undefined ? undefined : JSON.stringify(body), cache: 'no-store', signal: ctl.signal });
+  } finally {
+    clearTimeout(timer);
+  }
+  let data = null;
+  const type = res.headers.get('Content-Type') || '';
+  if (type.includes('json')) {
+    try { data = await res.json(); } catch (_) { data = null; }
+  }
+  if (!res.ok || !data) throw new HubError(res.status, data);
+  return data;
+}
+
+// withLock runs fn while holding the one sync lock of this origin.
+const localChain = { p: Promise.resolve() };
+function withLock(fn) {
+  if (typeof navigator !== 'undefined' && navigator.locks && navigator.locks.request) {
+    return navigator.locks.request('cornerbook-sync', fn);
+  }
+  const run = localChain.p.then(fn, fn);
+  localChain.p = run.catch(() => {});
+  return run;
+}
+
+async function pushAll() {
+  let skewRetries = 0;
+  let pushed = 0;
+  for (;;) {
+    const rows = await outboxBatch(PUSH_BATCH);
+    if (!rows.length) return pushed;
+    const body = {
+      device: await deviceId(),
+      epoch: (await getMeta('epoch')) || undefined,
+      mutations: rows.map((r) => ({ n: r.n, op: r.op, record: r.record })),
+    };
+    const sentAt = Date.now();
+    let res;
+    try {
+      res = await api('POST', '/api/push', body);
+    } catch (e) {
+      const gotAt = Date.now();
+      if (e instanceof HubError && e.status === 409 && e.body.code === 'CLOCK_SKEW' && e.body.serverTime && skewRetries < 2) {
+        skewRetries++;
+        await restamp(e.body.serverTime, sentAt, gotAt);
+        await setMeta('clockFixedAt', Date.now());
+        continue;
+      }
+      if (e instanceof HubError && [400, 413, 422].includes(e.status) && e.body.code) {
+        await rejectRows(rows, e.body); // permanent: never retried as is
+        continue;
+      }
+      throw e;
+    }
+    const gotAt = Date.now();
+    await ack(res, sentAt, gotAt);
+    pushed += rows.length;
+    const epoch = await getMeta('epoch');
+    if (res.epoch && epoch && res.epoch !== epoch) {
+      await resetForEpoch(res.epoch);
+      continue;
+    }
+    if ((res.ackedThrough || 0) < rows[rows.length - 1].n) {
+      throw new Error('the hub did not acknowledge the whole batch');
+    }
+  }
+}
+
+async function pullAll() {
+  let resets = 0;
+  let cursor = (await getMeta('cursor')) || 0;
+  for (;;) {
+    const sentAt = Date.now();
+    const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}`);
+    const gotAt = Date.now();
+    const epoch = await getMeta('epoch');
+    if (resets < 1 && ((epoch && page.epoch && page.epoch !== epoch) || (page.maxSeq < cursor))) {
+      resets++;
+      await resetForEpoch(page.epoch);
+      await pushAll();
+      cursor = 0;
+      continue;
+    }
+    await applyPage(page, sentAt, gotAt);
+    cursor = page.next;
+    if (!page.more) return;
+  }
+}
+
+// pushOnce pushes the whole outbox (the service worker's Background Sync).
+export function pushOnce(reason) {
+  return withLock(async () => {
+    await pushAll();
+    await setMeta('lastSync', Date.now());
+    notify({ type: 'synced', reason });
+  });
+}
+
+// syncOnce pushes, then pulls, under the lock.
+export function syncOnce(reason) {
+  return withLock(async () => {
+    await pushAll();
+    await pullAll();
+    await setMeta('lastSync', Date.now());
+    notify({ type: 'synced', reason });
+  });
+}
+
+// ---------------- page side: triggers, websocket, status ----------------
+
+export const status = {
+  waiting: 0,
+  rejected: 0,
+  lastSync: 0,
+  reachable: null, // null = not tried yet
+  syncing: false,
+  error: '',
+  clockFixed: false,
+};
+const subs = new Set();
+export function onStatus(fn) {
+  subs.add(fn);
+  fn({ ...status });
+  return () => subs.delete(fn);
+}
+function publish() {
+  const s = { ...status };
+  subs.forEach((fn) => fn(s));
+}
+
+export async function refreshCounts() {
+  status.waiting = await outboxCount();
+  status.rejected = (await rejectedList()).length;
+  status.lastSync = (await getMeta('lastSync')) || 0;
+  publish();
+}
+
+let running = false;
+let again = false;
+let failures = 0;
+let timer = null;
+let debounce = null;
+
+function schedule(ms) {
+  clearTimeout(timer);
+  timer = setTimeout(() => requestSync('timer'), ms);
+}
+
+// requestSync coalesces triggers: one run at a time, one more if asked meanwhile.
+export async function requestSync(reason) {
+  if (running) { again = true; return; }
+  running = true;
+  status.syncing = true;
+  publish();
+  try {
+    do {
+      again = false;
+      await syncOnce(reason);
+    } while (again);
+    failures = 0;
+    status.reachable = true;
+    status.error = '';
+    schedule(30000);
+  } catch (e) {
+    failures++;
+    status.reachable = !(e instanceof TypeError || e.name === 'AbortError' || (e instanceof HubError && (e.status >= 500 || e.status === 404)));
+    status.error = e.message || String(e);
+    const base = Math.min(60000, 2000 * 2 ** Math.min(failures - 1, 5));
+    schedule(base / 2 + Math.random() * base / 2);
+  } finally {
+    running = false;
+    status.syncing = false;
+    await refreshCounts();
+  }
+}
+
+export function syncSoon() {
+  clearTimeout(debounce);
+  debounce = setTimeout(() => requestSync('write'), 300);
+}
+
+async function registerBackgroundSync() {
+  try {
+    const reg = await navigator.serviceWorker?.ready;
+    if (reg && reg.sync) await reg.sync.register('outbox');
+  } catch (_) { /* not available: the foreground triggers do the work */ }
+}
+
+let ws = null;
+let wsFailures = 0;
+function connectWS() {
+  const proto = location.protocol === 'https:' ? 'wss:' : 'ws:';
+  getMeta('token').then((token) => {
+    const q = token ? `?token=${encodeURIComponent(token)}` : '';
+    try {
+      ws = new WebSocket(`${proto}//${location.host}/api/ws${q}`);
+    } catch (_) {
+      return retryWS();
+    }
+    ws.onmessage = (e) => {
+      let m;
+      try { m = JSON.parse(e.data); } catch (_) { return; }
+      if (m.t === 'hello') { wsFailures = 0; requestSync('ws-hello'); }
+      if (m.t === 'poke') requestSync('poke');
+    };
+    ws.onclose = () => { ws = null; retryWS(); };
+    ws.onerror = () => { try { ws && ws.close(); } catch (_) { /* closing anyway */ } };
+  });
+}
+
+function retryWS() {
+  wsFailures++;
+  const base = Math.min(30000, 1000 * 2 ** Math.min(wsFailures - 1, 5));
+  setTimeout(connectWS, base / 2 + Math.random() * base / 2);
+}
+
+let started = false;
+// startSync wires every trigger. Call once per page.
+export function startSync(onData) {
+  if (started) return;
+  started = true;
+  import('./db.js').then(({ onChange }) => {
+    onChange((m) => {
+      if (m.type === 'changed' && m.local) { syncSoon(); registerBackgroundSync(); }
+      if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
+      refreshCounts();
+    });
+  });
+  document.addEventListener('visibilitychange', () => {
+    if (document.visibilityState === 'visible') {
+      requestSync('visible');
+      if (!ws) connectWS();
+    }
+  });
+  addEventListener('online', () => requestSync('online'));
+  addEventListener('pageshow', (e) => { if (e.persisted) requestSync('pageshow'); });
+  refreshCounts();
+  requestSync('start');
+  connectWS();
+}
