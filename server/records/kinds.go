@@ -91,7 +91,9 @@ type Checkin struct {
 // Jump is one jump test: either heights or flight times per attempt.
 // BestCm and MeanCm are derived by the hub.
 type Jump struct {
-	Test      string    `json:"test"` // "cmj"
+	Test string `json:"test"` // "cmj"
+	// HeightsCm are the attempts in cm. When FlightMs is given the hub
+	// derives them from it (h = g·t²/8) and replaces any sent along.
 	HeightsCm []float64 `json:"heights_cm,omitempty"`
 	FlightMs  []float64 `json:"flight_ms,omitempty"`
 	Method    string    `json:"method,omitempty"` // mat, force_plate, other
@@ -122,7 +124,15 @@ type Intervals struct {
 	HRPeak   *int     `json:"hr_peak,omitempty"`
 	HRMean   *int     `json:"hr_mean,omitempty"`
 	RPE      *float64 `json:"rpe,omitempty"`
-	Minutes  float64  `json:"minutes,omitempty"` // derived when absent
+	// Minutes is the session's length. When absent the hub derives it from
+	// the protocol (sets × reps × (work + rest) + rests between sets) and
+	// sets MinutesDerived, so an edited protocol is recomputed; a client
+	// that lets the coach type minutes sends them with MinutesDerived false.
+	Minutes        float64 `json:"minutes,omitempty"`
+	MinutesDerived bool    `json:"minutes_derived,omitempty"`
+	// LoadAU is derived: rpe × minutes (Foster et al. 2001), when rpe is given.
+	LoadAU float64 `json:"load_au,omitempty"`
+	Note   string  `json:"note,omitempty"`
 }
 
 // Session is a training session with its session RPE; Load is derived

@@ -1,0 +1,107 @@
+package records
+
+import "testing"
+
+func TestDefaults(t *testing.T) {
+	// Each default is the value stated in PRODUCT.md "Flag rules".
+	tests := []struct {
+		rule, param string
+		want        float64
+	}{
+		{RuleJumpDrop, "baseline_days", 28},
+		{RuleJumpDrop, "min_test_days", 5},
+		{RuleJumpDrop, "cv_floor_pct", 2},
+		{RuleJumpDrop, "watch_pct", 5},
+		{RuleJumpDrop, "watch_cv", 2},
+		{RuleJumpDrop, "alert_pct", 10},
+		{RuleJumpDrop, "alert_cv", 3},
+		{RuleMassAbovePath, "trend_days", 7},
+		{RuleMassAbovePath, "watch_pct", 1},
+		{RuleMassAbovePath, "alert_pct", 2},
+		{RuleMassAbovePath, "path_margin_day_before_pct", 5},
+		{RuleMassAbovePath, "path_margin_same_day_pct", 3},
+		{RuleMassLossFast, "window_days", 14},
+		{RuleMassLossFast, "min_checkins", 7},
+		// Garthe et al. 2011 anchors these: 0.7 %/week kept lean mass, 1.4 did not.
+		{RuleMassLossFast, "watch_pct_week", 1.0},
+		{RuleMassLossFast, "alert_pct_week", 1.5},
+		{RuleCutAtRisk, "watch_pct_day_before", 5},
+		{RuleCutAtRisk, "alert_pct_day_before", 8},
+		{RuleCutAtRisk, "watch_pct_same_day", 3},
+		{RuleCutAtRisk, "alert_pct_same_day", 5},
+		{RuleSparDensity, "cap_rounds", 30},
+		{RuleSparDensity, "alert_cap_ratio", 1.25},
+		{RuleSparDensity, "hard_cap_rounds", 15},
+		{RuleSparSpacing, "min_hours", 48},
+		{RuleSparSpacing, "max_hard_days", 3},
+		// Neidecker et al. 2019 (ARP consensus): 30 / 60 / 90 days.
+		{RuleSparOnHold, "stoppage_days", 30},
+		{RuleSparOnHold, "knockout_days", 60},
+		{RuleSparOnHold, "knockout_loc_days", 90},
+		// Williams et al. 2017: acute N = 7, chronic N = 28.
+		{RuleLoadSpike, "acute_days", 7},
+		{RuleLoadSpike, "chronic_days", 28},
+		{RuleLoadSpike, "watch_ratio", 1.5},
+		{RuleLoadSpike, "low_ratio", 0.8},
+		{RuleMonotony, "watch", 2.0},
+		{RuleWellnessDrop, "watch_z", -1.5},
+		{RuleWellnessDrop, "alert_z", -2.0},
+		{RuleWellnessDrop, "min_checkins", 7},
+		// Hew-Butler et al. 2018 (≥ 1.020); Casa et al. 2000 (> 1.030).
+		{RuleHydration, "watch_usg", 1.020},
+		{RuleHydration, "alert_usg", 1.030},
+		// Bosquet et al. 2007: taper volume cut 41–60 %.
+		{RuleOffPlan, "tolerance_pct", 20},
+		{RuleOffPlan, "taper_cut_min_pct", 41},
+		{RuleOffPlan, "taper_cut_max_pct", 60},
+		// Issurin 2008: 30 ± 5 and 5 ± 3 days, upper bounds.
+		{RuleResidualGap, "max_strength_days", 35},
+		{RuleResidualGap, "speed_days", 8},
+	}
+	for _, tt := range tests {
+		got, ok := Defaults[tt.rule][tt.param]
+		if !ok || got != tt.want {
+			t.Errorf("Defaults[%s][%s] = %v (present %v), want %v", tt.rule, tt.param, got, ok, tt.want)
+		}
+	}
+	// The fixed rule ids of PRODUCT.md, all present.
+	for _, id := range []string{"jump_drop", "mass_above_path", "mass_loss_fast", "cut_at_risk", "spar_density",
+		"spar_spacing", "spar_on_hold", "load_spike", "monotony", "wellness_drop", "hydration",
+		"missing_checkin", "off_plan", "residual_gap"} {
+		if _, ok := Defaults[id]; !ok {
+			t.Errorf("rule %s missing from Defaults", id)
+		}
+	}
+	if len(Defaults) != 14 {
+		t.Errorf("Defaults has %d rules, want the 14 of PRODUCT.md", len(Defaults))
+	}
+	for _, r := range Rules {
+		for _, p := range r.Params {
+			if p.Default < p.Min || p.Default > p.Max {
+				t.Errorf("%s.%s: default %v outside its own bounds %v–%v", r.ID, p.Name, p.Default, p.Min, p.Max)
+			}
+		}
+	}
+}
+
+func TestResolve(t *testing.T) {
+	camp := map[string]map[string]float64{RuleSparDensity: {"cap_rounds": 24}, "nope": {"x": 1}}
+	athlete := map[string]map[string]float64{RuleSparDensity: {"cap_rounds": 20}, RuleHydration: {"watch_usg": 1.025, "bogus": 3}}
+	got := Resolve(camp, athlete)
+	if got[RuleSparDensity]["cap_rounds"] != 20 || got[RuleHydration]["watch_usg"] != 1.025 {
+		t.Errorf("athlete layer must win: %v", got)
+	}
+	if got[RuleSparDensity]["hard_cap_rounds"] != 15 {
+		t.Errorf("untouched parameters keep defaults: %v", got[RuleSparDensity])
+	}
+	if _, ok := got["nope"]; ok {
+		t.Error("unknown rules must not appear")
+	}
+	if _, ok := got[RuleHydration]["bogus"]; ok {
+		t.Error("unknown parameters must not appear")
+	}
+	got[RuleJumpDrop]["watch_pct"] = 99
+	if Defaults[RuleJumpDrop]["watch_pct"] != 5 {
+		t.Error("Resolve must return a copy, not the Defaults maps")
+	}
+}
