@@ -1,0 +1,183 @@
+package storage
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+
+	bolt "go.etcd.io/bbolt"
+)
+
+// BackupFile writes a consistent hot copy of the store to path: into a
+// temporary file beside it, synced, then renamed over path and the folder
+// synced, so a crash leaves either the old file or the whole new one.
+func BackupFile(db *DB, path string) (int64, error) {
+	return writeAtomically(path, func(f *os.File) (int64, error) { return db.WriteTo(f) })
+}
+
+func writeAtomically(path string, write func(*os.File) (int64, error)) (n int64, err error) {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return 0, fmt.Errorf("create a temporary file in %s: %w", dir, err)
+	}
+	defer func() {
+		if err != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+		}
+	}()
+	if n, err = write(tmp); err != nil {
+		return 0, err
+	}
+	if err = tmp.Sync(); err != nil {
+		return 0, err
+	}
+	if err = tmp.Close(); err != nil {
+		return 0, err
+	}
+	if err = os.Chmod(tmp.Name(), 0o600); err != nil {
+		return 0, err
+	}
+	if err = os.Rename(tmp.Name(), path); err != nil {
+		return 0, err
+	}
+	return n, syncDir(dir)
+}
+
+func syncDir(dir string) error {
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	return d.Sync()
+}
+
+// ErrBadBackup is returned by VerifyFile and RestoreFile for a file that
+// is not a sound Cornerbook database.
+var ErrBadBackup = errors.New("not a usable Cornerbook backup")
+
+// VerifyFile checks that path is a sound Cornerbook database: bbolt's page
+// check, the expected buckets and schema, and the application invariants.
+func VerifyFile(path string) (err error) {
+	st, err := os.Stat(path)
+	if err != nil {
+		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+	}
+	if st.Size() == 0 {
+		return fmt.Errorf("%w: the file is empty", ErrBadBackup)
+	}
+	defer func() {
+		// bbolt may panic on a badly damaged file; that is a refusal too.
+		if r := recover(); r != nil {
+			err = fmt.Errorf("%w: the file is damaged (%v)", ErrBadBackup, r)
+		}
+	}()
+	bdb, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: time.Second, ReadOnly: true})
+	if err != nil {
+		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+	}
+	defer bdb.Close()
+	return bdb.View(func(tx *bolt.Tx) error {
+		for _, b := range allBuckets {
+			if tx.Bucket(b) == nil {
+				return fmt.Errorf("%w: it has no %q section", ErrBadBackup, b)
+			}
+		}
+		if v := tx.Bucket(BucketMeta).Get(keySchema); string(v) != schemaVersion {
+			return fmt.Errorf("%w: its layout version is %q, this hub reads %q", ErrBadBackup, v, schemaVersion)
+		}
+		for err := range tx.Check() {
+			return fmt.Errorf("%w: the file is damaged: %v", ErrBadBackup, err)
+		}
+		var problems []string
+		checkInvariants(tx, func(format string, args ...any) bool {
+			problems = append(problems, fmt.Sprintf(format, args...))
+			return len(problems) < 5
+		})
+		if len(problems) > 0 {
+			return fmt.Errorf("%w: %s", ErrBadBackup, strings.Join(problems, "; "))
+		}
+		return nil
+	})
+}
+
+// RestoreFile replaces the database at dst with the backup at src after
+// checking the backup, and gives the restored store a new epoch so every
+// device re-pushes its own records and pulls from the start. A refused
+// backup changes nothing. dst must not be open by a running hub.
+func RestoreFile(src, dst string) (epoch string, err error) {
+	if err := VerifyFile(src); err != nil {
+		return "", err
+	}
+	if _, err := os.Stat(dst); err == nil {
+		// Take the lock briefly: a running hub holds it and the restore stops here.
+		cur, err := bolt.Open(dst, 0o600, &bolt.Options{Timeout: time.Second})
+		if err != nil {
+			return "", &lockedError{cause: err}
+		}
+		cur.Close()
+	}
+	in, err := os.Open(src)
+	if err != nil {
+		return "", err
+	}
+	defer in.Close()
+	tmpPath := dst + ".restoring"
+	if _, err := writeAtomically(tmpPath, func(f *os.File) (int64, error) { return io.Copy(f, in) }); err != nil {
+		return "", err
+	}
+	db, err := Open(tmpPath, Options{})
+	if err != nil {
+		os.Remove(tmpPath)
+		return "", err
+	}
+	epoch, err = db.RotateEpoch()
+	if cerr := db.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		os.Remove(tmpPath)
+		return "", err
+	}
+	if err := os.Rename(tmpPath, dst); err != nil {
+		return "", err
+	}
+	return epoch, syncDir(filepath.Dir(dst))
+}
+
+// SnapshotName is the file name of the daily snapshot of a day.
+func SnapshotName(day string) string { return "cornerbook-" + day + ".db" }
+
+// Snapshot writes today's snapshot into dir (if it does not exist yet) and
+// keeps only the newest keep snapshots. It returns the path written, or ""
+// when today's snapshot already existed.
+func Snapshot(db *DB, dir, day string, keep int) (string, error) {
+	if err := os.MkdirAll(dir, 0o700); err != nil {
+		return "", err
+	}
+	path := filepath.Join(dir, SnapshotName(day))
+	written := ""
+	if _, err := os.Stat(path); errors.Is(err, os.ErrNotExist) {
+		if _, err := BackupFile(db, path); err != nil {
+			return "", err
+		}
+		written = path
+	}
+	names, err := filepath.Glob(filepath.Join(dir, "cornerbook-????-??-??.db"))
+	if err != nil {
+		return written, err
+	}
+	sort.Strings(names)
+	for len(names) > keep {
+		os.Remove(names[0])
+		names = names[1:]
+	}
+	return written, nil
+}

@@ -1,0 +1,219 @@
+package storage
+
+import (
+	"bytes"
+	"encoding/binary"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+
+	bolt "go.etcd.io/bbolt"
+)
+
+// maxCheckProblems bounds the report of a badly damaged file.
+const maxCheckProblems = 20
+
+// Check verifies the file: bbolt's own page and freelist checks
+// (Tx.Check) and the store's invariants:
+//
+//   - the epoch is 32 hex digits;
+//   - every change entry names a stored record whose current sequence is
+//     that entry, and every record has exactly one change entry;
+//   - no change entry lies above the bucket's sequence;
+//   - every record's newest version is the current winner, stored at its
+//     sequence;
+//   - every index entry names a live record with that athlete, kind and
+//     day, and every live record has its index entry (so exactly one);
+//   - every device state decodes.
+//
+// It runs in a read-write transaction that is rolled back, so no writer
+// runs during the check (bbolt's advice for Tx.Check) and nothing changes.
+func (db *DB) Check() error {
+	tx, err := db.bolt.Begin(true)
+	if err != nil {
+		return err
+	}
+	defer tx.Rollback()
+
+	var problems []error
+	add := func(format string, args ...any) bool {
+		problems = append(problems, fmt.Errorf(format, args...))
+		return len(problems) < maxCheckProblems
+	}
+	for err := range tx.Check() {
+		if !add("bbolt: %w", err) {
+			break
+		}
+	}
+	if len(problems) == 0 {
+		checkInvariants(tx, add)
+	}
+	return errors.Join(problems...)
+}
+
+func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
+	for _, name := range allBuckets {
+		if tx.Bucket(name) == nil {
+			add("bucket %s is missing", name)
+			return
+		}
+	}
+	epoch := tx.Bucket(BucketMeta).Get(keyEpoch)
+	if _, err := hex.DecodeString(string(epoch)); err != nil || len(epoch) != 32 {
+		if !add("epoch %q is not 32 hex digits", epoch) {
+			return
+		}
+	}
+
+	records := tx.Bucket(BucketRecords)
+	seqs := tx.Bucket(BucketSeqs)
+	versions := tx.Bucket(BucketVersions)
+	index := tx.Bucket(BucketIndex)
+	changes := tx.Bucket(BucketChanges)
+
+	// Change entries ↔ records.
+	nChanges := 0
+	var last uint64
+	c := changes.Cursor()
+	for k, id := c.First(); k != nil; k, id = c.Next() {
+		nChanges++
+		if len(k) != 8 {
+			if !add("change key %x is not 8 bytes", k) {
+				return
+			}
+			continue
+		}
+		last = binary.BigEndian.Uint64(k)
+		if records.Get(id) == nil {
+			if !add("change %d names record %q, which is missing", last, id) {
+				return
+			}
+		} else if s := seqs.Get(id); !bytes.Equal(s, k) {
+			if !add("change %d names record %q, whose current sequence is %x", last, id, s) {
+				return
+			}
+		}
+	}
+	if last > changes.Sequence() {
+		if !add("change %d lies above the sequence %d", last, changes.Sequence()) {
+			return
+		}
+	}
+
+	// Records: sequence, newest version, index entry.
+	nRecords, nLive := 0, 0
+	rc := records.Cursor()
+	for k, v := rc.First(); k != nil; k, v = rc.Next() {
+		nRecords++
+		r, err := decode(v)
+		if err != nil {
+			if !add("record %q is unreadable: %v", k, err) {
+				return
+			}
+			continue
+		}
+		if r.ID != string(k) {
+			if !add("record under key %q carries id %q", k, r.ID) {
+				return
+			}
+		}
+		s := seqs.Get(k)
+		if len(s) != 8 {
+			if !add("record %q has no sequence", k) {
+				return
+			}
+			continue
+		}
+		if id := changes.Get(s); !bytes.Equal(id, k) {
+			if !add("record %q: change %d names %q", k, binary.BigEndian.Uint64(s), id) {
+				return
+			}
+		}
+		prefix := append(bytes.Clone(k), '|')
+		vk, vv := lastWithPrefix(versions.Cursor(), prefix)
+		if vk == nil {
+			if !add("record %q has no stored version", k) {
+				return
+			}
+		} else if !bytes.Equal(vk[len(prefix):], s) || !bytes.Equal(vv, v) {
+			if !add("record %q: newest version %x is not the current winner at %x", k, vk[len(prefix):], s) {
+				return
+			}
+		}
+		if !r.Deleted {
+			nLive++
+			if index.Get(indexKey(&r)) == nil {
+				if !add("live record %q has no index entry %q", k, indexKey(&r)) {
+					return
+				}
+			}
+		}
+	}
+	if nChanges != nRecords {
+		if !add("%d change entries for %d records", nChanges, nRecords) {
+			return
+		}
+	}
+
+	// Index entries → live records with matching keys.
+	nIndex := 0
+	ic := index.Cursor()
+	for k, _ := ic.First(); k != nil; k, _ = ic.Next() {
+		nIndex++
+		a, kind, day, id, ok := parseIndexKey(k)
+		if !ok {
+			if !add("index key %q is malformed", k) {
+				return
+			}
+			continue
+		}
+		v := records.Get([]byte(id))
+		if v == nil {
+			if !add("index entry %q names a missing record", k) {
+				return
+			}
+			continue
+		}
+		r, err := decode(v)
+		if err != nil {
+			continue // reported above
+		}
+		if r.Deleted || r.Athlete != a || r.Kind != kind || r.Day != day {
+			if !add("index entry %q does not match record %q (athlete %q, kind %q, day %q, deleted %v)", k, id, r.Athlete, r.Kind, r.Day, r.Deleted) {
+				return
+			}
+		}
+	}
+	if nIndex != nLive {
+		if !add("%d index entries for %d live records", nIndex, nLive) {
+			return
+		}
+	}
+
+	// Device states.
+	dc := tx.Bucket(BucketDevices).Cursor()
+	for k, v := dc.First(); k != nil; k, v = dc.Next() {
+		var st DeviceState
+		if err := json.Unmarshal(v, &st); err != nil {
+			if !add("device %q: state is unreadable: %v", k, err) {
+				return
+			}
+		}
+	}
+}
+
+// lastWithPrefix returns the last version key/value of prefix (id "|").
+func lastWithPrefix(c *bolt.Cursor, prefix []byte) ([]byte, []byte) {
+	// A version key is prefix + 8 bytes, so prefix + 9×0xff is above all.
+	k, v := c.Seek(append(bytes.Clone(prefix), bytes.Repeat([]byte{0xff}, 9)...))
+	if k == nil {
+		k, v = c.Last()
+	} else {
+		k, v = c.Prev()
+	}
+	if k == nil || !bytes.HasPrefix(k, prefix) {
+		return nil, nil
+	}
+	return k, v
+}

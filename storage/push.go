@@ -1,0 +1,374 @@
+package storage
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"strings"
+	"time"
+
+	"github.com/google/uuid"
+	bolt "go.etcd.io/bbolt"
+
+	devsync "cornerbook/sync"
+)
+
+// PushResult is what one committed push did.
+type PushResult struct {
+	AckedThrough uint64              // the device's counter after the push: every n ≤ this is settled
+	Rejected     []devsync.Rejection // mutations refused, with field and reason
+	Applied      int                 // mutations whose version won and was written
+	Superseded   int                 // valid, but an equal or greater version was already stored
+	Duplicates   int                 // n at or below the device's counter: skipped
+	MaxSeq       uint64              // latest change sequence after the push
+	// Changed holds the winning versions written, one per record id (the
+	// last one when a batch changes a record twice), in the order the
+	// records were first written: for flag recomputation and pokes.
+	Changed []devsync.Record
+}
+
+// Push applies one device's batch in a single bbolt transaction (see
+// ENGINEERING.md §3.6). Per mutation, in order:
+//
+//  1. n ≤ the device's counter → duplicate, skipped;
+//  2. the mutation's own checks and the record's shape (id, kind,
+//     athlete, day);
+//  3. allow (nil = allow all): an error rejects it, code FORBIDDEN (or
+//     VALIDATION for a *devsync.FieldError);
+//  4. Options.Prepare for non-deleted records (validation, derived fields);
+//  5. the kind may not change under an existing id;
+//  6. last-writer-wins against the stored winner (devsync.Compare, sticky
+//     deletes): a winner is written with its history, index and a new
+//     change sequence; a loser is kept in the conflicts audit.
+//
+// The device's counter then moves to n, also for a rejected mutation, so
+// a poisoned mutation never blocks the device's queue.
+//
+// A request-level problem (no device id, n not strictly increasing) is
+// returned as a *devsync.FieldError and nothing is applied. Any other
+// error means nothing was committed.
+func (db *DB) Push(req devsync.PushRequest, allow func(*devsync.Record) error) (PushResult, error) {
+	if err := checkRequest(&req); err != nil {
+		return PushResult{}, err
+	}
+	var res PushResult
+	err := db.bolt.Update(func(tx *bolt.Tx) error {
+		res = PushResult{} // a retried closure starts clean
+		p := pusher{tx: tx, db: db, changed: map[string]int{}}
+		p.open()
+		dev, err := p.device(req.Device)
+		if err != nil {
+			return err
+		}
+		for i := range req.Mutations {
+			m := &req.Mutations[i]
+			if m.N <= dev.LastN {
+				res.Duplicates++
+				continue
+			}
+			outcome, rej, err := p.apply(m, allow, &res)
+			if err != nil {
+				return fmt.Errorf("mutation %d (n %d, id %q): %w", i, m.N, m.Record.ID, err)
+			}
+			switch outcome {
+			case applied:
+				res.Applied++
+			case superseded:
+				res.Superseded++
+			case rejected:
+				res.Rejected = append(res.Rejected, rej)
+			}
+			dev.LastN = m.N
+		}
+		dev.LastPush = db.now().UTC()
+		dev.Pushes++
+		if err := p.putDevice(req.Device, dev); err != nil {
+			return err
+		}
+		res.AckedThrough = dev.LastN
+		res.MaxSeq = p.changes.Sequence()
+		return nil
+	})
+	if err != nil {
+		return PushResult{}, err
+	}
+	return res, nil
+}
+
+// checkRequest refuses a request as a whole.
+func checkRequest(req *devsync.PushRequest) error {
+	if req.Device == "" {
+		return devsync.Invalid("device", "is required: the id of the pushing device")
+	}
+	if len(req.Device) > 128 {
+		return devsync.Invalid("device", "is longer than 128 characters")
+	}
+	for _, r := range req.Device {
+		if r < 0x21 || r == 0x7f {
+			return devsync.Invalid("device", "may not contain spaces or control characters")
+		}
+	}
+	var prev uint64
+	for i, m := range req.Mutations {
+		if m.N == 0 {
+			return devsync.Invalid(fmt.Sprintf("mutations[%d].n", i), "must be a counter of 1 or more")
+		}
+		if i > 0 && m.N <= prev {
+			return devsync.Invalid(fmt.Sprintf("mutations[%d].n", i),
+				"is %d after %d: mutation counters must be strictly increasing within a push", m.N, prev)
+		}
+		prev = m.N
+	}
+	return nil
+}
+
+type outcome int
+
+const (
+	applied outcome = iota
+	superseded
+	rejected
+)
+
+type pusher struct {
+	tx                                                     *bolt.Tx
+	db                                                     *DB
+	records, seqs, versions, index, changes, devices, conf *bolt.Bucket
+	changed                                                map[string]int // id → index in res.Changed
+}
+
+func (p *pusher) open() {
+	p.records = p.tx.Bucket(BucketRecords)
+	p.seqs = p.tx.Bucket(BucketSeqs)
+	p.versions = p.tx.Bucket(BucketVersions)
+	p.index = p.tx.Bucket(BucketIndex)
+	p.changes = p.tx.Bucket(BucketChanges)
+	p.changes.FillPercent = changesFill
+	p.devices = p.tx.Bucket(BucketDevices)
+	p.conf = p.tx.Bucket(BucketConflicts)
+}
+
+func (p *pusher) device(id string) (DeviceState, error) {
+	var st DeviceState
+	if v := p.devices.Get([]byte(id)); v != nil {
+		if err := json.Unmarshal(v, &st); err != nil {
+			return st, fmt.Errorf("device %q: stored state is unreadable: %w", id, err)
+		}
+	}
+	return st, nil
+}
+
+func (p *pusher) putDevice(id string, st DeviceState) error {
+	v, err := json.Marshal(st)
+	if err != nil {
+		return err
+	}
+	return p.devices.Put([]byte(id), v)
+}
+
+func reject(m *devsync.Mutation, code string, err error) devsync.Rejection {
+	r := devsync.Rejection{N: m.N, ID: m.Record.ID, Code: code, Reason: err.Error()}
+	var fe *devsync.FieldError
+	if errors.As(err, &fe) {
+		r.Field, r.Reason = fe.Field, fe.Reason
+	}
+	return r
+}
+
+// apply runs one mutation. A non-nil error aborts the whole transaction.
+func (p *pusher) apply(m *devsync.Mutation, allow func(*devsync.Record) error, res *PushResult) (outcome, devsync.Rejection, error) {
+	if err := m.Check(); err != nil {
+		return rejected, reject(m, devsync.CodeValidation, err), nil
+	}
+	if err := CheckShape(&m.Record); err != nil {
+		return rejected, reject(m, devsync.CodeValidation, err), nil
+	}
+	rec := m.Record // the caller's request is not modified
+	if rec.Body != nil {
+		rec.Body = append(json.RawMessage(nil), rec.Body...)
+	}
+	if allow != nil {
+		if err := allow(&rec); err != nil {
+			var fe *devsync.FieldError
+			if errors.As(err, &fe) {
+				return rejected, reject(m, devsync.CodeValidation, err), nil
+			}
+			return rejected, reject(m, devsync.CodeForbidden, err), nil
+		}
+	}
+	if !rec.Deleted && p.db.prepare != nil {
+		if err := p.db.prepare(&rec); err != nil {
+			return rejected, reject(m, devsync.CodeValidation, err), nil
+		}
+		// Prepare may fill fields; it may not move the record to a
+		// malformed key.
+		if err := CheckShape(&rec); err != nil {
+			return rejected, reject(m, devsync.CodeValidation, err), nil
+		}
+	}
+
+	id := []byte(rec.ID)
+	var stored *devsync.Record
+	if v := p.records.Get(id); v != nil {
+		s, err := decode(v)
+		if err != nil {
+			return 0, devsync.Rejection{}, fmt.Errorf("stored record is unreadable: %w", err)
+		}
+		stored = &s
+		if s.Kind != rec.Kind {
+			return rejected, reject(m, devsync.CodeValidation,
+				devsync.Invalid("record.kind", "this id already belongs to a %s record", s.Kind)), nil
+		}
+	}
+	if !devsync.Wins(&rec, stored) {
+		if devsync.Compare(&rec, stored) < 0 {
+			if err := p.keepLoser(&rec); err != nil {
+				return 0, devsync.Rejection{}, err
+			}
+		}
+		return superseded, devsync.Rejection{}, nil
+	}
+	if err := p.write(&rec, stored); err != nil {
+		return 0, devsync.Rejection{}, err
+	}
+	if i, ok := p.changed[rec.ID]; ok {
+		res.Changed[i] = rec
+	} else {
+		p.changed[rec.ID] = len(res.Changed)
+		res.Changed = append(res.Changed, rec)
+	}
+	return applied, devsync.Rejection{}, nil
+}
+
+// write stores rec as the new winner over stored (nil if new).
+func (p *pusher) write(rec, stored *devsync.Record) error {
+	v, err := json.Marshal(rec)
+	if err != nil {
+		return fmt.Errorf("encode record: %w", err)
+	}
+	id := []byte(rec.ID)
+	if stored != nil {
+		if old := p.seqs.Get(id); old != nil {
+			if err := p.changes.Delete(old); err != nil {
+				return err
+			}
+		}
+		if !stored.Deleted {
+			if err := p.index.Delete(indexKey(stored)); err != nil {
+				return err
+			}
+		}
+	}
+	seq, err := p.changes.NextSequence()
+	if err != nil {
+		return err
+	}
+	sk := u64(seq)
+	if err := p.changes.Put(sk, id); err != nil {
+		return err
+	}
+	if err := p.seqs.Put(id, sk); err != nil {
+		return err
+	}
+	if err := p.records.Put(id, v); err != nil {
+		return err
+	}
+	if err := p.versions.Put(versionKey(rec.ID, seq), v); err != nil {
+		return err
+	}
+	if !rec.Deleted {
+		if err := p.index.Put(indexKey(rec), nil); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// keepLoser files a version that lost to the stored winner in the audit
+// bucket, keyed id|u64be counter.
+func (p *pusher) keepLoser(rec *devsync.Record) error {
+	v, err := json.Marshal(rec)
+	if err != nil {
+		return err
+	}
+	n, err := p.conf.NextSequence()
+	if err != nil {
+		return err
+	}
+	return p.conf.Put(versionKey(rec.ID, n), v)
+}
+
+// CheckShape checks the parts of a record that become storage keys: id,
+// kind, athlete and day. Tombstones get only this check.
+func CheckShape(r *devsync.Record) error {
+	if err := CheckID(r.ID); err != nil {
+		return devsync.Invalid("record.id", "%s", err)
+	}
+	if err := checkKind(r.Kind); err != nil {
+		return err
+	}
+	if r.Athlete != "" {
+		if err := CheckID(r.Athlete); err != nil {
+			return devsync.Invalid("record.athlete", "%s (an athlete id)", err)
+		}
+	}
+	if r.Day != "" {
+		if err := CheckDay(r.Day); err != nil {
+			return devsync.Invalid("record.day", "%s", err)
+		}
+	}
+	return nil
+}
+
+func checkKind(k string) error {
+	if k == "" {
+		return devsync.Invalid("record.kind", "is required")
+	}
+	if len(k) > 32 {
+		return devsync.Invalid("record.kind", "is longer than 32 characters")
+	}
+	for i, c := range k {
+		if !(c >= 'a' && c <= 'z' || c == '_' || i > 0 && c >= '0' && c <= '9') {
+			return devsync.Invalid("record.kind", "%q is not a kind name (lower-case letters, digits and _)", k)
+		}
+	}
+	return nil
+}
+
+// CheckID accepts a UUID in its canonical lower-case 8-4-4-4-12 form or a
+// 26-character ULID in its canonical upper-case Crockford base 32. One
+// spelling per id keeps one key per record.
+func CheckID(id string) error {
+	switch len(id) {
+	case 0:
+		return errors.New("is required")
+	case 36:
+		u, err := uuid.Parse(id)
+		if err != nil || u.String() != id {
+			return fmt.Errorf("%q is not a UUID in lower-case 8-4-4-4-12 form", id)
+		}
+		return nil
+	case 26:
+		if id[0] > '7' {
+			return fmt.Errorf("%q is not a ULID: the first character must be 0–7", id)
+		}
+		for _, c := range id {
+			if !strings.ContainsRune("0123456789ABCDEFGHJKMNPQRSTVWXYZ", c) {
+				return fmt.Errorf("%q is not a ULID: %q is not an upper-case Crockford base-32 digit", id, c)
+			}
+		}
+		return nil
+	}
+	return fmt.Errorf("%q is neither a UUID (36 characters) nor a ULID (26 characters)", id)
+}
+
+// CheckDay accepts a real calendar day written YYYY-MM-DD.
+func CheckDay(d string) error {
+	if len(d) != 10 {
+		return fmt.Errorf("%q is not a day written YYYY-MM-DD", d)
+	}
+	if _, err := time.Parse(time.DateOnly, d); err != nil {
+		return fmt.Errorf("%q is not a calendar day written YYYY-MM-DD", d)
+	}
+	return nil
+}

@@ -1,0 +1,203 @@
+package storage
+
+import (
+	"bytes"
+	"encoding/binary"
+	"fmt"
+
+	bolt "go.etcd.io/bbolt"
+
+	devsync "cornerbook/sync"
+)
+
+// The read methods that take a callback run it inside one bbolt read
+// transaction, so the records come from one consistent snapshot. The
+// callback must not write to the store (Push, RotateEpoch, Bolt().Update):
+// a write waiting on a remap behind the open read can deadlock. An error
+// from the callback stops the walk and is returned.
+
+// Get returns the current winner of one record, tombstones included, or
+// ErrNotFound.
+func (db *DB) Get(id string) (devsync.Record, error) {
+	var r devsync.Record
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		v := tx.Bucket(BucketRecords).Get([]byte(id))
+		if v == nil {
+			return ErrNotFound
+		}
+		var err error
+		r, err = decode(v)
+		return err
+	})
+	return r, err
+}
+
+// History returns every winning version of one record ever stored, oldest
+// first (the last is the current winner), or ErrNotFound.
+func (db *DB) History(id string) ([]devsync.Record, error) {
+	var out []devsync.Record
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		prefix := append([]byte(id), '|')
+		c := tx.Bucket(BucketVersions).Cursor()
+		for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+			r, err := decode(v)
+			if err != nil {
+				return fmt.Errorf("version %x: %w", k, err)
+			}
+			out = append(out, r)
+		}
+		if len(out) == 0 {
+			return ErrNotFound
+		}
+		return nil
+	})
+	return out, err
+}
+
+// Pull returns the records whose latest change sequence is above since,
+// in sequence order: at most limit of them (≤ 0 means
+// devsync.DefaultPullLimit; capped at devsync.MaxPullLimit). visible
+// filters them (nil shows all); next advances over hidden entries too, so
+// a filtered device never re-reads them. A page may hold fewer than limit
+// records while more is true (a filter hid many entries); the caller
+// pulls again from next until more is false. maxSeq is the latest
+// sequence at the time of the page. Each page is its own read
+// transaction; a record edited between pages moves to a later sequence
+// and appears once more in a later page.
+func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) (recs []devsync.Record, next uint64, more bool, maxSeq uint64, err error) {
+	if limit <= 0 {
+		limit = devsync.DefaultPullLimit
+	}
+	limit = min(limit, devsync.MaxPullLimit)
+	next = since
+	err = db.bolt.View(func(tx *bolt.Tx) error {
+		changes := tx.Bucket(BucketChanges)
+		records := tx.Bucket(BucketRecords)
+		maxSeq = changes.Sequence()
+		if since == ^uint64(0) {
+			return nil
+		}
+		c := changes.Cursor()
+		scanned := 0
+		for k, id := c.Seek(u64(since + 1)); k != nil; k, id = c.Next() {
+			if len(recs) == limit || scanned == scanBudget {
+				more = true
+				return nil
+			}
+			scanned++
+			v := records.Get(id)
+			if v == nil {
+				return fmt.Errorf("change %d names record %q, which is missing", binary.BigEndian.Uint64(k), id)
+			}
+			r, err := decode(v)
+			if err != nil {
+				return fmt.Errorf("record %q: %w", id, err)
+			}
+			next = binary.BigEndian.Uint64(k)
+			if visible == nil || visible(&r) {
+				recs = append(recs, r)
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, since, false, 0, err
+	}
+	return recs, next, more, maxSeq, nil
+}
+
+// Range calls fn for each live record of one athlete and kind whose day
+// lies in [fromDay, toDay], ordered by day then id, through a Cursor.Seek
+// on the athlete|kind|day|id index. An empty fromDay starts at the first
+// record (day-less records, such as bouts, sort first); an empty toDay
+// runs to the last. Camp-wide kinds use athlete "".
+func (db *DB) Range(athlete, kind, fromDay, toDay string, fn func(devsync.Record) error) error {
+	return db.bolt.View(func(tx *bolt.Tx) error {
+		records := tx.Bucket(BucketRecords)
+		prefix := []byte(athlete + "|" + kind + "|")
+		c := tx.Bucket(BucketIndex).Cursor()
+		for k, _ := c.Seek(append(bytes.Clone(prefix), fromDay...)); k != nil && bytes.HasPrefix(k, prefix); k, _ = c.Next() {
+			rest := k[len(prefix):]
+			sep := bytes.IndexByte(rest, '|')
+			if sep < 0 {
+				return fmt.Errorf("index key %q is malformed", k)
+			}
+			if toDay != "" && string(rest[:sep]) > toDay {
+				return nil
+			}
+			if err := emit(records, rest[sep+1:], fn); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+}
+
+// Kind calls fn for every live record of one kind, all athletes, ordered
+// by athlete, day, id (camp-wide records, athlete "", come last). It
+// skips from athlete to athlete with Cursor.Seek, so its cost is the
+// records it returns plus a seek or two per athlete.
+func (db *DB) Kind(kind string, fn func(devsync.Record) error) error {
+	return db.bolt.View(func(tx *bolt.Tx) error {
+		records := tx.Bucket(BucketRecords)
+		c := tx.Bucket(BucketIndex).Cursor()
+		k, _ := c.First()
+		for k != nil {
+			a, kd, _, id, ok := parseIndexKey(k)
+			if !ok {
+				return fmt.Errorf("index key %q is malformed", k)
+			}
+			switch {
+			case kd < kind:
+				k, _ = c.Seek([]byte(a + "|" + kind + "|"))
+			case kd > kind:
+				// '}' sorts right after '|': the first key of the next athlete.
+				k, _ = c.Seek([]byte(a + "}"))
+			default:
+				if err := emit(records, []byte(id), fn); err != nil {
+					return err
+				}
+				k, _ = c.Next()
+			}
+		}
+		return nil
+	})
+}
+
+func emit(records *bolt.Bucket, id []byte, fn func(devsync.Record) error) error {
+	v := records.Get(id)
+	if v == nil {
+		return fmt.Errorf("index names record %q, which is missing", id)
+	}
+	r, err := decode(v)
+	if err != nil {
+		return fmt.Errorf("record %q: %w", id, err)
+	}
+	return fn(r)
+}
+
+// All calls fn for every current record in change-sequence order (the
+// order an export replays cleanly), with tombstones if includeDeleted.
+func (db *DB) All(includeDeleted bool, fn func(devsync.Record) error) error {
+	return db.bolt.View(func(tx *bolt.Tx) error {
+		records := tx.Bucket(BucketRecords)
+		c := tx.Bucket(BucketChanges).Cursor()
+		for k, id := c.First(); k != nil; k, id = c.Next() {
+			v := records.Get(id)
+			if v == nil {
+				return fmt.Errorf("change %d names record %q, which is missing", binary.BigEndian.Uint64(k), id)
+			}
+			r, err := decode(v)
+			if err != nil {
+				return fmt.Errorf("record %q: %w", id, err)
+			}
+			if r.Deleted && !includeDeleted {
+				continue
+			}
+			if err := fn(r); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+}

@@ -1,0 +1,273 @@
+// Package storage keeps Cornerbook's records in one bbolt file on the hub:
+// the current winner of every record, every winning version ever stored,
+// an athlete/kind/day index, the change sequence that devices pull from,
+// per-device mutation counters and an audit of losing versions.
+//
+// Every push is applied in one bbolt read-write transaction, so a nil
+// return from Push means the whole batch — records, indexes, sequence and
+// the device's counter — is on disk (bbolt fsyncs at commit; NoSync is
+// never used). Nothing is acknowledged before that.
+//
+// Layout (keys big-endian where numeric, so byte order is numeric order):
+//
+//	meta       "epoch" → 32 hex digits, "schema" → "1"
+//	records    id → record JSON (current winner, tombstones included)
+//	seqs       id → u64be change sequence of the current winner
+//	versions   id "|" u64be seq → record JSON (every winning version)
+//	index      athlete "|" kind "|" day "|" id → empty (live records only)
+//	changes    u64be seq → id (one entry per record, at its latest change)
+//	devices    device id → {"lastN","lastPush","pushes"}
+//	conflicts  id "|" u64be n → losing record JSON (audit, never read by sync)
+//
+// Ids, athlete ids, kinds and days are validated before they reach a key,
+// so none of them contains the "|" separator.
+package storage
+
+import (
+	"bytes"
+	"crypto/rand"
+	"encoding/binary"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"time"
+
+	bolt "go.etcd.io/bbolt"
+	berrors "go.etcd.io/bbolt/errors"
+
+	devsync "cornerbook/sync"
+)
+
+// Bucket names. Packages that keep their own buckets in the same file
+// (through Bolt) must not use these.
+var (
+	BucketMeta      = []byte("meta")
+	BucketRecords   = []byte("records")
+	BucketSeqs      = []byte("seqs")
+	BucketVersions  = []byte("versions")
+	BucketIndex     = []byte("index")
+	BucketChanges   = []byte("changes")
+	BucketDevices   = []byte("devices")
+	BucketConflicts = []byte("conflicts")
+)
+
+var allBuckets = [][]byte{BucketMeta, BucketRecords, BucketSeqs, BucketVersions, BucketIndex, BucketChanges, BucketDevices, BucketConflicts}
+
+var (
+	keyEpoch  = []byte("epoch")
+	keySchema = []byte("schema")
+)
+
+// schemaVersion is the layout above. A file written by a later layout is
+// refused rather than misread.
+const schemaVersion = "1"
+
+// changesFill is the fill percent of the append-only changes bucket (bbolt
+// README: sequential inserts pack well at 0.9–1.0). It is not persisted,
+// so every write transaction sets it.
+const changesFill = 0.9
+
+// scanBudget bounds how many change entries one Pull page looks at when a
+// visibility filter hides most of them, so a page is always a short read
+// transaction. The page then carries fewer records and More is true.
+const scanBudget = 4 * devsync.MaxPullLimit
+
+var (
+	// ErrLocked is returned by Open when another process (or another Open
+	// in this process) holds the file.
+	ErrLocked = errors.New("the data folder is in use by another cornerbook")
+	// ErrNotFound is returned for an unknown record or device.
+	ErrNotFound = errors.New("not found")
+)
+
+// lockedError is ErrLocked with bbolt's timeout kept as its cause.
+type lockedError struct{ cause error }
+
+func (e *lockedError) Error() string   { return ErrLocked.Error() }
+func (e *lockedError) Unwrap() []error { return []error{ErrLocked, e.cause} }
+
+// Options configure Open. The zero value is usable.
+type Options struct {
+	// Timeout is how long Open waits for the file lock; default 1 s.
+	Timeout time.Duration
+	// Now is the clock for device push times; default time.Now.
+	Now func() time.Time
+	// Prepare validates a non-deleted record and fills its derived body
+	// fields. It returns a *devsync.FieldError for bad input. Nil accepts
+	// every record.
+	Prepare func(*devsync.Record) error
+}
+
+// DB is the hub's store. It is safe for concurrent use.
+type DB struct {
+	bolt    *bolt.DB
+	now     func() time.Time
+	prepare func(*devsync.Record) error
+}
+
+// DeviceState is what the hub knows about one device's pushes.
+type DeviceState struct {
+	LastN    uint64    `json:"lastN"`    // highest mutation counter applied or rejected
+	LastPush time.Time `json:"lastPush"` // hub time of the last push
+	Pushes   uint64    `json:"pushes"`   // push requests committed
+}
+
+// Open opens (creating if needed) the store at path. On first open it
+// creates the buckets and a random 128-bit epoch.
+func Open(path string, opt Options) (*DB, error) {
+	if opt.Timeout <= 0 {
+		opt.Timeout = time.Second
+	}
+	if opt.Now == nil {
+		opt.Now = time.Now
+	}
+	b, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: opt.Timeout})
+	if err != nil {
+		if errors.Is(err, berrors.ErrTimeout) {
+			return nil, &lockedError{cause: err}
+		}
+		return nil, fmt.Errorf("open %s: %w", path, err)
+	}
+	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare}
+	err = b.Update(func(tx *bolt.Tx) error {
+		for _, name := range allBuckets {
+			if _, err := tx.CreateBucketIfNotExists(name); err != nil {
+				return err
+			}
+		}
+		meta := tx.Bucket(BucketMeta)
+		if v := meta.Get(keySchema); v == nil {
+			if err := meta.Put(keySchema, []byte(schemaVersion)); err != nil {
+				return err
+			}
+		} else if string(v) != schemaVersion {
+			return fmt.Errorf("the data file has layout %q; this cornerbook reads layout %s — use a newer cornerbook", v, schemaVersion)
+		}
+		if meta.Get(keyEpoch) == nil {
+			return meta.Put(keyEpoch, []byte(newEpoch()))
+		}
+		return nil
+	})
+	if err != nil {
+		b.Close()
+		return nil, fmt.Errorf("open %s: %w", path, err)
+	}
+	return db, nil
+}
+
+// Close closes the file.
+func (db *DB) Close() error { return db.bolt.Close() }
+
+// Bolt is the underlying bbolt handle, for packages that keep their own
+// buckets in the same file (accounts, tokens).
+func (db *DB) Bolt() *bolt.DB { return db.bolt }
+
+func newEpoch() string {
+	var b [16]byte
+	if _, err := rand.Read(b[:]); err != nil {
+		panic(err) // crypto/rand never fails on supported platforms
+	}
+	return hex.EncodeToString(b[:])
+}
+
+// Epoch is the store's random id. It changes on restore, which tells
+// devices to pull from zero and re-push what they wrote.
+func (db *DB) Epoch() (string, error) {
+	var e string
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		e = string(tx.Bucket(BucketMeta).Get(keyEpoch))
+		return nil
+	})
+	return e, err
+}
+
+// RotateEpoch gives the store a new random epoch and returns it.
+func (db *DB) RotateEpoch() (string, error) {
+	e := newEpoch()
+	err := db.bolt.Update(func(tx *bolt.Tx) error {
+		return tx.Bucket(BucketMeta).Put(keyEpoch, []byte(e))
+	})
+	if err != nil {
+		return "", err
+	}
+	return e, nil
+}
+
+// MaxSeq is the latest change sequence.
+func (db *DB) MaxSeq() (uint64, error) {
+	var s uint64
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		s = tx.Bucket(BucketChanges).Sequence()
+		return nil
+	})
+	return s, err
+}
+
+// Device returns the push state of one device, ErrNotFound if it never
+// pushed.
+func (db *DB) Device(id string) (DeviceState, error) {
+	var st DeviceState
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		v := tx.Bucket(BucketDevices).Get([]byte(id))
+		if v == nil {
+			return ErrNotFound
+		}
+		return json.Unmarshal(v, &st)
+	})
+	return st, err
+}
+
+// WriteTo writes a consistent copy of the whole file (a hot backup) to w
+// from inside one read transaction; writers are not blocked.
+func (db *DB) WriteTo(w io.Writer) (int64, error) {
+	var n int64
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		var err error
+		n, err = tx.WriteTo(w)
+		return err
+	})
+	return n, err
+}
+
+func u64(v uint64) []byte {
+	var b [8]byte
+	binary.BigEndian.PutUint64(b[:], v)
+	return b[:]
+}
+
+func versionKey(id string, seq uint64) []byte {
+	k := make([]byte, 0, len(id)+9)
+	k = append(k, id...)
+	k = append(k, '|')
+	return append(k, u64(seq)...)
+}
+
+func indexKey(r *devsync.Record) []byte {
+	k := make([]byte, 0, len(r.Athlete)+len(r.Kind)+len(r.Day)+len(r.ID)+3)
+	k = append(k, r.Athlete...)
+	k = append(k, '|')
+	k = append(k, r.Kind...)
+	k = append(k, '|')
+	k = append(k, r.Day...)
+	k = append(k, '|')
+	return append(k, r.ID...)
+}
+
+// parseIndexKey splits athlete|kind|day|id.
+func parseIndexKey(k []byte) (athlete, kind, day, id string, ok bool) {
+	parts := bytes.SplitN(k, []byte{'|'}, 4)
+	if len(parts) != 4 {
+		return "", "", "", "", false
+	}
+	return string(parts[0]), string(parts[1]), string(parts[2]), string(parts[3]), true
+}
+
+// decode unmarshals a stored record; the JSON decoder copies every byte,
+// so the result is safe to use after the transaction.
+func decode(v []byte) (devsync.Record, error) {
+	var r devsync.Record
+	err := json.Unmarshal(v, &r)
+	return r, err
+}
