@@ -221,3 +221,16 @@ func RollingRatios(daily []float64) (coupled, uncoupled float64, ok bool) {
 func WeeklyRatios(w1, w2, w3, w4 float64) (coupled, uncoupled float64) {
 	return ratio(w4, (w1+w2+w3+w4)/4), ratio(w4, (w1+w2+w3)/3)
 }
+
+// ChangePct is the change from baseline to x as a percentage of the
+// baseline (negative for a drop).
+func ChangePct(baseline, x float64) float64 { return (x - baseline) / baseline * 100 }
+
+// ChangeTE is the change from baseline to x in units of the typical error
+// (Hopkins 2000); NaN if te is not positive.
+func ChangeTE(baseline, x, te float64) float64 {
+	if !(te > 0) {
+		return math.NaN()
+	}
+	return (x - baseline) / te
+}

@@ -167,3 +167,17 @@ func TestEmptyInputs(t *testing.T) {
 	}
 	near(t, "CV", CVPercent([]float64{40.0, 41.0, 39.5, 40.5, 39.0}), 100*0.7906/40, 0.001)
 }
+
+// CMJ drop against a baseline, REFERENCES §1.5 [D]: baseline 40.0 cm, today
+// 37.0 cm → −7.5 %, and −2.5 typical errors with TE 1.2 cm (Hopkins 2000
+// typical-error concept).
+func TestChange(t *testing.T) {
+	base := []float64{40.0, 41.0, 39.5, 40.5, 39.0}
+	near(t, "baseline mean", Mean(base), 40.0, 1e-12)
+	near(t, "baseline SD", SD(base), 0.7906, 0.0005)
+	near(t, "change %", ChangePct(40, 37), -7.5, 0.01)
+	near(t, "change TE", ChangeTE(40, 37, 0.03*40), -2.5, 0.01)
+	if !math.IsNaN(ChangeTE(40, 37, 0)) {
+		t.Error("TE 0 must be NaN")
+	}
+}

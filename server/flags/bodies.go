@@ -1,0 +1,89 @@
+package flags
+
+// The record bodies as the rules read them: only the fields a rule uses,
+// with the JSON names of the record format (PRODUCT.md, "Record format").
+// Decoding these small shapes instead of the full kinds keeps the engine
+// independent of validation code and skips fields no rule reads (notes).
+
+// Kind names of the record format.
+const (
+	kindAthlete   = "athlete"
+	kindSettings  = "settings"
+	kindBout      = "bout"
+	kindCheckin   = "checkin"
+	kindJump      = "jump"
+	kindRound     = "round"
+	kindSession   = "session"
+	kindIncident  = "incident"
+	kindClearance = "clearance"
+	kindDecision  = "decision"
+)
+
+type checkinBody struct {
+	MassKg   *float64 `json:"mass_kg"`
+	Sleep    *int     `json:"sleep"`
+	Fatigue  *int     `json:"fatigue"`
+	Soreness *int     `json:"soreness"`
+	Stress   *int     `json:"stress"`
+	Mood     *int     `json:"mood"`
+	USG      *float64 `json:"usg"`
+}
+
+type jumpBody struct {
+	Test      string    `json:"test"`
+	HeightsCm []float64 `json:"heights_cm"`
+	FlightMs  []float64 `json:"flight_ms"`
+	Method    string    `json:"method"`
+}
+
+type roundBody struct {
+	Activity  string `json:"activity"`
+	Seconds   int    `json:"seconds"`
+	Intensity int    `json:"intensity"`
+}
+
+// sessionBody is the part of a session body the rules read.
+type sessionBody struct {
+	Minutes float64 `json:"minutes"`
+	RPE     float64 `json:"rpe"`
+	LoadAU  float64 `json:"load_au"`
+	Focus   string  `json:"focus"`
+}
+
+type incidentBody struct {
+	Type string `json:"type"`
+}
+
+type clearanceBody struct {
+	Incident string `json:"incident"`
+	By       string `json:"by"`
+}
+
+type decisionBody struct {
+	Rule string `json:"rule"`
+	Note string `json:"note"`
+	By   string `json:"by"`
+}
+
+type knotBody struct {
+	Day    string  `json:"day"`
+	MassKg float64 `json:"mass_kg"`
+}
+
+type weekBody struct {
+	Week          int    `json:"week"`
+	Level         string `json:"level"`
+	SparCapRounds *int   `json:"spar_cap_rounds"`
+}
+
+type boutBody struct {
+	CampStart       string     `json:"camp_start"`
+	WeighIn         string     `json:"weigh_in"`
+	WeighInType     string     `json:"weigh_in_type"`
+	BoutDay         string     `json:"bout_day"`
+	LimitKg         float64    `json:"limit_kg"`
+	StartMassKg     float64    `json:"start_mass_kg"`
+	ReferenceLoadAU float64    `json:"reference_load_au"`
+	Path            []knotBody `json:"path"`
+	Weeks           []weekBody `json:"weeks"`
+}

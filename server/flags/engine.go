@@ -1,0 +1,326 @@
+package flags
+
+import (
+	"encoding/json"
+	"math"
+	"sort"
+	"time"
+
+	"cornerbook/server/flags/day"
+	devsync "cornerbook/sync"
+)
+
+// recentDays is how many days ending the evaluated day are indexed in full
+// (check-ins, jumps, rounds): the longest window any rule reads (the
+// 28-day baselines plus the day, and the mass trend's 42 days).
+const recentDays = 42
+
+type checkin struct {
+	id   string
+	at   string
+	body checkinBody
+}
+
+type jump struct {
+	id      string
+	method  string
+	heights []float64 // valid attempts, cm
+}
+
+type round struct {
+	id   string
+	at   string
+	body roundBody
+}
+
+type session struct {
+	id     string
+	day    day.Number
+	loadAU float64
+	focus  string
+}
+
+type incident struct {
+	id   string
+	at   string
+	day  day.Number
+	kind string
+}
+
+type recent struct {
+	checkins []checkin
+	jumps    []jump
+	rounds   []round
+}
+
+type engine struct {
+	in    *Input
+	today day.Number
+	first day.Number // earliest day among the athlete's records (≤ today)
+
+	recent [recentDays]recent // recent[i] is day today−i
+	loads  []float64          // daily session load from first to today
+	// sessions in the last recentDays days, oldest first (for inputs).
+	sessions   []session
+	lastFocus  map[string]session // latest session per focus
+	incidents  []incident
+	clearances map[string]string // incident id → clearance record id (on or before today)
+	clearedBy  map[string]string
+	decisions  []devsync.Record // today's decisions
+
+	bout *plan
+	out  []Flag
+}
+
+func newEngine(in *Input) (*engine, bool) {
+	today, err := day.Parse(in.Day)
+	if err != nil {
+		return nil, false
+	}
+	e := &engine{in: in, today: today, first: today}
+	athlete := in.Athlete.ID
+	// Pass 1: find the first day, so the load series can be sized once.
+	for i := range in.Records {
+		r := &in.Records[i]
+		if r.Deleted || (athlete != "" && r.Athlete != athlete) {
+			continue
+		}
+		d, ok := dayOf(r.Day)
+		if ok && d < e.first && r.Kind != kindAthlete && r.Kind != kindBout && r.Kind != kindSettings {
+			e.first = d
+		}
+	}
+	e.loads = make([]float64, int(today-e.first)+1)
+	// Pass 2: index each record under its day, decoding only the bodies a
+	// rule will read.
+	for i := range in.Records {
+		r := &in.Records[i]
+		if r.Deleted || (athlete != "" && r.Athlete != athlete) {
+			continue
+		}
+		d, ok := dayOf(r.Day)
+		if !ok || d > today || d < e.first {
+			continue
+		}
+		age := int(today - d)
+		switch r.Kind {
+		case kindCheckin:
+			if age < recentDays {
+				var b checkinBody
+				if json.Unmarshal(r.Body, &b) == nil {
+					e.recent[age].checkins = append(e.recent[age].checkins, checkin{r.ID, r.At, b})
+				}
+			}
+		case kindJump:
+			if age < recentDays {
+				var b jumpBody
+				if json.Unmarshal(r.Body, &b) == nil && (b.Test == "" || b.Test == "cmj") {
+					if h := validHeights(&b); len(h) > 0 {
+						e.recent[age].jumps = append(e.recent[age].jumps, jump{r.ID, b.Method, h})
+					}
+				}
+			}
+		case kindRound:
+			if age < recentDays {
+				var b roundBody
+				if json.Unmarshal(r.Body, &b) == nil {
+					e.recent[age].rounds = append(e.recent[age].rounds, round{r.ID, r.At, b})
+				}
+			}
+		case kindSession:
+			var b sessionBody
+			if json.Unmarshal(r.Body, &b) != nil {
+				continue
+			}
+			s := session{id: r.ID, day: d, loadAU: b.load(), focus: b.Focus}
+			e.loads[d-e.first] += s.loadAU
+			if age < recentDays {
+				e.sessions = append(e.sessions, s)
+			}
+			if s.focus != "" {
+				if e.lastFocus == nil {
+					e.lastFocus = map[string]session{}
+				}
+				if old, ok := e.lastFocus[s.focus]; !ok || s.day > old.day {
+					e.lastFocus[s.focus] = s
+				}
+			}
+		case kindIncident:
+			var b incidentBody
+			if json.Unmarshal(r.Body, &b) == nil {
+				e.incidents = append(e.incidents, incident{r.ID, r.At, d, b.Type})
+			}
+		case kindClearance:
+			var b clearanceBody
+			if json.Unmarshal(r.Body, &b) == nil && b.Incident != "" {
+				if e.clearances == nil {
+					e.clearances, e.clearedBy = map[string]string{}, map[string]string{}
+				}
+				e.clearances[b.Incident] = r.ID
+				e.clearedBy[b.Incident] = b.By
+			}
+		case kindDecision:
+			if d == today {
+				e.decisions = append(e.decisions, *r)
+			}
+		}
+	}
+	sort.Slice(e.sessions, func(i, j int) bool { return e.sessions[i].day < e.sessions[j].day })
+	sort.Slice(e.incidents, func(i, j int) bool { return e.incidents[i].day < e.incidents[j].day })
+	if in.Bout != nil && !in.Bout.Deleted {
+		e.bout = parsePlan(in.Bout)
+	}
+	return e, true
+}
+
+func dayOf(s string) (day.Number, bool) {
+	if s == "" {
+		return 0, false
+	}
+	d, err := day.Parse(s)
+	return d, err == nil
+}
+
+// load is the session load in AU: the stored derived value, else
+// RPE × minutes (Foster et al. 2001).
+func (b *sessionBody) load() float64 {
+	if b.LoadAU > 0 {
+		return b.LoadAU
+	}
+	if b.RPE > 0 && b.Minutes > 0 {
+		return b.RPE * b.Minutes
+	}
+	return 0
+}
+
+// at returns the indexed data of day d (nil outside the recent window).
+func (e *engine) at(d day.Number) *recent {
+	age := int(e.today - d)
+	if age < 0 || age >= recentDays {
+		return nil
+	}
+	return &e.recent[age]
+}
+
+// historyDays is how many calendar days of records the athlete has,
+// today included.
+func (e *engine) historyDays() int { return int(e.today-e.first) + 1 }
+
+// dailyLoads returns the daily loads of the n days ending today (days
+// before the first record count as 0).
+func (e *engine) dailyLoads(n int) []float64 {
+	out := make([]float64, n)
+	for i := 0; i < n; i++ {
+		idx := len(e.loads) - n + i
+		if idx >= 0 {
+			out[i] = e.loads[idx]
+		}
+	}
+	return out
+}
+
+// sessionIDs lists the sessions from day from through today.
+func (e *engine) sessionIDs(from day.Number) []string {
+	var ids []string
+	for _, s := range e.sessions {
+		if s.day >= from && s.loadAU > 0 {
+			ids = append(ids, s.id)
+		}
+	}
+	return ids
+}
+
+// morningMass returns the day's morning mass: the earliest check-in of the
+// day (by its time) that carries one.
+func (e *engine) morningMass(d day.Number) (float64, string, bool) {
+	r := e.at(d)
+	if r == nil {
+		return 0, "", false
+	}
+	best, id, found := 0.0, "", false
+	var bestAt time.Time
+	for _, c := range r.checkins {
+		if c.body.MassKg == nil || !(*c.body.MassKg > 0) {
+			continue
+		}
+		t, _ := time.Parse(time.RFC3339, c.at)
+		if !found || t.Before(bestAt) {
+			best, id, bestAt, found = *c.body.MassKg, c.id, t, true
+		}
+	}
+	return best, id, found
+}
+
+// massSeries lists morning masses from day from through today, oldest first.
+func (e *engine) massSeries(from day.Number) (days []day.Number, kg []float64, ids []string) {
+	if lo := e.today - recentDays + 1; from < lo {
+		from = lo
+	}
+	for d := from; d <= e.today; d++ {
+		if m, id, ok := e.morningMass(d); ok {
+			days = append(days, d)
+			kg = append(kg, m)
+			ids = append(ids, id)
+		}
+	}
+	return
+}
+
+func f64(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+func (e *engine) add(f Flag) {
+	f.Athlete = e.in.Athlete.ID
+	f.Day = e.in.Day
+	if f.Status == "" {
+		f.Status = StatusFlag
+	}
+	if f.Inputs == nil {
+		f.Inputs = []string{}
+	}
+	e.out = append(e.out, f)
+}
+
+func (e *engine) forming(rule, reason string, inputs []string) {
+	e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Reason: reason, Inputs: inputs})
+}
+
+// has reports whether a flag of rule at level was raised today.
+func (e *engine) has(rule, level string) bool {
+	for i := range e.out {
+		if e.out[i].Rule == rule && e.out[i].Level == level && e.out[i].Status == StatusFlag {
+			return true
+		}
+	}
+	return false
+}
+
+// attachDecisions marks flags acknowledged by a decision recorded the same
+// day for the same rule; with several, the latest version stamp wins.
+func (e *engine) attachDecisions() {
+	if len(e.decisions) == 0 {
+		return
+	}
+	latest := map[string]*devsync.Record{}
+	refs := map[string]*DecisionRef{}
+	for i := range e.decisions {
+		r := &e.decisions[i]
+		var b decisionBody
+		if json.Unmarshal(r.Body, &b) != nil || b.Rule == "" {
+			continue
+		}
+		if old := latest[b.Rule]; old == nil || r.Stamp.Compare(old.Stamp) > 0 || (r.Stamp == old.Stamp && r.ID > old.ID) {
+			latest[b.Rule] = r
+			refs[b.Rule] = &DecisionRef{ID: r.ID, Note: b.Note, By: b.By}
+		}
+	}
+	for i := range e.out {
+		if ref := refs[e.out[i].Rule]; ref != nil {
+			e.out[i].Decision = ref
+		}
+	}
+}

@@ -1,0 +1,162 @@
+// Package flags is Cornerbook's flag engine: for one athlete and one camp
+// day it turns the athlete's records into the day's flags, each with a
+// level, the numbers behind it, the thresholds it used, a plain-language
+// reason and, where health is involved, a caution.
+//
+// The package is pure. It does no I/O and reads no clock: the day, the
+// hub's time (for the check-in hour) and the records are passed in. Days
+// are the records' own day strings (the camp's local day chosen on the
+// device); windows count calendar days on those strings (package day) and
+// never derive a day from a UTC timestamp.
+//
+// Flags are prompts for the coach's judgement. Where the data cannot yet
+// support a rule, the rule says so with a "forming" flag instead of staying
+// silent, so that "no flag" never means "not enough data".
+//
+// Statistics live in package stats; the rule functions here are small and
+// each is tested against the rule as the product states it.
+package flags
+
+import (
+	"sort"
+	"time"
+
+	devsync "cornerbook/sync"
+)
+
+// Levels, most serious first.
+const (
+	LevelAlert = "alert"
+	LevelWatch = "watch"
+	LevelInfo  = "info"
+)
+
+// Statuses.
+const (
+	StatusFlag    = "flag"
+	StatusForming = "forming" // not enough data yet for the rule to judge
+)
+
+// Rule ids (fixed by the product; settings and decisions name them).
+const (
+	RuleJumpDrop       = "jump_drop"
+	RuleMassAbovePath  = "mass_above_path"
+	RuleMassLossFast   = "mass_loss_fast"
+	RuleCutAtRisk      = "cut_at_risk"
+	RuleSparDensity    = "spar_density"
+	RuleSparSpacing    = "spar_spacing"
+	RuleSparOnHold     = "spar_on_hold"
+	RuleLoadSpike      = "load_spike"
+	RuleMonotony       = "monotony"
+	RuleWellnessDrop   = "wellness_drop"
+	RuleHydration      = "hydration"
+	RuleMissingCheckin = "missing_checkin"
+	RuleOffPlan        = "off_plan"
+	RuleResidualGap    = "residual_gap"
+)
+
+// Rules lists every rule id in a stable order.
+var Rules = []string{
+	RuleJumpDrop, RuleMassAbovePath, RuleMassLossFast, RuleCutAtRisk,
+	RuleSparDensity, RuleSparSpacing, RuleSparOnHold, RuleLoadSpike,
+	RuleMonotony, RuleWellnessDrop, RuleHydration, RuleMissingCheckin,
+	RuleOffPlan, RuleResidualGap,
+}
+
+// Input is everything one athlete-day evaluation needs.
+type Input struct {
+	Day      string          // YYYY-MM-DD, the camp's local day being evaluated
+	Now      time.Time       // hub time, for missing_checkin's hour (read in Location); zero skips that rule
+	Location *time.Location  // camp time zone; nil means UTC
+	Athlete  devsync.Record  // the athlete record; its ID is the athlete id
+	Bout     *devsync.Record // current bout (nil if none)
+	// Settings are merged thresholds overriding the defaults
+	// (rule → parameter → value); absent entries take DefaultThresholds.
+	Settings map[string]map[string]float64
+	// Records are this athlete's live records (all kinds) over at least the
+	// 42 days ending Day. The load ratio runs from the earliest record
+	// given, and stand-downs need every incident and clearance, so the
+	// caller passes those from the start of the athlete's history. Records
+	// after Day, deleted records and records of other athletes are ignored.
+	Records []devsync.Record
+}
+
+// Flag is one finding for one athlete on one day.
+type Flag struct {
+	Athlete string `json:"athlete"`
+	Day     string `json:"day"`
+	Rule    string `json:"rule"`
+	Level   string `json:"level"`  // info | watch | alert
+	Status  string `json:"status"` // "flag" or "forming" (not enough data yet — never reported as clean)
+	// Value, Reference and Threshold share Unit. Reference is what the
+	// value is compared against (a baseline or a plan), nil where the rule
+	// has none; Threshold is the crossing point the level came from.
+	Value         *float64 `json:"value"`
+	Reference     *float64 `json:"reference"`
+	Threshold     *float64 `json:"threshold"`
+	ThresholdName string   `json:"threshold_name"` // which setting was used, e.g. "jump_drop.watch_pct"
+	Unit          string   `json:"unit"`
+	Reason        string   `json:"reason"`            // one sentence with the numbers
+	Inputs        []string `json:"inputs"`            // record ids used
+	Caution       string   `json:"caution,omitempty"` // for mass, hydration, head impact and load
+	// Details carries extra numbers (e.g. best_cm, drop_te, strain).
+	Details  map[string]float64 `json:"details,omitempty"`
+	Decision *DecisionRef       `json:"decision,omitempty"` // the coach's acknowledgement, if recorded that day
+}
+
+// DecisionRef points at the decision record that acknowledged a flag.
+type DecisionRef struct {
+	ID   string `json:"id"`
+	Note string `json:"note"`
+	By   string `json:"by,omitempty"`
+}
+
+// Compute evaluates every rule for in.Athlete on in.Day. The result is
+// sorted most serious first (alert, watch, info, then forming), then by
+// rule id. A Day that is not a calendar date gives no flags.
+func Compute(in Input) []Flag {
+	e, ok := newEngine(&in)
+	if !ok {
+		return nil
+	}
+	e.jumpDrop()
+	e.wellnessDrop()
+	e.massAbovePath()
+	e.massLossFast()
+	e.cutAtRisk()
+	e.sparDensity()
+	e.sparSpacing() // after jump_drop and wellness_drop: it reads their alerts
+	e.sparOnHold()
+	e.loadSpike()
+	e.monotony()
+	e.hydration()
+	e.missingCheckin()
+	e.offPlan()
+	e.residualGap()
+	e.attachDecisions()
+	sortFlags(e.out)
+	return e.out
+}
+
+func rank(f *Flag) int {
+	if f.Status == StatusForming {
+		return 3
+	}
+	switch f.Level {
+	case LevelAlert:
+		return 0
+	case LevelWatch:
+		return 1
+	}
+	return 2
+}
+
+func sortFlags(fs []Flag) {
+	sort.SliceStable(fs, func(i, j int) bool {
+		ri, rj := rank(&fs[i]), rank(&fs[j])
+		if ri != rj {
+			return ri < rj
+		}
+		return fs[i].Rule < fs[j].Rule
+	})
+}

@@ -1,0 +1,179 @@
+package flags
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"time"
+
+	"cornerbook/server/flags/day"
+	"cornerbook/server/flags/stats"
+)
+
+// wellnessItems are the five items (1–5, 5 = best; McLean et al. 2010).
+var wellnessItems = []string{"fatigue", "sleep", "soreness", "stress", "mood"}
+
+func items(c *checkinBody) [5]*int {
+	return [5]*int{c.Fatigue, c.Sleep, c.Soreness, c.Stress, c.Mood}
+}
+
+// wellnessTotal returns day d's total from its earliest complete check-in.
+func (e *engine) wellnessTotal(d day.Number) (total float64, id string, body *checkinBody, ok bool) {
+	r := e.at(d)
+	if r == nil {
+		return 0, "", nil, false
+	}
+	var bestAt time.Time
+	for i := range r.checkins {
+		c := &r.checkins[i]
+		sum, complete := 0, true
+		for _, v := range items(&c.body) {
+			if v == nil {
+				complete = false
+				break
+			}
+			sum += *v
+		}
+		if !complete {
+			continue
+		}
+		t, _ := time.Parse(time.RFC3339, c.at)
+		if !ok || t.Before(bestAt) {
+			total, id, body, bestAt, ok = float64(sum), c.id, &c.body, t, true
+		}
+	}
+	return
+}
+
+// wellnessDrop: today's wellness total as a z-score against the previous
+// window's totals; and any single item at its worst.
+func (e *engine) wellnessDrop() {
+	const rule = RuleWellnessDrop
+	// Any single item at the worst level, in any of today's check-ins.
+	itemMin := int(e.param(rule, "item_min"))
+	if r := e.at(e.today); r != nil {
+		var worst []string
+		var ids []string
+		for i := range r.checkins {
+			c := &r.checkins[i]
+			hit := false
+			for k, v := range items(&c.body) {
+				if v != nil && *v <= itemMin {
+					worst = appendUnique(worst, wellnessItems[k])
+					hit = true
+				}
+			}
+			if hit {
+				ids = append(ids, c.id)
+			}
+		}
+		if len(worst) > 0 {
+			e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(itemMin)), Threshold: f64(float64(itemMin)),
+				ThresholdName: rule + ".item_min", Unit: "points", Inputs: ids,
+				Reason: fmt.Sprintf("Wellness item at its worst (%d of 5) today: %s.", itemMin, strings.Join(worst, ", "))})
+		}
+	}
+	total, id, _, ok := e.wellnessTotal(e.today)
+	if !ok {
+		return
+	}
+	window := int(e.param(rule, "window_days"))
+	minN := int(e.param(rule, "min_checkins"))
+	var base []float64
+	inputs := []string{id}
+	for d := e.today - day.Number(window); d < e.today; d++ {
+		if t, bid, _, ok := e.wellnessTotal(d); ok {
+			base = append(base, t)
+			inputs = append(inputs, bid)
+		}
+	}
+	if len(base) < minN || len(base) < 2 {
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Value: f64(total), Unit: "points", Inputs: inputs,
+			Reason: fmt.Sprintf("Wellness %.0f of 25 today; baseline forming: %d of %d check-ins in the last %d days.", total, len(base), minN, window)})
+		return
+	}
+	mean, sd := stats.Mean(base), stats.SD(base)
+	sdUsed := math.Max(sd, e.param(rule, "sd_floor"))
+	z := stats.Z(total, mean, sdUsed)
+	level, name := "", ""
+	switch {
+	case z <= e.param(rule, "alert_z"):
+		level, name = LevelAlert, "alert_z"
+	case z <= e.param(rule, "watch_z"):
+		level, name = LevelWatch, "watch_z"
+	default:
+		return
+	}
+	thrZ := e.param(rule, name)
+	e.add(Flag{Rule: rule, Level: level, Value: f64(total), Reference: f64(mean), Threshold: f64(mean + thrZ*sdUsed),
+		ThresholdName: rule + "." + name, Unit: "points", Inputs: inputs,
+		Details: map[string]float64{"z": z, "sd": sd, "sd_used": sdUsed, "threshold_z": thrZ, "baseline_checkins": float64(len(base))},
+		Reason: fmt.Sprintf("Wellness %.0f of 25, %.1f SD below the %d-day mean of %.1f (SD %.1f, %d check-ins).",
+			total, -z, window, mean, sdUsed, len(base))})
+}
+
+func appendUnique(xs []string, s string) []string {
+	for _, x := range xs {
+		if x == s {
+			return xs
+		}
+	}
+	return append(xs, s)
+}
+
+// hydration: the day's highest urine specific gravity reading.
+func (e *engine) hydration() {
+	const rule = RuleHydration
+	r := e.at(e.today)
+	if r == nil {
+		return
+	}
+	usg, id := 0.0, ""
+	for _, c := range r.checkins {
+		if c.body.USG != nil && *c.body.USG > usg {
+			usg, id = *c.body.USG, c.id
+		}
+	}
+	if id == "" {
+		return
+	}
+	watch, alert := e.param(rule, "watch_usg"), e.param(rule, "alert_usg")
+	f := Flag{Rule: rule, Value: f64(usg), Unit: "USG", Inputs: []string{id}, Caution: CautionHydration}
+	switch {
+	case usg > alert:
+		f.Level, f.Threshold, f.ThresholdName = LevelAlert, f64(alert), rule+".alert_usg"
+		f.Reason = fmt.Sprintf("Urine specific gravity %.3f, above %.3f.", usg, alert)
+	case usg >= watch:
+		f.Level, f.Threshold, f.ThresholdName = LevelWatch, f64(watch), rule+".watch_usg"
+		f.Reason = fmt.Sprintf("Urine specific gravity %.3f, at or above %.3f.", usg, watch)
+	default:
+		return
+	}
+	e.add(f)
+}
+
+// missingCheckin: no check-in for the day by the configured local hour.
+func (e *engine) missingCheckin() {
+	const rule = RuleMissingCheckin
+	if e.in.Now.IsZero() {
+		return
+	}
+	if r := e.at(e.today); r != nil && len(r.checkins) > 0 {
+		return
+	}
+	loc := e.in.Location
+	if loc == nil {
+		loc = time.UTC
+	}
+	now := e.in.Now.In(loc)
+	nowDay := day.Of(now)
+	hour := e.param(rule, "hour")
+	clock := float64(now.Hour()) + float64(now.Minute())/60
+	if nowDay < e.today || (nowDay == e.today && clock < hour) {
+		return // the day's check-in is not due yet
+	}
+	h := int(hour)
+	m := int(math.Round((hour - float64(h)) * 60))
+	e.add(Flag{Rule: rule, Level: LevelInfo, Threshold: f64(hour), ThresholdName: rule + ".hour", Unit: "h",
+		Reason: fmt.Sprintf("No morning check-in for %s by %02d:%02d camp time.", e.in.Day, h, m)})
+}

@@ -1,0 +1,152 @@
+package flags
+
+import (
+	"fmt"
+	"math"
+
+	"cornerbook/server/flags/day"
+	"cornerbook/server/flags/stats"
+)
+
+// massWindowStart is the first day of the mass trend: camp start, or the
+// start of the indexed window if the camp began earlier.
+func (e *engine) massWindowStart() day.Number {
+	from := e.today - recentDays + 1
+	if e.bout != nil && e.bout.hasCamp && e.bout.campStart > from {
+		from = e.bout.campStart
+	}
+	return from
+}
+
+// trend is the exponentially weighted mean of the morning masses, seeded
+// with the first (λ = 2/(n+1)).
+func (e *engine) trend() (trend, latest float64, latestDay day.Number, ids []string, ok bool) {
+	days, kg, ids := e.massSeries(e.massWindowStart())
+	if len(kg) == 0 {
+		return 0, 0, 0, nil, false
+	}
+	t := stats.EWMA(kg, stats.Lambda(e.param(RuleMassAbovePath, "ewma_n")))
+	return t, kg[len(kg)-1], days[len(days)-1], ids, true
+}
+
+// massAbovePath: the mass trend against the planned path for the day.
+func (e *engine) massAbovePath() {
+	const rule = RuleMassAbovePath
+	p := e.bout
+	if !p.massReady() || e.today < p.campStart || e.today > p.weighIn {
+		return
+	}
+	trend, latest, latestDay, ids, ok := e.trend()
+	if !ok {
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: []string{p.id},
+			Reason: "Mass trend forming: no morning mass logged in this camp yet."})
+		return
+	}
+	planned := PathAt(e.path(), e.today)
+	limit := p.body.LimitKg
+	excess := trend - planned
+	pct := excess / limit * 100
+	level, name := "", ""
+	switch {
+	case pct > e.param(rule, "alert_pct"):
+		level, name = LevelAlert, "alert_pct"
+	case pct > e.param(rule, "watch_pct"):
+		level, name = LevelWatch, "watch_pct"
+	default:
+		return
+	}
+	thr := planned + e.param(rule, name)/100*limit
+	e.add(Flag{Rule: rule, Level: level, Value: f64(trend), Reference: f64(planned), Threshold: f64(thr),
+		ThresholdName: rule + "." + name, Unit: "kg", Inputs: append(ids, p.id), Caution: CautionMass,
+		Details: map[string]float64{"excess_kg": excess, "excess_pct_of_limit": pct, "latest_kg": latest, "limit_kg": limit},
+		Reason: fmt.Sprintf("Mass trend %.1f kg is %.1f kg (%.1f %% of the %.1f kg limit) above the planned %.1f kg for today; latest morning mass %.1f kg on %s.",
+			trend, excess, pct, limit, planned, latest, latestDay)})
+}
+
+// inFinalDays reports whether today is in the final days before weigh-in
+// (weigh-in day included).
+func (e *engine) inFinalDays(n float64) bool {
+	p := e.bout
+	return p != nil && p.hasWeighIn && e.today <= p.weighIn && e.today >= p.weighIn-day.Number(n)
+}
+
+// massLossFast: least-squares slope of the morning masses over the window,
+// as % of the trend mass per week.
+func (e *engine) massLossFast() {
+	const rule = RuleMassLossFast
+	if e.inFinalDays(e.param(rule, "final_days")) {
+		return // the planned acute phase is judged by the medical team, not this rule
+	}
+	window := int(e.param(rule, "window_days"))
+	minN := int(e.param(rule, "min_checkins"))
+	days, kg, ids := e.massSeries(e.today - day.Number(window) + 1)
+	if len(kg) == 0 {
+		return // no masses at all: nothing to say beyond missing_checkin
+	}
+	if len(kg) < minN {
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: ids,
+			Reason: fmt.Sprintf("Rate of loss forming: %d of %d morning masses in the last %d days.", len(kg), minN, window)})
+		return
+	}
+	x := make([]float64, len(days))
+	for i, d := range days {
+		x[i] = float64(d - days[0])
+	}
+	slope := stats.Slope(x, kg) // kg per day
+	trend, _, _, _, _ := e.trend()
+	loss := -slope * 7 / trend * 100
+	level, name := "", ""
+	switch {
+	case loss > e.param(rule, "alert_pct_week"):
+		level, name = LevelAlert, "alert_pct_week"
+	case loss > e.param(rule, "watch_pct_week"):
+		level, name = LevelWatch, "watch_pct_week"
+	default:
+		return
+	}
+	e.add(Flag{Rule: rule, Level: level, Value: f64(loss), Threshold: f64(e.param(rule, name)),
+		ThresholdName: rule + "." + name, Unit: "%/week", Inputs: ids, Caution: CautionMass,
+		Details: map[string]float64{"slope_kg_week": slope * 7, "trend_kg": trend, "checkins": float64(len(kg))},
+		Reason: fmt.Sprintf("Morning mass falling %.2f kg a week over the last %d days (%d check-ins), %.1f %% of the %.1f kg trend per week, above %.1f %%/week; 0.7 %%/week preserved lean mass better in trained athletes (Garthe et al. 2011).",
+			-slope*7, window, len(kg), loss, trend, e.param(rule, name))})
+}
+
+// cutAtRisk: the mass still to lose in the final days if the trend falls
+// at the projection rate until then, as % of the projected mass.
+func (e *engine) cutAtRisk() {
+	const rule = RuleCutAtRisk
+	p := e.bout
+	if !p.massReady() || e.today < p.campStart || e.today > p.weighIn {
+		return
+	}
+	trend, _, _, ids, ok := e.trend()
+	if !ok {
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: []string{p.id},
+			Reason: "Cut projection forming: no morning mass logged in this camp yet."})
+		return
+	}
+	finalStart := p.weighIn - day.Number(e.param(rule, "final_days"))
+	ahead := math.Max(0, float64(finalStart-e.today))
+	rate := e.param(rule, "rate_pct_week")
+	projected := GeometricMass(trend, rate, ahead/7)
+	still := projected - p.body.LimitKg
+	pct := still / projected * 100
+	suffix, kind := "day_before", "day-before"
+	if p.sameDay {
+		suffix, kind = "same_day", "same-day"
+	}
+	level, name := "", ""
+	switch {
+	case pct > e.param(rule, "alert_pct_"+suffix):
+		level, name = LevelAlert, "alert_pct_"+suffix
+	case pct > e.param(rule, "watch_pct_"+suffix):
+		level, name = LevelWatch, "watch_pct_"+suffix
+	default:
+		return
+	}
+	e.add(Flag{Rule: rule, Level: level, Value: f64(pct), Threshold: f64(e.param(rule, name)),
+		ThresholdName: rule + "." + name, Unit: "%", Inputs: append(ids, p.id), Caution: CautionMass,
+		Details: map[string]float64{"projected_kg": projected, "still_kg": still, "limit_kg": p.body.LimitKg, "trend_kg": trend, "days_to_final": ahead},
+		Reason: fmt.Sprintf("At %.1f %%/week from today's %.1f kg trend, %.1f kg would remain %.0f days from now, %.1f kg (%.1f %%) above the %.1f kg limit for the final %.0f days, beyond %.1f %% for a %s weigh-in.",
+			rate, trend, projected, ahead, still, pct, p.body.LimitKg, e.param(rule, "final_days"), e.param(rule, name), kind)})
+}

@@ -1,0 +1,143 @@
+package flags
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"cornerbook/server/flags/day"
+)
+
+// offPlan: the week's load so far, projected to the week's end, against
+// the planned level; and a planned taper outside the 41–60 % cut.
+func (e *engine) offPlan() {
+	const rule = RuleOffPlan
+	p := e.bout
+	if p == nil || p.body.ReferenceLoadAU <= 0 {
+		return
+	}
+	ref := p.body.ReferenceLoadAU
+	// The plan's taper weeks, judged while they are current or ahead.
+	minCut, maxCut := e.param(rule, "taper_min_pct"), e.param(rule, "taper_max_pct")
+	taperFrac := e.param(rule, "level_taper")
+	cut := (1 - taperFrac) * 100
+	weeks := make([]int, 0, len(p.weekByIndex))
+	for k := range p.weekByIndex {
+		weeks = append(weeks, k)
+	}
+	sort.Ints(weeks)
+	for _, k := range weeks {
+		w := p.weekByIndex[k]
+		if w.Level != "taper" || !p.hasCamp {
+			continue
+		}
+		end := p.campStart + day.Number(7*k-1)
+		if e.today > end || e.today < p.campStart || (cut >= minCut && cut <= maxCut) {
+			continue
+		}
+		lo, hi := TaperBand(ref, minCut, maxCut)
+		thr, name := minCut, "taper_min_pct"
+		if cut > maxCut {
+			thr, name = maxCut, "taper_max_pct"
+		}
+		e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(cut), Threshold: f64(thr), ThresholdName: rule + "." + name,
+			Unit: "%", Inputs: []string{p.id},
+			Details: map[string]float64{"week": float64(k), "planned_au": taperFrac * ref, "band_low_au": lo, "band_high_au": hi},
+			Reason: fmt.Sprintf("Planned taper in week %d cuts load by %.0f %% of the %.0f AU reference week (%.0f AU); a cut of %.0f–%.0f %% (%.0f–%.0f AU) worked best (Bosquet et al. 2007).",
+				k, cut, ref, taperFrac*ref, minCut, maxCut, lo, hi)})
+	}
+	// This week's load against its planned level.
+	k, start, ok := p.week(e.today)
+	if !ok {
+		return
+	}
+	w, ok := p.weekByIndex[k]
+	if !ok || w.Level == "" {
+		return
+	}
+	frac := e.param(rule, "level_"+w.Level)
+	if _, known := defaults[rule]["level_"+w.Level]; !known {
+		if _, set := e.in.Settings[rule]["level_"+w.Level]; !set {
+			return // a level with no fraction: nothing to compare
+		}
+	}
+	planned := frac * ref
+	if planned <= 0 {
+		return
+	}
+	elapsed := int(e.today-start) + 1
+	inputs := e.sessionIDs(start)
+	if elapsed < int(e.param(rule, "min_days")) {
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Reference: f64(planned), Unit: "AU", Inputs: inputs,
+			Reason: fmt.Sprintf("Week %d load forming: day %d of 7, planned %s week of %.0f AU.", k, elapsed, w.Level, planned)})
+		return
+	}
+	soFar := 0.0
+	for _, l := range e.dailyLoads(elapsed) {
+		soFar += l
+	}
+	projected := soFar * 7 / float64(elapsed)
+	dev := (projected - planned) / planned * 100
+	tol := e.param(rule, "tolerance_pct")
+	if math.Abs(dev) <= tol {
+		return
+	}
+	dir, thr := "above", planned*(1+tol/100)
+	if dev < 0 {
+		dir, thr = "below", planned*(1-tol/100)
+	}
+	e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(projected), Reference: f64(planned), Threshold: f64(thr),
+		ThresholdName: rule + ".tolerance_pct", Unit: "AU", Inputs: inputs,
+		Details: map[string]float64{"so_far_au": soFar, "days": float64(elapsed), "deviation_pct": dev, "week": float64(k)},
+		Reason: fmt.Sprintf("Week %d: %.0f AU in %d days projects to %.0f AU, %.0f %% %s the planned %s week of %.0f AU (tolerance %.0f %%).",
+			k, soFar, elapsed, projected, math.Abs(dev), dir, w.Level, planned, tol)})
+}
+
+// residualGap: days since the last session of a quality whose training
+// effect fades (Issurin 2008), while the bout is ahead.
+func (e *engine) residualGap() {
+	const rule = RuleResidualGap
+	p := e.bout
+	if p == nil || !p.hasBoutDay || e.today >= p.boutDay {
+		return
+	}
+	type quality struct {
+		name   string
+		foci   []string
+		param  string
+		effect string
+	}
+	for _, q := range []quality{
+		{"max strength", []string{"max_strength"}, "max_strength_days", "30 ± 5"},
+		{"speed or plyometric", []string{"speed", "plyometric"}, "speed_days", "5 ± 3"},
+	} {
+		limit := e.param(rule, q.param)
+		var last session
+		found := false
+		for _, f := range q.foci {
+			if s, ok := e.lastFocus[f]; ok && (!found || s.day > last.day) {
+				last, found = s, true
+			}
+		}
+		if found {
+			gap := float64(e.today - last.day)
+			if gap <= limit {
+				continue
+			}
+			e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(gap), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
+				Unit: "days", Inputs: []string{last.id},
+				Reason: fmt.Sprintf("%.0f days since the last %s session (%s), over %.0f; its training effect lasts about %s days.",
+					gap, q.name, last.day, limit, q.effect)})
+			continue
+		}
+		span := float64(e.historyDays() - 1)
+		if span > limit {
+			e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(span), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
+				Unit: "days", Details: map[string]float64{"lower_bound": 1},
+				Reason: fmt.Sprintf("No %s session in the %.0f days on record, over %.0f; its training effect lasts about %s days.",
+					q.name, span, limit, q.effect)})
+			continue
+		}
+		e.forming(rule, fmt.Sprintf("No %s session yet in the %.0f days on record (window %.0f days).", q.name, span, limit), nil)
+	}
+}
