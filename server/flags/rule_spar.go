@@ -63,7 +63,7 @@ func (e *engine) sparDensity() {
 		e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(all)), Reference: f64(capRounds), Threshold: f64(capRounds),
 			ThresholdName: capName, Unit: "rounds", Inputs: ids,
 			Details: map[string]float64{"hard_rounds": float64(hard)},
-			Reason: fmt.Sprintf("%d sparring rounds in the %d days ending today, over the cap of %.0f.", all, window, capRounds)})
+			Reason:  fmt.Sprintf("%d sparring rounds in the %d days ending today, over the cap of %.0f.", all, window, capRounds)})
 	}
 	if hardCap := e.param(rule, "hard_cap_rounds"); float64(hard) > hardCap {
 		raised = true
