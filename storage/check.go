@@ -137,7 +137,7 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 				return
 			}
 		} else if !bytes.Equal(vk[len(prefix):], s) || !bytes.Equal(vv, v) {
-			if !add("record %q: newest version %x is not the current winner at %x", k, vk[len(prefix):], s) {
+			if !add("record %q: its newest version (seq %d) is not the stored winner (seq %d)", k, binary.BigEndian.Uint64(vk[len(prefix):]), binary.BigEndian.Uint64(s)) {
 				return
 			}
 		}

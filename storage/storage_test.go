@@ -1,12 +1,193 @@
 package storage_test
 
 import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"path/filepath"
+	"strings"
 	"testing"
+	"time"
+
+	bolt "go.etcd.io/bbolt"
 
 	"cornerbook/storage"
 	"cornerbook/storage/storagetest"
+	devsync "cornerbook/sync"
 )
 
 func TestConformance(t *testing.T) {
 	storagetest.RunConformance(t, func(t *testing.T) *storage.DB { return storagetest.MustOpen(t) })
+}
+
+// prepareCheckin stands in for the record kinds' Prepare: it validates
+// one body field and derives another.
+func prepareCheckin(r *devsync.Record) error {
+	var b map[string]any
+	if err := json.Unmarshal(r.Body, &b); err != nil {
+		return devsync.Invalid("body", "is not a JSON object")
+	}
+	m, ok := b["mass_kg"].(float64)
+	if !ok || m < 25 || m > 250 {
+		return devsync.Invalid("body.mass_kg", "must be between 25 and 250 kg")
+	}
+	b["mass_lb"] = float64(int(m/0.45359237*10+0.5)) / 10 // 1 lb = 0.45359237 kg exactly (international yard and pound agreement, 1959)
+	r.Body, _ = json.Marshal(b)
+	return nil
+}
+
+func TestPrepareValidatesAndDerives(t *testing.T) {
+	db := storagetest.MustOpen(t, storage.Options{Prepare: prepareCheckin})
+	g := storagetest.NewGen(1, "dev-a")
+	good := g.Checkin(g.ID(), storagetest.Day(0))
+	good.Body = []byte(`{"mass_kg":70}`)
+	bad := g.Checkin(good.Athlete, storagetest.Day(1))
+	bad.Body = []byte(`{"mass_kg":7}`)
+	del := g.Delete(g.Checkin(good.Athlete, storagetest.Day(2)))
+	del.Body = []byte(`{}`) // tombstones are not run through Prepare
+	res, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, good, bad, del)}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Applied != 2 || len(res.Rejected) != 1 {
+		t.Fatalf("push: %+v", res)
+	}
+	if rej := res.Rejected[0]; rej.N != 2 || rej.Field != "body.mass_kg" || rej.Reason != "must be between 25 and 250 kg" || rej.Code != devsync.CodeValidation {
+		t.Fatalf("rejection %+v", rej)
+	}
+	got, err := db.Get(good.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := `{"mass_kg":70,"mass_lb":154.3}`; string(got.Body) != want {
+		t.Fatalf("stored body %s, want derived fields %s", got.Body, want)
+	}
+	if string(res.Changed[0].Body) != string(got.Body) {
+		t.Fatalf("Changed carries %s, the store %s", res.Changed[0].Body, got.Body)
+	}
+}
+
+func TestPrepareMayNotBreakKeys(t *testing.T) {
+	db := storagetest.MustOpen(t, storage.Options{Prepare: func(r *devsync.Record) error { r.Day = "soon"; return nil }})
+	g := storagetest.NewGen(2, "dev-a")
+	res, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, g.Checkin(g.ID(), storagetest.Day(0)))}, nil)
+	if err != nil || len(res.Rejected) != 1 || res.Rejected[0].Field != "record.day" {
+		t.Fatalf("prepare that breaks the day: %+v %v", res, err)
+	}
+}
+
+func TestInjectedClockAndReopen(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "c.db")
+	at := time.Date(2026, 3, 4, 6, 0, 0, 0, time.UTC)
+	db, err := storage.Open(path, storage.Options{Now: func() time.Time { return at }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs := storagetest.Records(3, 2, 3)
+	if _, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, recs...)}, nil); err != nil {
+		t.Fatal(err)
+	}
+	epoch, _ := db.Epoch()
+	if err := db.Close(); err != nil {
+		t.Fatal(err)
+	}
+	db, err = storage.Open(path, storage.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	if e, _ := db.Epoch(); e != epoch {
+		t.Fatalf("epoch changed across a reopen: %s → %s", epoch, e)
+	}
+	st, err := db.Device("dev-a")
+	if err != nil || !st.LastPush.Equal(at) || st.LastN != 6 {
+		t.Fatalf("device after reopen: %+v %v", st, err)
+	}
+	if s, _ := db.MaxSeq(); s != 6 {
+		t.Fatalf("max seq after reopen %d", s)
+	}
+	// Sequences continue after a reopen.
+	res, _ := db.Push(devsync.PushRequest{Device: "dev-b", Mutations: storagetest.Mutations(1, storagetest.Records(4, 1, 1)...)}, nil)
+	if res.MaxSeq != 7 {
+		t.Fatalf("sequence after reopen %d, want 7", res.MaxSeq)
+	}
+	if err := db.Check(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func TestRefusesNewerLayout(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "c.db")
+	db, err := storage.Open(path, storage.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	db.Bolt().Update(func(tx *bolt.Tx) error { return tx.Bucket(storage.BucketMeta).Put([]byte("schema"), []byte("9")) })
+	db.Close()
+	if _, err := storage.Open(path, storage.Options{}); err == nil || !strings.Contains(err.Error(), "newer cornerbook") {
+		t.Fatalf("open of a newer layout: %v", err)
+	}
+}
+
+// TestCheckFindsDamage shows Check is not a rubber stamp: each kind of
+// damage to the invariants is reported.
+func TestCheckFindsDamage(t *testing.T) {
+	damage := map[string]func(tx *bolt.Tx, id []byte) error{
+		"stray index entry": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketIndex).Put([]byte("|checkin|2026-03-02|"+string(id)), nil)
+		},
+		"missing index entry": func(tx *bolt.Tx, id []byte) error {
+			c := tx.Bucket(storage.BucketIndex).Cursor()
+			k, _ := c.First()
+			return tx.Bucket(storage.BucketIndex).Delete(bytes.Clone(k))
+		},
+		"second change entry": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketChanges).Put([]byte{0, 0, 0, 0, 0, 0, 0, 99}, id)
+		},
+		"lost change entry": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketChanges).Delete([]byte{0, 0, 0, 0, 0, 0, 0, 1})
+		},
+		"record replaced behind the history": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketRecords).Put(id, bytes.Replace(tx.Bucket(storage.BucketRecords).Get(id), []byte(`"dev-gen"`), []byte(`"dev-x"`), 1))
+		},
+		"bad device state": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketDevices).Put([]byte("dev-a"), []byte("{"))
+		},
+	}
+	for name, fn := range damage {
+		t.Run(name, func(t *testing.T) {
+			db, err := storage.Open(filepath.Join(t.TempDir(), "c.db"), storage.Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer db.Close()
+			recs := storagetest.Records(5, 1, 3)
+			db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, recs...)}, nil)
+			if err := db.Check(); err != nil {
+				t.Fatalf("check before damage: %v", err)
+			}
+			if err := db.Bolt().Update(func(tx *bolt.Tx) error { return fn(tx, []byte(recs[0].ID)) }); err != nil {
+				t.Fatal(err)
+			}
+			if err := db.Check(); err == nil {
+				t.Fatal("check passed a damaged store")
+			} else {
+				t.Log(err)
+			}
+		})
+	}
+}
+
+func TestPushErrorsCommitNothing(t *testing.T) {
+	db := storagetest.MustOpen(t)
+	// A push whose counters go backwards is refused before any write.
+	recs := storagetest.Records(6, 1, 2)
+	muts := storagetest.Mutations(5, recs...)
+	muts[1].N = 4
+	if _, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: muts}, nil); err == nil || !strings.Contains(err.Error(), "mutations[1].n") {
+		t.Fatalf("decreasing counters: %v", err)
+	}
+	if _, err := db.Get(recs[0].ID); !errors.Is(err, storage.ErrNotFound) {
+		t.Fatal("the first mutation of a refused push was stored")
+	}
 }
