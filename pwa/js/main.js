@@ -1,1 +1,114 @@
-export {};
+// App entry: router, status bar, service-worker registration and update.
+import { html, render } from '/vendor/htm/standalone.module.js';
+import { useState, useEffect, useRoute, Link, navigate, plural } from './ui.js';
+import { onStatus, startSync } from './sync.js';
+import { deviceId } from './db.js';
+import { Home, Checkin, Session, Incident, Clearance } from './screens.js';
+import { Jumps, Rounds, Intervals } from './ring.js';
+import { Today } from './today.js';
+import { Settings } from './settings.js';
+
+const ROUTES = {
+  '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds, '/intervals': Intervals,
+  '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings,
+};
+
+// ---- service worker: register, detect a waiting update, reload once ----
+const sw = { waiting: null, build: '', subs: new Set() };
+function swPublish() { sw.subs.forEach((fn) => fn({ waiting: sw.waiting, build: sw.build })); }
+let userAskedReload = false;
+
+async function setupSW() {
+  if (!('serviceWorker' in navigator)) return;
+  navigator.serviceWorker.addEventListener('controllerchange', () => {
+    // Reload only when the user tapped "Update": the first install's claim also fires this.
+    if (userAskedReload) { userAskedReload = false; location.reload(); }
+  });
+  navigator.serviceWorker.addEventListener('message', (e) => {
+    if (e.data && e.data.type === 'BUILD') { sw.build = e.data.build; swPublish(); }
+  });
+  try {
+    const reg = await navigator.serviceWorker.register('/sw.js', { type: 'module', scope: '/', updateViaCache: 'none' });
+    const watch = (w) => {
+      if (!w) return;
+      w.addEventListener('statechange', () => {
+        if (w.state === 'installed' && navigator.serviceWorker.controller) { sw.waiting = w; swPublish(); }
+      });
+    };
+    if (reg.waiting && navigator.serviceWorker.controller) { sw.waiting = reg.waiting; swPublish(); }
+    reg.addEventListener('updatefound', () => watch(reg.installing));
+    document.addEventListener('visibilitychange', () => { if (document.visibilityState === 'visible') reg.update().catch(() => {}); });
+    setInterval(() => reg.update().catch(() => {}), 30 * 60 * 1000);
+    const ready = await navigator.serviceWorker.ready;
+    (navigator.serviceWorker.controller || ready.active)?.postMessage({ type: 'BUILD' });
+  } catch (e) {
+    console.warn('service worker not registered', e);
+  }
+}
+
+function applyUpdate() {
+  if (!sw.waiting) return;
+  userAskedReload = true;
+  sw.waiting.postMessage({ type: 'SKIP_WAITING' });
+}
+
+// ---- status bar: every state in plain words ----
+function ago(ms) {
+  const s = Math.max(0, Math.round((Date.now() - ms) / 1000));
+  if (s < 60) return 'just now';
+  const m = Math.round(s / 60);
+  if (m < 60) return `${m} min ago`;
+  const h = Math.round(m / 60);
+  if (h < 48) return `${h} h ago`;
+  return `${Math.round(h / 24)} days ago`;
+}
+
+function StatusBar() {
+  const [s, setS] = useState(null);
+  const [u, setU] = useState({ waiting: null });
+  const [, tick] = useState(0);
+  useEffect(() => onStatus(setS), []);
+  useEffect(() => { const fn = (x) => setU(x); sw.subs.add(fn); fn({ waiting: sw.waiting, build: sw.build }); return () => sw.subs.delete(fn); }, []);
+  useEffect(() => { const t = setInterval(() => tick((x) => x + 1), 20000); return () => clearInterval(t); }, []);
+  if (!s) return null;
+  const secure = window.isSecureContext;
+  return html`<div class="status" data-testid="status" role="status" aria-live="polite"
+      data-waiting=${s.waiting} data-rejected=${s.rejected} data-reachable=${String(s.reachable)} data-syncing=${String(s.syncing)} data-last-sync=${s.lastSync}>
+    ${!secure && html`<span class="pill warn" data-testid="status-insecure">Open the https address / install the certificate — on this address the app cannot work offline.</span>`}
+    ${u.waiting && html`<button class="pill warn" type="button" data-testid="status-update" onClick=${applyUpdate}>Update ready — tap to reload</button>`}
+    ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync</span>`}
+    ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this phone</span>`}
+    ${s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…</span>`}
+    ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
+    ${s.waiting === 0 && !s.lastSync && s.reachable === null && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
+    ${s.rejected > 0 && html`<button class="pill warn" type="button" data-testid="status-rejected" onClick=${() => navigate('/settings#rejected')}>${plural(s.rejected, 'entry', 'entries')} rejected — tap to see why</button>`}
+  </div>`;
+}
+
+function App() {
+  const { path } = useRoute();
+  const [build, setBuild] = useState(sw.build);
+  useEffect(() => { const fn = (x) => setBuild(x.build); sw.subs.add(fn); return () => sw.subs.delete(fn); }, []);
+  const Screen = ROUTES[path] || NotFound;
+  return html`<header class="top">
+      <${Link} to="/" class="home" data-testid="nav-home"><span class="mark" aria-hidden="true"></span>Cornerbook</${Link}>
+      <span class="spacer"></span>
+      <${Link} to="/today" class="gear" data-testid="nav-today-top">Today</${Link}>
+      <${Link} to="/settings" class="gear" data-testid="nav-settings">Settings</${Link}>
+    </header>
+    <${StatusBar} />
+    <main id="screen" data-path=${path}><${Screen} key=${path + location.search} build=${build} /></main>`;
+}
+
+function NotFound() {
+  return html`<section><h1>Not here</h1><p><${Link} to="/">Back to the start</${Link}></p></section>`;
+}
+
+deviceId().then(() => {
+  const root = document.getElementById('app-root');
+  root.textContent = '';
+  render(html`<${App} />`, root);
+  root.dataset.ready = 'true';
+  startSync();
+});
+setupSW();

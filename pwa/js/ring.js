@@ -1,0 +1,282 @@
+// Coach screens: jump grid, rounds ringside, conditioning intervals.
+import {
+  html, useState, useEffect, useAthletes, useAthlete, AthleteSelect, NoAthletes, Choice, SaveLine,
+  useAsync, useVersion, fmt, plural,
+} from './ui.js';
+import { save, remove, getRecord, byDay } from './db.js';
+import { localDay, parseNum, attemptStats, heightFromFlightMs } from './record.js';
+import { uuidv7 } from './uuid.js';
+import { openIncidents, HOLD_TEXT } from './screens.js';
+
+const DONE = 'Saved on this phone';
+const ATTEMPTS = 3;
+
+function useEdit(kind) {
+  const id = new URLSearchParams(location.search).get('edit');
+  const rec = useAsync(async () => (id ? getRecord(id) : null), [id], null);
+  return id && rec && rec.kind === kind && !rec.deleted ? rec : null;
+}
+
+// ---------------- jump grid ----------------
+// Valid ranges: flight 200–1000 ms, i.e. about 4.9–122.6 cm by h = g·t²/8.
+const RANGE = { height: [5, 120, 'cm'], flight: [200, 1000, 'ms'] };
+
+export function Jumps() {
+  const list = useAthletes();
+  const editing = useEdit('jump');
+  const [mode, setMode] = useState('height');
+  const [method, setMethod] = useState('mat');
+  const [cells, setCells] = useState({});
+  const [state, setState] = useState(null);
+  useEffect(() => {
+    if (!editing) return;
+    const b = editing.body || {};
+    const flight = Array.isArray(b.flight_ms) && b.flight_ms.length;
+    setMode(flight ? 'flight' : 'height');
+    setMethod(b.method || 'mat');
+    const vals = flight ? b.flight_ms : (b.heights_cm || []);
+    const c = {};
+    vals.forEach((v, i) => { c[`${editing.athlete}:${i}`] = String(v); });
+    setCells(c);
+  }, [editing]);
+  if (list && !list.length) return html`<${NoAthletes} />`;
+  if (!list) return html`<p class="muted">Loading…</p>`;
+  const rows = editing ? list.filter((a) => a.id === editing.athlete) : list;
+  const [lo, hi, unit] = RANGE[mode];
+
+  const valuesOf = (id) => {
+    const out = [];
+    for (let i = 0; i < ATTEMPTS; i++) {
+      const raw = cells[`${id}:${i}`];
+      if (raw === undefined || raw.trim() === '') continue;
+      out.push(parseNum(raw));
+    }
+    return out;
+  };
+  const bad = (raw) => raw && raw.trim() !== '' && !(parseNum(raw) >= lo && parseNum(raw) <= hi);
+
+  const submit = async (e) => {
+    e.preventDefault();
+    const todo = [];
+    for (const a of rows) {
+      const v = valuesOf(a.id);
+      if (!v.length) continue;
+      if (v.some((x) => !(x >= lo && x <= hi))) {
+        return setState({ error: `${a.name}: each attempt must be between ${lo} and ${hi} ${unit}.` });
+      }
+      todo.push([a, v]);
+    }
+    if (!todo.length) return setState({ error: 'Type at least one attempt.' });
+    setState({ saving: true });
+    try {
+      const session = editing ? (editing.body && editing.body.session) : uuidv7();
+      for (const [a, v] of todo) {
+        const body = { test: 'cmj', method };
+        if (mode === 'height') body.heights_cm = v; else body.flight_ms = v;
+        if (session) body.session = session;
+        await save({ id: editing && editing.id, kind: 'jump', athlete: a.id, day: editing ? editing.day : localDay(), body });
+      }
+      setState({ saved: `${DONE}: ${plural(todo.length, 'jump test', 'jump tests')}` });
+      if (!editing) setCells({});
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+
+  return html`<form onSubmit=${submit} data-testid="screen-jumps" novalidate>
+    <h1>Jump test (CMJ)</h1>
+    <div class="row" role="group" aria-label="What the mat shows">
+      <${Choice} value="height" current=${mode} onPick=${(m) => { setMode(m); setState(null); }} testid="jump-mode-height">Height, cm</${Choice}>
+      <${Choice} value="flight" current=${mode} onPick=${(m) => { setMode(m); setState(null); }} testid="jump-mode-flight">Flight time, ms</${Choice}>
+    </div>
+    <label for="jump-method">Measured with</label>
+    <select id="jump-method" data-testid="jump-method" value=${method} onChange=${(e) => setMethod(e.target.value)}>
+      <option value="mat">Jump mat</option><option value="force_plate">Force plate</option><option value="other">Other</option>
+    </select>
+    <p class="muted small">Hands on hips, land with straight legs. Use the same device for every test: methods differ by a centimetre or more.</p>
+    <table class="grid">
+      <thead><tr><th>Athlete</th>${Array.from({ length: ATTEMPTS }, (_, i) => html`<th>${i + 1}</th>`)}<th>Mean</th><th>Best</th></tr></thead>
+      <tbody>
+        ${rows.map((a) => {
+          const st = attemptStats(valuesOf(a.id).filter((x) => x >= lo && x <= hi));
+          const cm = (x) => (mode === 'flight' ? ` ms (≈ ${fmt(heightFromFlightMs(x), 1)} cm)` : ' cm');
+          return html`<tr data-testid=${`jump-row-${a.id}`} data-athlete-name=${a.name}>
+            <td>${a.name}</td>
+            ${Array.from({ length: ATTEMPTS }, (_, i) => {
+              const k = `${a.id}:${i}`;
+              return html`<td><input inputmode="decimal" autocomplete="off" aria-label=${`${a.name}, attempt ${i + 1}, ${unit}`}
+                data-testid=${`jump-${a.id}-${i}`} aria-invalid=${bad(cells[k]) ? 'true' : 'false'} value=${cells[k] || ''}
+                onInput=${(e) => { const v = e.target.value; setCells((c) => ({ ...c, [k]: v })); setState(null); }} /></td>`;
+            })}
+            <td class="stat" data-testid=${`jump-mean-${a.id}`}>${st ? fmt(st.mean, mode === 'flight' ? 0 : 1) + cm(st.mean) : '–'}</td>
+            <td class="stat" data-testid=${`jump-best-${a.id}`}>${st ? fmt(st.best, mode === 'flight' ? 0 : 1) + cm(st.best) : '–'}</td>
+          </tr>`;
+        })}
+      </tbody>
+    </table>
+    <button class="primary" type="submit" data-testid="jumps-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save jump tests'}</button>
+    <${SaveLine} state=${state} />
+  </form>`;
+}
+
+// ---------------- rounds ----------------
+const ACTIVITIES = [['spar', 'Sparring'], ['pads', 'Pads'], ['bag', 'Bag'], ['drill', 'Drill'], ['other', 'Other']];
+const INTENSITY = [[1, 'Easy'], [2, 'Moderate'], [3, 'Hard']];
+const LENGTHS = [[120, '2 min'], [180, '3 min']];
+
+export function Rounds() {
+  const list = useAthletes();
+  const editing = useEdit('round');
+  const v = useVersion();
+  const [chosen, setChosen] = useState([]);
+  const [activity, setActivity] = useState('spar');
+  const [intensity, setIntensity] = useState(2);
+  const [seconds, setSeconds] = useState(180);
+  const [last, setLast] = useState(null); // ids of the last tap's rounds
+  const [state, setState] = useState(null);
+  const today = localDay();
+  const counts = useAsync(async () => {
+    const c = {};
+    for (const r of await byDay(today)) if (r.kind === 'round' && !r.deleted) c[r.athlete] = (c[r.athlete] || 0) + 1;
+    return c;
+  }, [v, today], {});
+  const holds = useAsync(async () => {
+    const h = {};
+    for (const a of list || []) if ((await openIncidents(a.id)).length) h[a.id] = true;
+    return h;
+  }, [v, list], {});
+  useEffect(() => {
+    if (!editing) return;
+    const b = editing.body || {};
+    setChosen([editing.athlete]); setActivity(b.activity || 'other'); setIntensity(b.intensity || 2); setSeconds(b.seconds || 180);
+  }, [editing]);
+  if (list && !list.length) return html`<${NoAthletes} />`;
+  if (!list) return html`<p class="muted">Loading…</p>`;
+  const toggle = (id) => { setChosen((c) => (c.includes(id) ? c.filter((x) => x !== id) : [...c, id])); setState(null); };
+
+  const done = async () => {
+    if (!chosen.length) return setState({ error: 'Tap the athletes in this round first.' });
+    setState({ saving: true });
+    try {
+      const ids = [];
+      for (const id of chosen) {
+        const rec = await save({ id: editing && editing.id, kind: 'round', athlete: id, day: editing ? editing.day : today, body: { activity, seconds, intensity } });
+        ids.push(rec.id);
+      }
+      setLast(editing ? null : ids);
+      const names = chosen.map((id) => (list.find((a) => a.id === id) || {}).name).join(', ');
+      setState({ saved: `${DONE}: ${editing ? 'round corrected' : `round for ${names}`}` });
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+  const undo = async () => {
+    if (!last) return;
+    try {
+      for (const id of last) await remove(id);
+      setLast(null);
+      setState({ saved: 'Last round removed (it can be restored from Today)' });
+    } catch (err) { setState({ error: `Not undone: ${err.message}` }); }
+  };
+
+  return html`<section data-testid="screen-rounds">
+    <h1>Rounds</h1>
+    <label>Who is in this round?</label>
+    <div class="chips" role="group" aria-label="Athletes">
+      ${list.map((a) => html`<button type="button" class="chip" data-testid=${`round-athlete-${a.id}`} data-athlete-name=${a.name}
+        aria-pressed=${chosen.includes(a.id) ? 'true' : 'false'} disabled=${!!editing && a.id !== editing.athlete} onClick=${() => toggle(a.id)}>
+        ${a.name}<span class="count" data-testid=${`round-count-${a.id}`}>${counts[a.id] || 0}</span></button>`)}
+    </div>
+    ${list.filter((a) => holds[a.id] && chosen.includes(a.id)).map((a) => html`<p class="hold" data-testid=${`round-hold-${a.id}`}>${a.name} has an open incident: ${HOLD_TEXT}</p>`)}
+    <label>Activity</label>
+    <div class="row" role="group" aria-label="Activity">
+      ${ACTIVITIES.map(([x, l]) => html`<${Choice} value=${x} current=${activity} onPick=${setActivity} testid=${`round-activity-${x}`}>${l}</${Choice}>`)}
+    </div>
+    <label>Intensity</label>
+    <div class="row" role="group" aria-label="Intensity">
+      ${INTENSITY.map(([x, l]) => html`<${Choice} value=${x} current=${intensity} onPick=${setIntensity} testid=${`round-intensity-${x}`}>${l}</${Choice}>`)}
+    </div>
+    <label>Round length</label>
+    <div class="row" role="group" aria-label="Round length">
+      ${LENGTHS.map(([x, l]) => html`<${Choice} value=${x} current=${seconds} onPick=${setSeconds} testid=${`round-seconds-${x}`}>${l}</${Choice}>`)}
+    </div>
+    <button class="primary big" type="button" data-testid="round-done" onClick=${done} disabled=${state && state.saving}>${editing ? 'Save correction' : 'Round done'}</button>
+    ${!editing && html`<button class="secondary" type="button" data-testid="round-undo" onClick=${undo} disabled=${!last}>Undo last round</button>`}
+    <${SaveLine} state=${state} />
+  </section>`;
+}
+
+// ---------------- conditioning intervals ----------------
+export const PROTOCOLS = [
+  { id: 'w180r60x6', label: '3 min work / 1 min rest × 6', work_s: 180, rest_s: 60, reps: 6, sets: 1, set_rest_s: 0 },
+  { id: 'w30r15x10x2', label: '30 s / 15 s × 10 × 2 sets', work_s: 30, rest_s: 15, reps: 10, sets: 2, set_rest_s: 180 },
+  { id: 'w20r10x8', label: '20 s / 10 s × 8', work_s: 20, rest_s: 10, reps: 8, sets: 1, set_rest_s: 0 },
+];
+const MODALITIES = [['bike', 'Bike'], ['run', 'Run'], ['rower', 'Rower'], ['bag', 'Bag'], ['skip', 'Skipping'], ['other', 'Other']];
+const NUM_FIELDS = [
+  ['work_s', 'Work', 's', 1, 3600], ['rest_s', 'Rest', 's', 0, 3600], ['reps', 'Reps per set', '', 1, 100],
+  ['sets', 'Sets', '', 1, 20], ['set_rest_s', 'Rest between sets', 's', 0, 3600],
+];
+const OPT_FIELDS = [['done_reps', 'Reps completed', '', 0, 2000], ['hr_peak', 'Peak heart rate', 'bpm', 40, 240], ['hr_mean', 'Mean heart rate', 'bpm', 40, 240], ['rpe', 'RPE (0–10)', '', 0, 10]];
+
+export function Intervals() {
+  const list = useAthletes();
+  const editing = useEdit('intervals');
+  const [athlete, pick] = useAthlete(list, editing && editing.athlete);
+  const [f, setF] = useState({ modality: 'bike', sets: '1', set_rest_s: '0' });
+  const [state, setState] = useState(null);
+  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  useEffect(() => {
+    if (!editing) return;
+    const b = editing.body || {};
+    const g = {};
+    for (const [k] of NUM_FIELDS.concat(OPT_FIELDS)) if (b[k] != null) g[k] = String(b[k]);
+    setF({ ...g, modality: b.modality || 'other', protocol: b.protocol });
+  }, [editing]);
+  if (list && !list.length) return html`<${NoAthletes} />`;
+  const usePreset = (p) => setF((o) => ({ ...o, protocol: p.id, work_s: String(p.work_s), rest_s: String(p.rest_s), reps: String(p.reps), sets: String(p.sets), set_rest_s: String(p.set_rest_s) }));
+  const n = (k) => parseNum(f[k]);
+  const total = n('reps') * n('sets');
+  const minutes = (n('work_s') + n('rest_s')) * total / 60 + (n('sets') - 1) * (n('set_rest_s') || 0) / 60;
+
+  const submit = async (e) => {
+    e.preventDefault();
+    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+    const body = { modality: f.modality };
+    if (f.protocol) body.protocol = f.protocol;
+    for (const [k, l, u, lo, hi] of NUM_FIELDS) {
+      const x = n(k);
+      if (!(x >= lo && x <= hi)) return setState({ error: `${l} must be between ${lo} and ${hi}${u ? ' ' + u : ''}.` });
+      body[k] = k === 'reps' || k === 'sets' ? Math.round(x) : x;
+    }
+    for (const [k, l, u, lo, hi] of OPT_FIELDS) {
+      if (!f[k] || !f[k].trim()) continue;
+      const x = n(k);
+      if (!(x >= lo && x <= hi)) return setState({ error: `${l} must be between ${lo} and ${hi}${u ? ' ' + u : ''}.` });
+      body[k] = k === 'rpe' ? x : Math.round(x);
+    }
+    setState({ saving: true });
+    try {
+      await save({ id: editing && editing.id, kind: 'intervals', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
+      setState({ saved: DONE });
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+  const field = ([k, l, u]) => html`<label for=${`intervals-${k}`}>${l}</label>
+    <div class="unit-input"><input id=${`intervals-${k}`} data-testid=${`intervals-${k}`} inputmode="decimal" value=${f[k] || ''}
+      onInput=${(e) => set(k, e.target.value)} />${u && html`<span class="unit">${u}</span>`}</div>`;
+
+  return html`<form onSubmit=${submit} data-testid="screen-intervals" novalidate>
+    <h1>Conditioning intervals</h1>
+    ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
+    <label>Protocol</label>
+    <div class="row" role="group" aria-label="Protocol">
+      ${PROTOCOLS.map((p) => html`<${Choice} value=${p.id} current=${f.protocol} onPick=${() => usePreset(p)} testid=${`intervals-protocol-${p.id}`}>${p.label}</${Choice}>`)}
+    </div>
+    <label>Modality</label>
+    <div class="row" role="group" aria-label="Modality">
+      ${MODALITIES.map(([x, l]) => html`<${Choice} value=${x} current=${f.modality} onPick=${(v) => set('modality', v)} testid=${`intervals-modality-${x}`}>${l}</${Choice}>`)}
+    </div>
+    ${NUM_FIELDS.map(field)}
+    <p class="num muted" data-testid="intervals-summary">${Number.isFinite(minutes) && total > 0 ? `${total} reps, about ${fmt(minutes, 0)} min in all` : ''}</p>
+    <h2>After the session</h2>
+    ${OPT_FIELDS.map(field)}
+    <button class="primary" type="submit" data-testid="intervals-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save intervals'}</button>
+    <${SaveLine} state=${state} />
+  </form>`;
+}

@@ -1,0 +1,353 @@
+// Home, morning check-in, session RPE, incident and clearance.
+import {
+  html, useState, useEffect, Link, navigate, useAthletes, useAthlete, AthleteSelect, NoAthletes,
+  Choice, SaveLine, useAsync, useVersion, getPicked, setPicked, fmt,
+} from './ui.js';
+import { save, getRecord, byKind } from './db.js';
+import { localDay, toKg, fromKg, roundTo, parseNum } from './record.js';
+
+const DONE = 'Saved on this phone';
+
+// useEditing loads the record named by ?edit=, if any.
+function useEditing(kind) {
+  const id = new URLSearchParams(location.search).get('edit');
+  const rec = useAsync(async () => (id ? getRecord(id) : null), [id], null);
+  return id ? (rec && rec.kind === kind && !rec.deleted ? rec : (rec === null ? undefined : null)) : null;
+}
+
+function EditNote({ rec }) {
+  if (!rec) return null;
+  return html`<p class="muted small" data-testid="editing">Correcting the entry of ${rec.day}. The earlier version is kept in the hub's history.</p>`;
+}
+
+// ---------------- home ----------------
+const TILES = [
+  ['/checkin', 'Morning check-in', 'mass, wellness, sleep', 'nav-checkin'],
+  ['/jumps', 'Jump test', 'three attempts per athlete', 'nav-jumps'],
+  ['/rounds', 'Rounds', 'one tap per finished round', 'nav-rounds'],
+  ['/intervals', 'Intervals', 'conditioning protocols', 'nav-intervals'],
+  ['/session', 'Session RPE', 'how hard, how long', 'nav-session'],
+  ['/incident', 'Incident', 'head knock, knockdown, injury', 'nav-incident'],
+  ['/clearance', 'Clearance', 'end a stand-down', 'nav-clearance'],
+  ['/today', 'Today', 'entries, corrections', 'nav-today'],
+];
+
+export function Home() {
+  const list = useAthletes();
+  const [picked, setP] = useState(getPicked());
+  const pick = (id) => { setPicked(id); setP(id); };
+  return html`<section data-testid="screen-home">
+    <h1>Who is logging?</h1>
+    ${list === null ? html`<p class="muted">Loading…</p>` : !list.length ? html`<${NoAthletes} />` : html`
+      <div class="chips" data-testid="athlete-picker" role="group" aria-label="Athlete">
+        ${list.map((a) => html`<button type="button" class="chip" data-testid="athlete-option" data-athlete=${a.id}
+          aria-pressed=${picked === a.id ? 'true' : 'false'} onClick=${() => pick(a.id)}>${a.name}</button>`)}
+      </div>`}
+    <h2>Log</h2>
+    <nav class="tiles">
+      ${TILES.map(([to, t, sub, id]) => html`<${Link} to=${to} class="tile" data-testid=${id}>${t}<span>${sub}</span></${Link}>`)}
+    </nav>
+  </section>`;
+}
+
+// ---------------- morning check-in ----------------
+// Five wellness items, 1–5 with 5 = best (McLean et al. 2010 five-item scale).
+export const WELLNESS = [
+  ['sleep', 'Sleep quality', ['Very poor', 'Poor', 'Average', 'Good', 'Very good']],
+  ['fatigue', 'Energy', ['Exhausted', 'Tired', 'Normal', 'Fresh', 'Very fresh']],
+  ['soreness', 'Muscles', ['Very sore', 'Sore', 'Normal', 'Good', 'Not sore']],
+  ['stress', 'Stress', ['Very stressed', 'Stressed', 'Normal', 'Relaxed', 'Very relaxed']],
+  ['mood', 'Mood', ['Very low', 'Low', 'Normal', 'Good', 'Very good']],
+];
+
+export function Checkin() {
+  const list = useAthletes();
+  const editing = useEditing('checkin');
+  const [athlete, pick] = useAthlete(list, editing && editing.athlete);
+  const [f, setF] = useState({});
+  const [state, setState] = useState(null);
+  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  const units = athlete ? athlete.units : 'kg';
+
+  useEffect(() => {
+    if (!editing || !list) return;
+    const b = editing.body || {};
+    const a = list.find((x) => x.id === editing.athlete);
+    const u = a ? a.units : 'kg';
+    setF({
+      mass: b.mass_kg != null ? fmt(fromKg(b.mass_kg, u), 1) : '',
+      sleep_h: b.sleep_h != null ? String(b.sleep_h) : '',
+      rhr: b.rhr_bpm != null ? String(b.rhr_bpm) : '',
+      usg: b.usg != null ? String(b.usg) : '',
+      note: b.note || '',
+      sleep: b.sleep, fatigue: b.fatigue, soreness: b.soreness, stress: b.stress, mood: b.mood,
+    });
+  }, [editing, list]);
+
+  if (list && !list.length) return html`<${NoAthletes} />`;
+
+  const submit = async (e) => {
+    e.preventDefault();
+    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+    const body = {};
+    const errs = [];
+    const mass = parseNum(f.mass);
+    if (f.mass) {
+      const kg = toKg(mass, units);
+      if (!Number.isFinite(kg) || kg < 25 || kg > 250) errs.push(`Body mass must be between ${units === 'lb' ? '55 and 551 lb' : '25 and 250 kg'}.`);
+      else body.mass_kg = roundTo(kg, 3);
+    }
+    const sh = parseNum(f.sleep_h);
+    if (f.sleep_h) {
+      if (!(sh >= 0 && sh <= 24)) errs.push('Sleep must be between 0 and 24 hours.');
+      else body.sleep_h = sh;
+    }
+    for (const [k] of WELLNESS) if (f[k]) body[k] = f[k];
+    const rhr = parseNum(f.rhr);
+    if (f.rhr) {
+      if (!(Number.isInteger(rhr) && rhr >= 25 && rhr <= 220)) errs.push('Resting heart rate must be a whole number between 25 and 220 bpm.');
+      else body.rhr_bpm = rhr;
+    }
+    const usg = parseNum(f.usg);
+    if (f.usg) {
+      if (!(usg >= 1.0 && usg <= 1.05)) errs.push('Urine specific gravity must be between 1.000 and 1.050.');
+      else body.usg = usg;
+    }
+    if (f.note && f.note.trim()) body.note = f.note.trim();
+    if (errs.length) return setState({ error: errs.join(' ') });
+    if (!Object.keys(body).length) return setState({ error: 'Enter at least one value.' });
+    setState({ saving: true });
+    try {
+      await save({ id: editing && editing.id, kind: 'checkin', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
+      setState({ saved: DONE });
+      if (!editing) setF({});
+    } catch (err) {
+      setState({ error: `Not saved: ${err.message}` });
+    }
+  };
+
+  return html`<form onSubmit=${submit} data-testid="screen-checkin" novalidate>
+    <h1>Morning check-in</h1>
+    <${EditNote} rec=${editing} />
+    ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
+    ${editing && athlete && html`<p><strong>${athlete.name}</strong></p>`}
+    <label for="checkin-mass">Body mass</label>
+    <div class="unit-input"><input id="checkin-mass" data-testid="checkin-mass" data-unit=${units} inputmode="decimal" autocomplete="off"
+      value=${f.mass || ''} onInput=${(e) => set('mass', e.target.value)} placeholder=${units === 'lb' ? 'e.g. 160.4' : 'e.g. 72.8'} />
+      <span class="unit" data-testid="checkin-units">${units}</span></div>
+    <p class="muted small">Fasted, after using the toilet, same scale and clothing each morning.</p>
+    ${WELLNESS.map(([k, label, words]) => html`<label>${label}</label>
+      <div class="scale" role="group" aria-label=${label}>
+        ${words.map((w, i) => html`<${Choice} value=${i + 1} current=${f[k]} onPick=${(v) => set(k, f[k] === v ? undefined : v)}
+          testid=${`wellness-${k}-${i + 1}`} label=${`${label}: ${w} (${i + 1} of 5)`}>${i + 1}<small>${w}</small></${Choice}>`)}
+      </div>`)}
+    <p class="muted small">5 is the best answer for every item.</p>
+    <label for="checkin-sleep_h">Sleep last night</label>
+    <div class="unit-input"><input id="checkin-sleep_h" data-testid="checkin-sleep_h" inputmode="decimal" value=${f.sleep_h || ''}
+      onInput=${(e) => set('sleep_h', e.target.value)} /><span class="unit">hours</span></div>
+    <label for="checkin-rhr">Resting heart rate (optional)</label>
+    <div class="unit-input"><input id="checkin-rhr" data-testid="checkin-rhr" inputmode="numeric" value=${f.rhr || ''}
+      onInput=${(e) => set('rhr', e.target.value)} /><span class="unit">bpm</span></div>
+    <label for="checkin-usg">Urine specific gravity, strip reading (optional)</label>
+    <input id="checkin-usg" data-testid="checkin-usg" inputmode="decimal" value=${f.usg || ''} placeholder="e.g. 1.015"
+      onInput=${(e) => set('usg', e.target.value)} />
+    <p class="caution" data-testid="usg-caution">Urine strips misclassify hydration often. The reading is a prompt to talk to the medical team, who decide — not a diagnosis.</p>
+    <label for="checkin-note">Note (optional)</label>
+    <textarea id="checkin-note" data-testid="checkin-note" value=${f.note || ''} onInput=${(e) => set('note', e.target.value)}></textarea>
+    <button class="primary" type="submit" data-testid="checkin-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save check-in'}</button>
+    <${SaveLine} state=${state} />
+  </form>`;
+}
+
+// ---------------- session RPE ----------------
+// CR-10 anchors as modified by Foster et al. 2001.
+export const CR10 = { 0: 'Rest', 1: 'Very, very easy', 2: 'Easy', 3: 'Moderate', 4: 'Somewhat hard', 5: 'Hard', 7: 'Very hard', 10: 'Maximal' };
+const SESSION_TYPES = [['boxing', 'Boxing'], ['spar', 'Sparring'], ['conditioning', 'Conditioning'], ['strength', 'Strength'], ['other', 'Other']];
+const FOCUS = [['', 'No particular focus'], ['max_strength', 'Maximal strength'], ['strength_speed', 'Strength-speed'], ['speed', 'Speed'], ['plyometric', 'Plyometric'], ['aerobic', 'Aerobic'], ['anaerobic', 'Anaerobic'], ['technical', 'Technical']];
+
+export function Session() {
+  const list = useAthletes();
+  const editing = useEditing('session');
+  const [athlete, pick] = useAthlete(list, editing && editing.athlete);
+  const [f, setF] = useState({ type: 'boxing', focus: '' });
+  const [state, setState] = useState(null);
+  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  useEffect(() => {
+    if (!editing) return;
+    const b = editing.body || {};
+    setF({ type: b.type || 'other', focus: b.focus || '', minutes: b.minutes != null ? String(b.minutes) : '', rpe: b.rpe, note: b.note || '' });
+  }, [editing]);
+  if (list && !list.length) return html`<${NoAthletes} />`;
+  const minutes = parseNum(f.minutes);
+  const load = Number.isFinite(minutes) && f.rpe !== undefined ? f.rpe * minutes : NaN;
+
+  const submit = async (e) => {
+    e.preventDefault();
+    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+    if (f.rpe === undefined) return setState({ error: 'Pick how hard the session was (0–10).' });
+    if (!(minutes > 0 && minutes <= 600)) return setState({ error: 'Minutes must be between 1 and 600.' });
+    const body = { type: f.type, minutes, rpe: f.rpe };
+    if (f.focus) body.focus = f.focus;
+    if (f.note && f.note.trim()) body.note = f.note.trim();
+    setState({ saving: true });
+    try {
+      await save({ id: editing && editing.id, kind: 'session', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
+      setState({ saved: DONE });
+      if (!editing) setF({ type: f.type, focus: '' });
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+
+  return html`<form onSubmit=${submit} data-testid="screen-session" novalidate>
+    <h1>Session RPE</h1>
+    <${EditNote} rec=${editing} />
+    ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
+    <label>How hard was the whole session?</label>
+    <div class="scale11" role="group" aria-label="Session RPE, 0 to 10">
+      ${[0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10].map((v) => html`<${Choice} value=${v} current=${f.rpe} onPick=${(x) => set('rpe', x)}
+        testid=${`rpe-${v}`} label=${`${v}${CR10[v] ? ' ' + CR10[v] : ''}`}>${v}<small>${CR10[v] || '\u00a0'}</small></${Choice}>`)}
+    </div>
+    <p class="muted small">Answer about half an hour after the session, for the session as a whole.</p>
+    <label for="session-minutes">Duration</label>
+    <div class="unit-input"><input id="session-minutes" data-testid="session-minutes" inputmode="numeric" value=${f.minutes || ''}
+      onInput=${(e) => set('minutes', e.target.value)} /><span class="unit">min</span></div>
+    <label>Type</label>
+    <div class="row" role="group" aria-label="Session type">
+      ${SESSION_TYPES.map(([v, l]) => html`<${Choice} value=${v} current=${f.type} onPick=${(x) => set('type', x)} testid=${`session-type-${v}`}>${l}</${Choice}>`)}
+    </div>
+    <label for="session-focus">Focus</label>
+    <select id="session-focus" data-testid="session-focus" value=${f.focus} onChange=${(e) => set('focus', e.target.value)}>
+      ${FOCUS.map(([v, l]) => html`<option value=${v}>${l}</option>`)}
+    </select>
+    <label for="session-note">Note (optional)</label>
+    <textarea id="session-note" data-testid="session-note" value=${f.note || ''} onInput=${(e) => set('note', e.target.value)}></textarea>
+    <p class="num" data-testid="session-load">Session load: ${Number.isFinite(load) ? `${f.rpe} × ${minutes} min = ${fmt(load, 0)} AU` : '–'}</p>
+    <button class="primary" type="submit" data-testid="session-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save session'}</button>
+    <${SaveLine} state=${state} />
+  </form>`;
+}
+
+// ---------------- incident ----------------
+export const INCIDENTS = [
+  ['head_knock', 'Head knock'], ['knockdown', 'Knockdown'], ['stoppage', 'Stoppage'], ['knockout', 'Knockout'],
+  ['knockout_loc', 'Knockout with loss of consciousness'], ['injury', 'Injury'],
+];
+const HOLD_TYPES = new Set(['head_knock', 'knockdown', 'stoppage', 'knockout', 'knockout_loc']);
+export const HOLD_TEXT = 'No sparring or contact until cleared in writing by a doctor.';
+
+export function Incident() {
+  const list = useAthletes();
+  const editing = useEditing('incident');
+  const [athlete, pick] = useAthlete(list, editing && editing.athlete);
+  const [type, setType] = useState(undefined);
+  const [note, setNote] = useState('');
+  const [step, setStep] = useState('form');
+  const [state, setState] = useState(null);
+  useEffect(() => { if (editing) { setType(editing.body.type); setNote(editing.body.note || ''); } }, [editing]);
+  if (list && !list.length) return html`<${NoAthletes} />`;
+  const label = (INCIDENTS.find(([v]) => v === type) || [])[1];
+
+  const next = (e) => {
+    e.preventDefault();
+    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+    if (!type) return setState({ error: 'Pick what happened.' });
+    setState(null);
+    setStep('confirm');
+  };
+  const confirm = async () => {
+    setState({ saving: true });
+    try {
+      const body = { type };
+      if (note.trim()) body.note = note.trim();
+      await save({ id: editing && editing.id, kind: 'incident', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
+      setState({ saved: DONE });
+      setStep('done');
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+
+  if (step === 'confirm') {
+    return html`<section data-testid="screen-incident-confirm">
+      <h1>Log this incident?</h1>
+      <div class="card"><p><strong>${athlete.name}</strong>: ${label}</p>${note && html`<p class="muted">${note}</p>`}
+      ${HOLD_TYPES.has(type) && html`<p class="hold">This starts a sparring hold for ${athlete.name}. ${HOLD_TEXT}</p>`}</div>
+      <button class="primary" type="button" data-testid="incident-confirm" onClick=${confirm} disabled=${state && state.saving}>Yes, log it</button>
+      <button class="secondary" type="button" data-testid="incident-back" onClick=${() => setStep('form')}>Go back</button>
+      <${SaveLine} state=${state} />
+    </section>`;
+  }
+  if (step === 'done') {
+    return html`<section data-testid="screen-incident-done">
+      <h1>Incident logged</h1>
+      <${SaveLine} state=${state} />
+      ${HOLD_TYPES.has(type) && html`<p class="hold" data-testid="incident-hold">${athlete.name}: ${HOLD_TEXT}</p>
+        <p class="muted">Treat a head knock or knockdown as a suspected concussion. Return to contact follows the medical team's graded steps.</p>`}
+      <button class="secondary" type="button" data-testid="incident-another" onClick=${() => { setStep('form'); setType(undefined); setNote(''); setState(null); navigate('/incident', true); }}>Log another</button>
+    </section>`;
+  }
+  return html`<form onSubmit=${next} data-testid="screen-incident" novalidate>
+    <h1>Incident</h1>
+    <${EditNote} rec=${editing} />
+    ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
+    <label>What happened?</label>
+    <div class="row" role="group" aria-label="Incident type">
+      ${INCIDENTS.map(([v, l]) => html`<${Choice} value=${v} current=${type} onPick=${setType} testid=${`incident-type-${v}`}>${l}</${Choice}>`)}
+    </div>
+    <label for="incident-note">What you saw (optional)</label>
+    <textarea id="incident-note" data-testid="incident-note" value=${note} onInput=${(e) => setNote(e.target.value)}></textarea>
+    <button class="primary" type="submit" data-testid="incident-next">Next</button>
+    <${SaveLine} state=${state} />
+  </form>`;
+}
+
+// ---------------- clearance ----------------
+// openIncidents: live incidents with no live clearance naming them.
+export async function openIncidents(athleteId) {
+  const inc = (await byKind('incident')).filter((r) => !r.deleted && r.athlete === athleteId);
+  const cleared = new Set((await byKind('clearance')).filter((r) => !r.deleted).map((r) => r.body && r.body.incident));
+  return inc.filter((r) => !cleared.has(r.id)).sort((a, b) => (a.day < b.day ? 1 : -1));
+}
+
+export function Clearance() {
+  const list = useAthletes();
+  const editing = useEditing('clearance');
+  const [athlete, pick] = useAthlete(list, editing && editing.athlete);
+  const v = useVersion();
+  const open = useAsync(async () => (athlete ? openIncidents(athlete.id) : []), [athlete && athlete.id, v], []);
+  const [incident, setIncident] = useState(undefined);
+  const [by, setBy] = useState('');
+  const [note, setNote] = useState('');
+  const [state, setState] = useState(null);
+  useEffect(() => { if (editing) { setIncident(editing.body.incident); setBy(editing.body.by || ''); setNote(editing.body.note || ''); } }, [editing]);
+  if (list && !list.length) return html`<${NoAthletes} />`;
+  const name = (t) => (INCIDENTS.find(([x]) => x === t) || [t, t])[1];
+
+  const submit = async (e) => {
+    e.preventDefault();
+    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+    if (!incident) return setState({ error: 'Pick the incident this clearance ends.' });
+    if (!by.trim()) return setState({ error: 'Say who gave the written clearance.' });
+    const body = { incident, by: by.trim() };
+    if (note.trim()) body.note = note.trim();
+    setState({ saving: true });
+    try {
+      await save({ id: editing && editing.id, kind: 'clearance', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
+      setState({ saved: DONE });
+      setIncident(undefined); setBy(''); setNote('');
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+  return html`<form onSubmit=${submit} data-testid="screen-clearance" novalidate>
+    <h1>Clearance</h1>
+    ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
+    <p class="caution">Record a clearance only when a doctor has cleared the athlete in writing. Return to sparring follows graded steps.</p>
+    <label>Incident</label>
+    ${open.length || editing ? html`<div class="row" role="group" aria-label="Incident">
+      ${(editing && !open.find((r) => r.id === incident) ? [{ id: incident, day: '', body: { type: 'incident' } }] : []).concat(open).map((r) => html`<${Choice} value=${r.id} current=${incident} onPick=${setIncident}
+        testid=${`clearance-incident-${r.id}`}>${name(r.body.type)}<small>${r.day}</small></${Choice}>`)}</div>`
+      : html`<p class="muted" data-testid="clearance-none">No open incident for this athlete.</p>`}
+    <label for="clearance-by">Cleared in writing by</label>
+    <input id="clearance-by" data-testid="clearance-by" value=${by} placeholder="e.g. Dr. A. Example" onInput=${(e) => setBy(e.target.value)} />
+    <label for="clearance-note">Note (optional)</label>
+    <textarea id="clearance-note" data-testid="clearance-note" value=${note} onInput=${(e) => setNote(e.target.value)}></textarea>
+    <button class="primary" type="submit" data-testid="clearance-save" disabled=${state && state.saving}>Save clearance</button>
+    <${SaveLine} state=${state} />
+  </form>`;
+}

@@ -1,0 +1,73 @@
+// Settings: this device, the hub, storage, rejected entries, app version.
+import { html, useState, useEffect, useAsync, useVersion, navigate } from './ui.js';
+import { allMeta, setMeta, rejectedList, discard } from './db.js';
+import { requestSync } from './sync.js';
+
+const EDIT_ROUTE = { checkin: '/checkin', jump: '/jumps', round: '/rounds', intervals: '/intervals', session: '/session', incident: '/incident', clearance: '/clearance' };
+
+export function Settings({ build }) {
+  const v = useVersion();
+  const meta = useAsync(allMeta, [v], {});
+  const rejected = useAsync(rejectedList, [v], []);
+  const [name, setName] = useState(null);
+  const [persist, setPersist] = useState('');
+  const [saved, setSaved] = useState('');
+  useEffect(() => {
+    if (navigator.storage && navigator.storage.persisted) {
+      navigator.storage.persisted().then((p) => setPersist(p ? 'granted' : 'not yet'));
+    } else setPersist('unavailable');
+  }, []);
+  const askPersist = async () => {
+    if (!navigator.storage || !navigator.storage.persist) return setPersist('unavailable');
+    const ok = await navigator.storage.persist();
+    setPersist(ok ? 'granted' : 'refused');
+    await setMeta('persist', ok);
+  };
+  const saveName = async (e) => {
+    e.preventDefault();
+    await setMeta('deviceName', (name ?? meta.deviceName ?? '').trim());
+    setSaved('Saved on this phone');
+  };
+  const persistText = {
+    granted: 'Granted: the browser will not clear this app\'s entries when storage runs low.',
+    'not yet': 'Not granted yet. Tap the button; on a phone, install the app to the home screen first.',
+    refused: 'The browser said no for now. Installing the app to the home screen usually changes that. Sync often.',
+    unavailable: 'This browser cannot keep storage persistent here (it needs the https address).',
+  }[persist] || '';
+
+  return html`<section data-testid="screen-settings">
+    <h1>Settings</h1>
+    <form class="card" onSubmit=${saveName}>
+      <label for="settings-device-name">Name of this device</label>
+      <input id="settings-device-name" data-testid="settings-device-name" value=${name ?? meta.deviceName ?? ''} placeholder="e.g. Ringside tablet"
+        onInput=${(e) => { setName(e.target.value); setSaved(''); }} />
+      <button class="secondary" type="submit" data-testid="settings-save">Save name</button>
+      ${saved && html`<p class="saved" data-testid="settings-saved">${saved}</p>`}
+      <p class="muted small">Device id <span class="num" data-testid="settings-device-id">${meta.deviceId || '…'}</span></p>
+    </form>
+    <div class="card">
+      <h2>Hub</h2>
+      <p>Address: <strong data-testid="settings-hub">${location.origin}</strong></p>
+      <p class="muted small">This app belongs to the hub at this address. Always open it the same way (same address and port), or this device's entries stay behind under the old address.</p>
+      <p class="muted small">Epoch <span class="num">${meta.epoch || 'not synced yet'}</span>, pulled through <span class="num">${meta.cursor || 0}</span>, clock offset <span class="num">${Math.round((meta.offset || 0) / 1000)} s</span>.</p>
+      <button class="secondary" type="button" data-testid="settings-sync" onClick=${() => requestSync('manual')}>Sync now</button>
+    </div>
+    <div class="card">
+      <h2>Storage</h2>
+      <p data-testid="settings-persist-answer" data-state=${persist}>${persistText}</p>
+      <button class="secondary" type="button" data-testid="settings-persist" onClick=${askPersist}>Keep entries on this device</button>
+    </div>
+    <div class="card" id="rejected" data-testid="rejected-list">
+      <h2>Rejected entries</h2>
+      ${rejected.length === 0 && html`<p class="muted">None. Every entry the hub received was accepted.</p>`}
+      ${rejected.map((r) => html`<div class="entry" data-testid=${`rejected-${r.n}`}>
+        <div class="what"><strong>${r.record.kind}</strong> of ${r.record.day}: ${r.field ? html`<code>${r.field}</code> ` : ''}${r.reason}
+          <span class="tag warn">${r.code}</span></div>
+        ${EDIT_ROUTE[r.record.kind] && !r.record.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-edit-${r.n}`} onClick=${() => navigate(`${EDIT_ROUTE[r.record.kind]}?edit=${r.id}`)}>Correct</button>`}
+        <button class="secondary danger" type="button" data-testid=${`rejected-discard-${r.n}`} onClick=${() => discard(r.n)}>Discard</button>
+      </div>`)}
+      <p class="muted small">A rejected entry stays here until you correct it (a new version is sent) or discard it.</p>
+    </div>
+    <div class="card"><h2>App</h2><p class="muted small">Build <span class="num" data-testid="settings-build">${build || 'not installed yet'}</span></p></div>
+  </section>`;
+}

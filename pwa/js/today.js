@@ -1,0 +1,93 @@
+// Today: the day's entries per athlete, with correct, delete and restore.
+import { html, useState, useAsync, useVersion, useAthletes, usePending, navigate, fmt } from './ui.js';
+import { byDay, remove, restore } from './db.js';
+import { localDay, fromKg } from './record.js';
+import { INCIDENTS, CR10 } from './screens.js';
+
+const EDIT_ROUTE = { checkin: '/checkin', jump: '/jumps', round: '/rounds', intervals: '/intervals', session: '/session', incident: '/incident', clearance: '/clearance' };
+const KIND_NAME = { checkin: 'Check-in', jump: 'Jump test', round: 'Round', intervals: 'Intervals', session: 'Session', incident: 'Incident', clearance: 'Clearance', note: 'Note', decision: 'Decision', bout: 'Bout plan', settings: 'Settings' };
+const ACT = { spar: 'sparring', pads: 'pads', bag: 'bag', drill: 'drill', other: 'other' };
+const INT = { 1: 'easy', 2: 'moderate', 3: 'hard' };
+
+function shiftDay(day, n) {
+  const [y, m, d] = day.split('-').map(Number);
+  return localDay(new Date(y, m - 1, d + n));
+}
+
+// summary: one line with numbers and units.
+export function summary(r, units) {
+  const b = r.body || {};
+  switch (r.kind) {
+    case 'checkin': {
+      const parts = [];
+      if (b.mass_kg != null) parts.push(`${fmt(fromKg(b.mass_kg, units), 1)} ${units}`);
+      const w = ['sleep', 'fatigue', 'soreness', 'stress', 'mood'].filter((k) => b[k] != null);
+      if (w.length) parts.push(`wellness ${w.reduce((s, k) => s + b[k], 0)}/${w.length * 5}`);
+      if (b.sleep_h != null) parts.push(`slept ${b.sleep_h} h`);
+      if (b.rhr_bpm != null) parts.push(`${b.rhr_bpm} bpm`);
+      if (b.usg != null) parts.push(`USG ${b.usg.toFixed(3)}`);
+      return parts.join(', ');
+    }
+    case 'jump': {
+      const v = b.heights_cm && b.heights_cm.length ? b.heights_cm.map((x) => `${x} cm`) : (b.flight_ms || []).map((x) => `${x} ms`);
+      return `CMJ ${v.join(', ')}${b.best_cm ? ` — best ${fmt(b.best_cm, 1)} cm, mean ${fmt(b.mean_cm, 1)} cm` : ''}`;
+    }
+    case 'round': return `${ACT[b.activity] || b.activity}, ${INT[b.intensity] || ''}, ${fmt(b.seconds / 60, 0)} min`;
+    case 'intervals': return `${b.modality}: ${b.work_s} s / ${b.rest_s} s × ${b.reps}${b.sets > 1 ? ` × ${b.sets} sets` : ''}${b.rpe != null ? `, RPE ${b.rpe}` : ''}`;
+    case 'session': return `${b.type}, ${b.minutes} min, RPE ${b.rpe}${CR10[b.rpe] ? ` (${CR10[b.rpe]})` : ''} = ${fmt(b.rpe * b.minutes, 0)} AU`;
+    case 'incident': return (INCIDENTS.find(([v]) => v === b.type) || [b.type, b.type])[1] + (b.note ? ` — ${b.note}` : '');
+    case 'clearance': return `cleared by ${b.by}`;
+    case 'note': return b.text || '';
+    default: return '';
+  }
+}
+
+export function Today() {
+  const v = useVersion();
+  const list = useAthletes() || [];
+  const pending = usePending();
+  const [day, setDay] = useState(new URLSearchParams(location.search).get('day') || localDay());
+  const recs = useAsync(() => byDay(day), [day, v], []);
+  const [err, setErr] = useState('');
+  const groups = new Map();
+  for (const r of recs.filter((x) => x.kind !== 'athlete').sort((a, b) => (a.at < b.at ? -1 : 1))) {
+    const k = r.athlete || '';
+    if (!groups.has(k)) groups.set(k, []);
+    groups.get(k).push(r);
+  }
+  const athleteOf = (id) => list.find((a) => a.id === id);
+  const act = (fn) => async (id) => { setErr(''); try { await fn(id); } catch (e) { setErr(e.message); } };
+  const del = act(remove);
+  const undel = act(restore);
+
+  return html`<section data-testid="screen-today">
+    <h1>${day === localDay() ? 'Today' : day}</h1>
+    <div class="row">
+      <button class="secondary" type="button" data-testid="today-prev" onClick=${() => setDay(shiftDay(day, -1))}>← Previous day</button>
+      <button class="secondary" type="button" data-testid="today-next" onClick=${() => setDay(shiftDay(day, 1))}>Next day →</button>
+    </div>
+    ${err && html`<p class="error">${err}</p>`}
+    <div data-testid="today-list">
+    ${groups.size === 0 && html`<p class="muted" data-testid="today-empty">Nothing logged on ${day} on this device yet.</p>`}
+    ${[...groups.entries()].map(([aid, rs]) => {
+      const a = athleteOf(aid);
+      return html`<div class="card" data-testid=${`today-athlete-${aid || 'camp'}`}>
+        <h2>${a ? a.name : aid ? 'Unknown athlete' : 'Camp'}</h2>
+        ${rs.map((r) => {
+          const rej = pending.rejected.get(r.id);
+          return html`<div class=${`entry${r.deleted ? ' deleted' : ''}`} data-testid=${`entry-${r.id}`} data-kind=${r.kind} data-deleted=${r.deleted ? 'true' : 'false'}>
+            <div class="what"><strong>${KIND_NAME[r.kind] || r.kind}</strong> <span class="num">${summary(r, a ? a.units : 'kg')}</span>
+              ${pending.waiting.has(r.id) && html`<span class="tag" data-testid=${`waiting-${r.id}`}>waiting to sync</span>`}
+              ${rej && html`<span class="tag warn" data-testid=${`rejected-tag-${r.id}`}>rejected: ${rej.reason}</span>`}
+              ${r.deleted && html`<span class="tag">deleted</span>`}</div>
+            ${r.deleted
+              ? html`<button class="secondary" type="button" data-testid=${`restore-${r.id}`} onClick=${() => undel(r.id)}>Restore</button>`
+              : html`${EDIT_ROUTE[r.kind] && html`<button class="secondary" type="button" data-testid=${`edit-${r.id}`} onClick=${() => navigate(`${EDIT_ROUTE[r.kind]}?edit=${r.id}`)}>Edit</button>`}
+                <button class="secondary danger" type="button" data-testid=${`delete-${r.id}`} onClick=${() => del(r.id)}>Delete</button>`}
+          </div>`;
+        })}
+      </div>`;
+    })}
+    </div>
+  </section>`;
+}

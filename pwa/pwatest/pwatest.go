@@ -1,0 +1,458 @@
+// Package pwatest drives Cornerbook's web app in a real headless Chromium
+// (Debian's /usr/bin/chromium through chromedp) for tests: start a browser
+// on a fresh or given profile, open the app, log entries through its
+// screens as a user would, and read the device's IndexedDB.
+//
+// Without a Chromium the tests skip with a message, except under CI=true,
+// where a missing browser is a failure.
+package pwatest
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"os/exec"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/runtime"
+	"github.com/chromedp/chromedp"
+)
+
+// DefaultExecPath is where Debian's chromium package installs the browser.
+const DefaultExecPath = "/usr/bin/chromium"
+
+// ExecPath finds the browser: $CORNERBOOK_CHROMIUM, /usr/bin/chromium, or
+// chromium on $PATH.
+func ExecPath() (string, bool) {
+	if p := os.Getenv("CORNERBOOK_CHROMIUM"); p != "" {
+		if _, err := os.Stat(p); err == nil {
+			return p, true
+		}
+	}
+	if _, err := os.Stat(DefaultExecPath); err == nil {
+		return DefaultExecPath, true
+	}
+	if p, err := exec.LookPath("chromium"); err == nil {
+		return p, true
+	}
+	return "", false
+}
+
+// Options configure Start.
+type Options struct {
+	// UserDataDir is the browser profile. Empty: a fresh temporary one.
+	// Pass the same directory to two successive browsers to test that the
+	// device's data survives a restart.
+	UserDataDir string
+	// Log receives the browser's stderr and the page's console, if set.
+	Log io.Writer
+}
+
+// Browser is one running Chromium.
+type Browser struct {
+	Dir         string
+	allocCancel context.CancelFunc
+	ctx         context.Context
+	cancel      context.CancelFunc
+	closed      bool
+}
+
+// Start launches Chromium headless, and closes it when the test ends.
+func Start(t testing.TB, opt Options) *Browser {
+	t.Helper()
+	path, ok := ExecPath()
+	if !ok {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("pwatest: no Chromium at %s (install Debian's chromium package)", DefaultExecPath)
+		}
+		t.Skipf("pwatest: no Chromium at %s; install Debian's chromium package to run the browser tests", DefaultExecPath)
+	}
+	dir := opt.UserDataDir
+	if dir == "" {
+		dir = t.TempDir()
+	}
+	flags := append(chromedp.DefaultExecAllocatorOptions[:],
+		chromedp.ExecPath(path),
+		chromedp.UserDataDir(dir),
+		chromedp.Flag("headless", true),
+		chromedp.NoSandbox,
+		chromedp.DisableGPU,
+		chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-sync", true),
+		chromedp.NoFirstRun,
+		chromedp.WindowSize(412, 915), // a phone-sized window
+	)
+	if opt.Log != nil {
+		flags = append(flags, chromedp.CombinedOutput(opt.Log))
+	}
+	allocCtx, allocCancel := chromedp.NewExecAllocator(context.Background(), flags...)
+	var ctxOpts []chromedp.ContextOption
+	if opt.Log != nil {
+		ctxOpts = append(ctxOpts, chromedp.WithLogf(func(f string, a ...any) { fmt.Fprintf(opt.Log, f+"\n", a...) }))
+	}
+	if opt.Log != nil {
+		ctxOpts = append(ctxOpts, chromedp.WithListener(func(ev any) {
+			switch e := ev.(type) {
+			case *runtime.EventConsoleAPICalled:
+				var parts []string
+				for _, a := range e.Args {
+					parts = append(parts, string(a.Value)+a.Description)
+				}
+				fmt.Fprintf(opt.Log, "console.%s: %s\n", e.Type, strings.Join(parts, " "))
+			case *runtime.EventExceptionThrown:
+				d := e.ExceptionDetails
+				desc := d.Text
+				if d.Exception != nil {
+					desc += " " + d.Exception.Description
+				}
+				fmt.Fprintf(opt.Log, "exception: %s\n", desc)
+			}
+		}))
+	}
+	ctx, cancel := chromedp.NewContext(allocCtx, ctxOpts...)
+	if err := chromedp.Do(ctx); err != nil {
+		cancel()
+		allocCancel()
+		t.Fatalf("pwatest: start chromium: %v", err)
+	}
+	b := &Browser{Dir: dir, allocCancel: allocCancel, ctx: ctx, cancel: cancel}
+	t.Cleanup(b.Close)
+	return b
+}
+
+// Ctx is the browser's first tab.
+func (b *Browser) Ctx() context.Context { return b.ctx }
+
+// NewTab opens another tab in the same browser (same profile and origin data).
+func (b *Browser) NewTab() (context.Context, context.CancelFunc) {
+	ctx, cancel := chromedp.NewContext(b.ctx)
+	return ctx, cancel
+}
+
+// Close shuts the browser down gracefully and waits for it to exit, so the
+// profile can be reopened.
+func (b *Browser) Close() {
+	if b.closed {
+		return
+	}
+	b.closed = true
+	_ = chromedp.Cancel(b.ctx)
+	b.cancel()
+	b.allocCancel()
+}
+
+// Eval evaluates a JavaScript expression in the page, awaiting a promise,
+// and decodes its JSON-able result into out (which may be nil).
+func Eval(ctx context.Context, expr string, out any) error {
+	raw, err := chromedp.Run(ctx, chromedp.Evaluate[[]byte](expr, chromedp.EvalAwaitPromise))
+	if err != nil {
+		return fmt.Errorf("eval %.80q: %w", expr, err)
+	}
+	if out == nil {
+		return nil
+	}
+	return json.Unmarshal(raw, out)
+}
+
+// Poll re-evaluates a boolean expression until it is true or the timeout passes.
+func Poll(ctx context.Context, expr string, timeout time.Duration) error {
+	deadline := time.Now().Add(timeout)
+	for {
+		var ok bool
+		err := Eval(ctx, "(async () => !!("+expr+"))()", &ok)
+		if err == nil && ok {
+			return nil
+		}
+		if time.Now().After(deadline) {
+			if err != nil {
+				return fmt.Errorf("waiting for %s: %w", expr, err)
+			}
+			return fmt.Errorf("waiting for %s: still false after %s", expr, timeout)
+		}
+		select {
+		case <-ctx.Done():
+			return ctx.Err()
+		case <-time.After(50 * time.Millisecond):
+		}
+	}
+}
+
+// Q is a CSS selector for a data-testid.
+func Q(testid string) string { return fmt.Sprintf(`[data-testid=%q]`, testid) }
+
+// Open loads the app at url (e.g. "http://127.0.0.1:8080/") and waits
+// until it has rendered.
+func Open(ctx context.Context, url string) error {
+	if err := chromedp.Do(ctx, chromedp.Navigate(url)); err != nil {
+		return fmt.Errorf("open %s: %w", url, err)
+	}
+	return WaitReady(ctx)
+}
+
+// WaitReady waits for the app to render after a load or reload.
+func WaitReady(ctx context.Context) error {
+	return Poll(ctx, `document.querySelector('#app-root[data-ready="true"] main')`, 10*time.Second)
+}
+
+// Reload reloads the page and waits for the app.
+func Reload(ctx context.Context) error {
+	if err := chromedp.Do(ctx, chromedp.Reload()); err != nil {
+		return err
+	}
+	return WaitReady(ctx)
+}
+
+// WaitControlled waits until the service worker has installed its cache
+// and controls the page, i.e. the app would now open offline.
+func WaitControlled(ctx context.Context) error {
+	return Poll(ctx, `navigator.serviceWorker && navigator.serviceWorker.controller && navigator.serviceWorker.controller.state === 'activated'`, 15*time.Second)
+}
+
+// Route moves the app to a path without reloading (as a tap on a link does).
+func Route(ctx context.Context, path string) error {
+	b, _ := json.Marshal(path)
+	if err := Eval(ctx, fmt.Sprintf(`(() => { history.pushState(null, '', %s); dispatchEvent(new PopStateEvent('popstate')); return true })()`, b), nil); err != nil {
+		return err
+	}
+	return Poll(ctx, fmt.Sprintf(`document.querySelector('#screen') && document.querySelector('#screen').dataset.path === %s.split('?')[0]`, b), 5*time.Second)
+}
+
+// Click taps the element with a data-testid.
+func Click(ctx context.Context, testid string) error {
+	sel := Q(testid)
+	if err := Poll(ctx, fmt.Sprintf(`document.querySelector(%q) && !document.querySelector(%q).disabled`, sel, sel), 5*time.Second); err != nil {
+		return err
+	}
+	return chromedp.Do(ctx, chromedp.Click(chromedp.CSS(sel), chromedp.NodeVisible))
+}
+
+// Type types text into the input with a data-testid, as keystrokes.
+func Type(ctx context.Context, testid, text string) error {
+	sel := Q(testid)
+	return chromedp.Do(ctx, chromedp.SendKeys(chromedp.CSS(sel), text, chromedp.NodeVisible))
+}
+
+// Text returns the text of the element with a data-testid ("" if absent).
+func Text(ctx context.Context, testid string) (string, error) {
+	var s string
+	err := Eval(ctx, fmt.Sprintf(`(document.querySelector(%q) || {}).textContent || ''`, Q(testid)), &s)
+	return s, err
+}
+
+// WaitText waits until the element with a data-testid contains want.
+func WaitText(ctx context.Context, testid, want string) error {
+	return Poll(ctx, fmt.Sprintf(`((document.querySelector(%q) || {}).textContent || '').includes(%q)`, Q(testid), want), 10*time.Second)
+}
+
+// SelectAthlete picks an athlete by name in the screen's athlete list.
+func SelectAthlete(ctx context.Context, name string) error {
+	n, _ := json.Marshal(name)
+	if err := Poll(ctx, fmt.Sprintf(`[...document.querySelectorAll('[data-testid="athlete-select"] option')].some((o) => o.textContent === %s)`, n), 10*time.Second); err != nil {
+		return fmt.Errorf("athlete %s not offered: %w", name, err)
+	}
+	return Eval(ctx, fmt.Sprintf(`(() => {
+		const s = document.querySelector('[data-testid="athlete-select"]');
+		const o = [...s.options].find((o) => o.textContent === %s);
+		s.value = o.value;
+		s.dispatchEvent(new Event('change', { bubbles: true }));
+		return true })()`, n), nil)
+}
+
+// athleteID finds an athlete's id by name among elements carrying
+// data-athlete-name and a data-testid prefix.
+func athleteID(ctx context.Context, prefix, name string) (string, error) {
+	n, _ := json.Marshal(name)
+	expr := fmt.Sprintf(`(() => { const e = [...document.querySelectorAll('[data-athlete-name]')].find((e) => e.dataset.athleteName === %s && e.dataset.testid.startsWith(%q)); return e ? e.dataset.testid.slice(%d) : '' })()`, n, prefix, len(prefix))
+	if err := Poll(ctx, expr, 10*time.Second); err != nil {
+		return "", fmt.Errorf("athlete %s not on screen: %w", name, err)
+	}
+	var id string
+	err := Eval(ctx, expr, &id)
+	return id, err
+}
+
+const saved = "Saved on this phone"
+
+// LogCheckin logs a morning check-in with body mass through the check-in
+// screen, typing the mass in the athlete's own units, and waits until the
+// screen says it is saved on the device.
+func LogCheckin(ctx context.Context, athleteName string, massKg float64) error {
+	if err := Route(ctx, "/checkin"); err != nil {
+		return err
+	}
+	if err := SelectAthlete(ctx, athleteName); err != nil {
+		return err
+	}
+	var unit string
+	if err := Poll(ctx, `document.querySelector('[data-testid="checkin-mass"]')`, 5*time.Second); err != nil {
+		return err
+	}
+	if err := Eval(ctx, `document.querySelector('[data-testid="checkin-mass"]').dataset.unit`, &unit); err != nil {
+		return err
+	}
+	v := massKg
+	if unit == "lb" {
+		v = massKg / 0.45359237
+	}
+	if err := Type(ctx, "checkin-mass", fmt.Sprintf("%.1f", v)); err != nil {
+		return err
+	}
+	if err := Click(ctx, "checkin-save"); err != nil {
+		return err
+	}
+	return WaitText(ctx, "saved", saved)
+}
+
+// LogJumps types each athlete's attempts (cm) into the jump grid and saves.
+func LogJumps(ctx context.Context, heightsCm map[string][]float64) error {
+	if err := Route(ctx, "/jumps"); err != nil {
+		return err
+	}
+	if err := Click(ctx, "jump-mode-height"); err != nil {
+		return err
+	}
+	for name, hs := range heightsCm {
+		id, err := athleteID(ctx, "jump-row-", name)
+		if err != nil {
+			return err
+		}
+		for i, h := range hs {
+			if err := Type(ctx, fmt.Sprintf("jump-%s-%d", id, i), fmt.Sprintf("%g", h)); err != nil {
+				return err
+			}
+		}
+	}
+	if err := Click(ctx, "jumps-save"); err != nil {
+		return err
+	}
+	return WaitText(ctx, "saved", saved)
+}
+
+// LogRound taps one finished round for the named athletes.
+func LogRound(ctx context.Context, athleteNames []string, activity string, intensity int) error {
+	if err := Route(ctx, "/rounds"); err != nil {
+		return err
+	}
+	for _, name := range athleteNames {
+		id, err := athleteID(ctx, "round-athlete-", name)
+		if err != nil {
+			return err
+		}
+		var pressed string
+		if err := Eval(ctx, fmt.Sprintf(`document.querySelector(%q).getAttribute('aria-pressed')`, Q("round-athlete-"+id)), &pressed); err != nil {
+			return err
+		}
+		if pressed != "true" {
+			if err := Click(ctx, "round-athlete-"+id); err != nil {
+				return err
+			}
+		}
+	}
+	if err := Click(ctx, "round-activity-"+activity); err != nil {
+		return err
+	}
+	if err := Click(ctx, fmt.Sprintf("round-intensity-%d", intensity)); err != nil {
+		return err
+	}
+	// Clear the previous confirmation so the wait sees this tap's.
+	_ = Eval(ctx, `(() => { const e = document.querySelector('[data-testid="saved"]'); if (e) e.remove(); return true })()`, nil)
+	if err := Click(ctx, "round-done"); err != nil {
+		return err
+	}
+	return WaitText(ctx, "saved", saved)
+}
+
+// LogSession logs a session RPE (0–10) and duration for an athlete.
+func LogSession(ctx context.Context, athleteName string, rpe int, minutes int) error {
+	if err := Route(ctx, "/session"); err != nil {
+		return err
+	}
+	if err := SelectAthlete(ctx, athleteName); err != nil {
+		return err
+	}
+	if err := Click(ctx, fmt.Sprintf("rpe-%d", rpe)); err != nil {
+		return err
+	}
+	if err := Type(ctx, "session-minutes", fmt.Sprint(minutes)); err != nil {
+		return err
+	}
+	if err := Click(ctx, "session-save"); err != nil {
+		return err
+	}
+	return WaitText(ctx, "saved", saved)
+}
+
+// ReadIDB returns every value of one store of the app's IndexedDB
+// (records, outbox, meta, rejected), as JSON.
+func ReadIDB(ctx context.Context, store string) ([]json.RawMessage, error) {
+	var s string
+	err := Eval(ctx, fmt.Sprintf(`(async () => {
+		const db = await new Promise((ok, bad) => { const r = indexedDB.open('cornerbook'); r.onsuccess = () => ok(r.result); r.onerror = () => bad(r.error); });
+		try {
+			const all = await new Promise((ok, bad) => { const r = db.transaction(%q).objectStore(%q).getAll(); r.onsuccess = () => ok(r.result); r.onerror = () => bad(r.error); });
+			return JSON.stringify(all);
+		} finally { db.close(); }
+	})()`, store, store), &s)
+	if err != nil {
+		return nil, err
+	}
+	var out []json.RawMessage
+	return out, json.Unmarshal([]byte(s), &out)
+}
+
+// Meta returns one value of the meta store.
+func Meta(ctx context.Context, key string, out any) error {
+	var s string
+	err := Eval(ctx, fmt.Sprintf(`(async () => {
+		const db = await new Promise((ok, bad) => { const r = indexedDB.open('cornerbook'); r.onsuccess = () => ok(r.result); r.onerror = () => bad(r.error); });
+		try {
+			const v = await new Promise((ok, bad) => { const r = db.transaction('meta').objectStore('meta').get(%q); r.onsuccess = () => ok(r.result); r.onerror = () => bad(r.error); });
+			return JSON.stringify(v === undefined ? null : v);
+		} finally { db.close(); }
+	})()`, key), &s)
+	if err != nil {
+		return err
+	}
+	return json.Unmarshal([]byte(s), out)
+}
+
+// Waiting is the number of mutations in the outbox.
+func Waiting(ctx context.Context) (int, error) {
+	rows, err := ReadIDB(ctx, "outbox")
+	return len(rows), err
+}
+
+// Nudge asks the app to sync now, as coming back to the foreground does.
+func Nudge(ctx context.Context) error {
+	return Eval(ctx, `(() => { document.dispatchEvent(new Event('visibilitychange')); return true })()`, nil)
+}
+
+// WaitSynced waits until the outbox is empty and the last sync succeeded
+// (the status bar says "Synced"), nudging the app while it waits.
+func WaitSynced(ctx context.Context) error {
+	deadline := time.Now().Add(15 * time.Second)
+	next := time.Now()
+	for {
+		if time.Now().After(next) {
+			_ = Nudge(ctx)
+			next = time.Now().Add(time.Second)
+		}
+		n, err := Waiting(ctx)
+		if err == nil && n == 0 {
+			var ok bool
+			if Eval(ctx, `(() => { const s = document.querySelector('[data-testid="status"]'); return !!s && s.dataset.syncing === 'false' && s.dataset.reachable === 'true' && !!document.querySelector('[data-testid="status-synced"]') })()`, &ok) == nil && ok {
+				return nil
+			}
+		}
+		if time.Now().After(deadline) {
+			st, _ := Text(ctx, "status")
+			return fmt.Errorf("not synced after 15 s: %d waiting; status %q (%v)", n, st, err)
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+}
