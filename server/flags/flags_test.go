@@ -1,0 +1,156 @@
+package flags
+
+import (
+	"encoding/json"
+	"fmt"
+	"testing"
+
+	devsync "cornerbook/sync"
+)
+
+func TestComputeSortsMostSeriousFirst(t *testing.T) {
+	c := &camp{}
+	wellnessBaseline(c)
+	c.wellness(d(30), 3, 2, 3, 4, 3) // wellness alert
+	c.add(kindCheckin, d(30), map[string]any{"usg": 1.022})
+	inc := c.add(kindIncident, d(29), map[string]any{"type": "head_knock"})
+	_ = inc
+	fs := c.run(d(30))
+	if len(fs) < 4 {
+		t.Fatalf("too few flags: %s", describe(fs))
+	}
+	last := -1
+	for i := range fs {
+		r := rank(&fs[i])
+		if r < last {
+			t.Fatalf("not sorted: %s", describe(fs))
+		}
+		if r == last && fs[i-1].Rule > fs[i].Rule {
+			t.Fatalf("rule order: %s", describe(fs))
+		}
+		last = r
+		if fs[i].Athlete != athleteID || fs[i].Day != d(30) || fs[i].Inputs == nil {
+			t.Fatalf("flag identity: %+v", fs[i])
+		}
+	}
+	if fs[0].Rule != RuleWellnessDrop || fs[0].Level != LevelAlert {
+		t.Errorf("first flag %s %s", fs[0].Rule, fs[0].Level)
+	}
+	// Forming flags come last.
+	if fs[len(fs)-1].Status != StatusForming {
+		t.Errorf("last flag should be forming: %s", describe(fs))
+	}
+}
+
+func TestDecisionAcknowledgesSameDayAndRule(t *testing.T) {
+	c := &camp{}
+	c.add(kindCheckin, d(5), map[string]any{"usg": 1.025})
+	c.add(kindDecision, d(4), map[string]any{"rule": RuleHydration, "note": "yesterday's"})
+	c.add(kindDecision, d(5), map[string]any{"rule": RuleHydration, "note": "fluids with breakfast, recheck at noon", "by": "coach"})
+	id := c.last().ID
+	c.add(kindDecision, d(5), map[string]any{"rule": RuleJumpDrop, "note": "other rule"})
+	f := one(t, c.run(d(5)), RuleHydration)
+	if f.Decision == nil || f.Decision.ID != id || f.Decision.By != "coach" || f.Decision.Note != "fluids with breakfast, recheck at noon" {
+		t.Fatalf("decision %+v", f.Decision)
+	}
+	// A later version of a decision (higher stamp) wins over an earlier one.
+	c.add(kindDecision, d(5), map[string]any{"rule": RuleHydration, "note": "revised"})
+	if f := one(t, c.run(d(5)), RuleHydration); f.Decision.Note != "revised" {
+		t.Errorf("latest decision not used: %+v", f.Decision)
+	}
+	// The next day the flag stands unacknowledged.
+	c.add(kindCheckin, d(6), map[string]any{"usg": 1.025})
+	if f := one(t, c.run(d(6)), RuleHydration); f.Decision != nil {
+		t.Errorf("decision leaked to the next day: %+v", f.Decision)
+	}
+}
+
+func TestComputeIgnoresOtherRecords(t *testing.T) {
+	c := &camp{}
+	c.add(kindCheckin, d(5), map[string]any{"usg": 1.035})
+	c.last().Deleted = true
+	c.add(kindCheckin, d(5), map[string]any{"usg": 1.035})
+	c.last().Athlete = "someone-else"
+	c.add(kindCheckin, d(6), map[string]any{"usg": 1.035}) // after the day
+	c.add(kindCheckin, d(5), map[string]any{"usg": 1.035})
+	c.last().Day = "5 March"
+	c.add(kindCheckin, d(5), nil)
+	c.last().Body = json.RawMessage(`{"usg": "high"}`)
+	none(t, c.run(d(5)), RuleHydration)
+	if fs := Compute(Input{Day: "2026-13-01"}); fs != nil {
+		t.Errorf("a bad day gives no flags, got %d", len(fs))
+	}
+}
+
+func TestDefaultThresholdsCoverEveryRuleAndAreCopies(t *testing.T) {
+	th := DefaultThresholds()
+	for _, r := range Rules {
+		if len(th[r]) == 0 {
+			t.Errorf("%s has no parameters", r)
+		}
+	}
+	if len(th) != len(Rules) {
+		t.Errorf("%d rules in defaults, %d rule ids", len(th), len(Rules))
+	}
+	th[RuleHydration]["watch_usg"] = 2
+	if DefaultThresholds()[RuleHydration]["watch_usg"] != 1.020 {
+		t.Error("DefaultThresholds must return a copy")
+	}
+	// Product defaults, PRODUCT.md "Flag rules".
+	for key, want := range map[string]float64{
+		"jump_drop.min_days": 5, "jump_drop.cv_floor_pct": 2, "mass_above_path.factor_same_day": 1.03,
+		"mass_loss_fast.alert_pct_week": 1.5, "cut_at_risk.alert_pct_day_before": 8, "spar_density.cap_rounds": 30,
+		"spar_density.hard_cap_rounds": 15, "load_spike.chronic_n": 28, "wellness_drop.alert_z": -2,
+		"hydration.alert_usg": 1.030, "missing_checkin.hour": 10, "residual_gap.max_strength_days": 35,
+	} {
+		var rule, param string
+		fmt.Sscanf(key, "%s", &rule)
+		for i := range key {
+			if key[i] == '.' {
+				rule, param = key[:i], key[i+1:]
+				break
+			}
+		}
+		if got := DefaultThresholds()[rule][param]; got != want {
+			t.Errorf("%s = %v, want %v", key, got, want)
+		}
+	}
+}
+
+// benchCamp is one athlete with days of records, about 8 a day: a
+// check-in, a jump test, three rounds, two sessions and an intervals
+// record, plus a bout.
+func benchCamp(days int) Input {
+	c := &camp{}
+	start := -days + 1
+	for o := start; o <= 0; o++ {
+		ds := d(o)
+		c.add(kindCheckin, ds, map[string]any{"mass_kg": 70 - 0.01*float64(o-start), "fatigue": 3, "sleep": 4, "soreness": 3, "stress": 4, "mood": 4, "usg": 1.012})
+		c.jump(ds, 38+float64(o%3), 39, 40)
+		c.rounds(ds, 3, 1+(o+days)%3)
+		c.session(ds, 60, 6, "technical")
+		c.session(ds, 45, 5+float64((o+days)%3), "max_strength")
+		c.add("intervals", ds, map[string]any{"modality": "bike", "work_s": 30, "rest_s": 30, "reps": 10, "sets": 2})
+	}
+	c.setBout(map[string]any{"camp_start": d(-20), "weigh_in": d(30) + "T10:00:00+01:00", "weigh_in_type": "day_before",
+		"bout_day": d(31), "limit_kg": 66.7, "start_mass_kg": 70, "reference_load_au": 4500,
+		"weeks": []map[string]any{{"week": 3, "level": "heavy", "spar_cap_rounds": 25}, {"week": 4, "level": "heavy"}}})
+	in := c.input(d(0))
+	in.Records = append([]devsync.Record(nil), c.recs...)
+	return in
+}
+
+func BenchmarkCompute(b *testing.B) {
+	for _, days := range []int{365, 730} {
+		in := benchCamp(days)
+		b.Run(fmt.Sprintf("days=%d", days), func(b *testing.B) {
+			b.ReportAllocs()
+			b.ReportMetric(float64(len(in.Records)), "records")
+			for i := 0; i < b.N; i++ {
+				if fs := Compute(in); len(fs) == 0 {
+					b.Fatal("no flags")
+				}
+			}
+		})
+	}
+}
