@@ -34,6 +34,10 @@ func PrepareAt(now time.Time) func(*devsync.Record) error {
 	return func(rec *devsync.Record) error { return prepare(rec, &now) }
 }
 
+// MinYear is the earliest year a record's days may fall in: a day before
+// it is a mistyped year (common practice, no source).
+const MinYear = 2000
+
 // MaxFutureDays is how far after the hub's date a record's day may be:
 // a device a time zone ahead of the hub may already be on tomorrow.
 const MaxFutureDays = 1
@@ -194,6 +198,9 @@ func parseDay(field, s string) (time.Time, error) {
 	d, err := time.Parse(time.DateOnly, s)
 	if err != nil {
 		return time.Time{}, fe(field, "%s is not a day of the calendar (YYYY-MM-DD)", s)
+	}
+	if d.Year() < MinYear {
+		return time.Time{}, fe(field, "is %s, before %d; check the year", s, MinYear)
 	}
 	return d, nil
 }

@@ -310,11 +310,11 @@ func boutLimit(b *Bout, present map[string]bool) error {
 
 func validateCheckin(c *check, raw json.RawMessage) (any, error) {
 	var b Checkin
-	present, err := decodeBody(raw, &b, KindCheckin)
-	if err != nil {
+	if _, err := decodeBody(raw, &b, KindCheckin); err != nil {
 		return nil, err
 	}
-	if len(present) == 0 {
+	if b.MassKg == nil && b.SleepH == nil && b.Sleep == nil && b.Fatigue == nil && b.Soreness == nil &&
+		b.Stress == nil && b.Mood == nil && b.RHR == nil && b.USG == nil && strings.TrimSpace(b.Note) == "" {
 		return nil, fe("body", "a check-in needs at least one entry: mass_kg, sleep_h, the wellness items, rhr_bpm, usg or a note")
 	}
 	if b.MassKg != nil {
