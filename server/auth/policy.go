@@ -1,0 +1,147 @@
+package auth
+
+import (
+	"fmt"
+	"slices"
+
+	"cornerbook/server/records"
+	devsync "cornerbook/sync"
+)
+
+// Who may write which kind.
+//
+// Athletes write what they report about themselves: the morning check-in,
+// their session RPE, and notes. Staff (assistant coaches, physios, cutmen)
+// write what happens in the gym: every training kind and incidents. Only
+// coaches write the plan and its limits (bout, settings), athletes,
+// clearances and decisions: a clearance ends a stand-down after a head
+// knock and a decision acknowledges a flag, both the coach's judgement
+// (the medical team's, for clearances, entered by the coach).
+var (
+	athleteKinds = []string{records.KindCheckin, records.KindSession, records.KindNote}
+	staffKinds   = []string{
+		records.KindCheckin, records.KindJump, records.KindRound, records.KindIntervals,
+		records.KindSession, records.KindIncident, records.KindNote,
+	}
+)
+
+// ForbiddenError says which field of a record a device may not write and
+// why. errors.Is(err, ErrForbidden) is true; errors.As finds the
+// *devsync.FieldError for the rejection's field and reason.
+type ForbiddenError struct{ Err *devsync.FieldError }
+
+func (e *ForbiddenError) Error() string        { return e.Err.Error() }
+func (e *ForbiddenError) Unwrap() error        { return e.Err }
+func (e *ForbiddenError) Is(target error) bool { return target == ErrForbidden }
+
+func forbid(field, format string, args ...any) error {
+	return &ForbiddenError{Err: &devsync.FieldError{Field: field, Reason: fmt.Sprintf(format, args...)}}
+}
+
+// IsCoach reports whether d is a live coach device.
+func (d Device) IsCoach() bool { return d.Role == RoleCoach && !d.Revoked }
+
+// RequireCoach refuses anything but a live coach device: changing devices,
+// join codes, backups and restores.
+func RequireCoach(d Device) error {
+	if d.Revoked {
+		return ErrRevoked
+	}
+	if d.Role != RoleCoach {
+		return forbid("", "only a coach's device can do this (this is a %s device)", d.Role)
+	}
+	return nil
+}
+
+// CanRead reports whether d may receive rec in a pull (tombstones too:
+// a device must learn of deletes of what it could see). Coach and staff
+// read everything. An athlete's device reads its own athlete's records,
+// its own athlete record, and the camp-wide settings (time zone, check-in
+// hour), and nothing else.
+func CanRead(d Device, rec *devsync.Record) bool {
+	if d.Revoked || rec == nil {
+		return false
+	}
+	switch d.Role {
+	case RoleCoach, RoleStaff:
+		return true
+	case RoleAthlete:
+		if d.Athlete == "" {
+			return false
+		}
+		if rec.Kind == records.KindAthlete {
+			return rec.ID == d.Athlete
+		}
+		if rec.Athlete == "" {
+			return rec.Kind == records.KindSettings
+		}
+		return rec.Athlete == d.Athlete
+	}
+	return false
+}
+
+// CanWrite says whether d may push rec (upsert, delete or restore alike),
+// as a *ForbiddenError naming the field. The record must name d as its
+// device. Coaches write every kind; staff the training kinds and
+// incidents; athletes only check-ins, sessions and notes of their own
+// athlete.
+func CanWrite(d Device, rec *devsync.Record) error {
+	if rec == nil {
+		return forbid("record", "is missing")
+	}
+	if rec.Device != d.ID {
+		return forbid("device", "must be this device (%s), not %q", d.ID, rec.Device)
+	}
+	return canWriteContent(d, rec, "")
+}
+
+// CanOverwrite is CanWrite plus a check of the version already stored
+// under the same id: a device may only replace (or delete) a record it
+// could have written itself. Without it an athlete's device could take
+// another athlete's record by reusing its id with its own athlete, or
+// staff could turn a coach's decision into a note. stored is nil for a
+// new record.
+func CanOverwrite(d Device, stored, incoming *devsync.Record) error {
+	if err := CanWrite(d, incoming); err != nil {
+		return err
+	}
+	if stored == nil {
+		return nil
+	}
+	return canWriteContent(d, stored, "the stored version of this record: ")
+}
+
+func canWriteContent(d Device, rec *devsync.Record, prefix string) error {
+	if d.Revoked {
+		return ErrRevoked
+	}
+	switch d.Role {
+	case RoleCoach:
+		return nil // kinds and bodies are the validator's business
+	case RoleStaff:
+		if !slices.Contains(staffKinds, rec.Kind) {
+			return forbid("kind", "%sa staff device cannot write %s records; ask a coach", prefix, kindName(rec.Kind))
+		}
+		return nil
+	case RoleAthlete:
+		if !slices.Contains(athleteKinds, rec.Kind) {
+			return forbid("kind", "%san athlete's device can write check-ins, sessions and notes, not %s records", prefix, kindName(rec.Kind))
+		}
+		if d.Athlete == "" || rec.Athlete != d.Athlete {
+			who := "the whole camp"
+			if rec.Athlete != "" {
+				who = "athlete " + rec.Athlete
+			}
+			return forbid("athlete", "%sthis device belongs to athlete %s; it cannot write records of %s", prefix, d.Athlete, who)
+		}
+		return nil
+	}
+	return forbid("", "this device has no role")
+}
+
+func kindName(k string) string {
+	if k == "" {
+		return "kindless"
+	}
+	return fmt.Sprintf("%q", k)
+}
