@@ -57,7 +57,7 @@ func goodRecords(t *testing.T) map[string]devsync.Record {
 		"athlete":               edit(mk(KindAthlete, "", "", `{"name":"Ana Invented","units":"lb","birth_year":2001,"sex":"f","active":true}`), func(r *devsync.Record) { r.Athlete = r.ID }),
 		"athlete no athlete":    mk(KindAthlete, "", "", `{"name":"Bo Madeup"}`),
 		"settings camp":         mk(KindSettings, "", "", `{"time_zone":"Europe/Madrid","checkin_hour":9.5,"gym_name":"Invented Boxing Club","thresholds":{"spar_density":{"cap_rounds":24}}}`),
-		"settings athlete":      mk(KindSettings, "ath-1", "", `{"thresholds":{"jump_drop":{"watch_pct":6,"alert_pct":12},"hydration":{"watch_usg":1.025}},"checkin_hour":8}`),
+		"settings athlete":      mk(KindSettings, "ath-1", "", `{"thresholds":{"jump_drop":{"watch_pct":6,"alert_pct":12,"window_days":21},"hydration":{"watch_usg":1.025}},"checkin_hour":8}`),
 		"settings empty":        mk(KindSettings, "", "", `{}`),
 		"bout":                  mk(KindBout, "ath-1", "", goodBout),
 		"bout custom":           mk(KindBout, "ath-1", "", bout(t, map[string]any{"weight_class": "custom", "limit_kg": 62.5})),
@@ -187,9 +187,9 @@ func badCases(t *testing.T) []badCase {
 
 		// settings.
 		{"settings unknown rule", set(`{"thresholds":{"jump":{"watch_pct":5}}}`), "body.thresholds.jump", []string{"jump_drop", "residual_gap"}},
-		{"settings unknown param", setA(`{"thresholds":{"jump_drop":{"drop":5}}}`), "body.thresholds.jump_drop.drop", []string{"watch_pct", "alert_cv"}},
+		{"settings unknown param", setA(`{"thresholds":{"jump_drop":{"drop":5}}}`), "body.thresholds.jump_drop.drop", []string{"watch_pct", "alert_cv", "window_days"}},
 		{"settings param type", setA(`{"thresholds":{"jump_drop":{"watch_pct":"5"}}}`), "body.thresholds.jump_drop.watch_pct", []string{"a number"}},
-		{"settings rule without params", set(`{"thresholds":{"missing_checkin":{"hour":9}}}`), "body.thresholds.missing_checkin.hour", []string{"no thresholds"}},
+		{"settings checkin threshold hour", set(`{"thresholds":{"missing_checkin":{"hour":25}}}`), "body.thresholds.missing_checkin.hour", []string{"0 and 23.5 h"}},
 		{"settings usg out of range", setA(`{"thresholds":{"hydration":{"watch_usg":1.2}}}`), "body.thresholds.hydration.watch_usg", []string{"1.04", "1.2"}},
 		{"settings pct out of range", setA(`{"thresholds":{"mass_loss_fast":{"watch_pct_week":8}}}`), "body.thresholds.mass_loss_fast.watch_pct_week", []string{"5 %/week"}},
 		// Neidecker et al. 2019: knockout stand-down at least 60 days; a setting may not shorten it.
