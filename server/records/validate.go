@@ -51,7 +51,7 @@ const (
 	MaxCheckinHour         = 23.5         // local hour
 	MaxBoutNameLen         = 120
 	MaxShortLen            = 40 // modality, protocol id, jump session id
-	limitMatchKg           = 0.001
+	limitMatchKg           = 0.01 // a limit typed or shown to 0.01 kg still names its class
 )
 
 func validateAthlete(c *check, raw json.RawMessage) (any, error) {
@@ -448,14 +448,10 @@ func validateIntervals(c *check, raw json.RawMessage) (any, error) {
 	if err != nil {
 		return nil, err
 	}
-	if b.Protocol != "" && b.Protocol != ProtocolCustom {
-		if _, ok := ProtocolByID(b.Protocol); !ok {
-			ids := make([]string, len(Protocols))
-			for i, p := range Protocols {
-				ids[i] = p.ID
-			}
-			return nil, fe("body.protocol", "%q is not a template; use one of %s, custom, or leave it out", b.Protocol, strings.Join(ids, ", "))
-		}
+	// A template id from Protocols, "custom", or a camp's own name for a
+	// protocol: templates are a starting point, not a closed list.
+	if err := text("body.protocol", b.Protocol, MaxShortLen, false); err != nil {
+		return nil, err
 	}
 	if strings.TrimSpace(b.Modality) == "" {
 		return nil, fe("body.modality", "is required: what the intervals were done on, e.g. %s", strings.Join(Modalities, ", "))
