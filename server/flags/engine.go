@@ -129,7 +129,7 @@ func newEngine(in *Input) (*engine, bool) {
 			}
 		case kindSession:
 			var b sessionBody
-			if json.Unmarshal(r.Body, &b) != nil {
+			if !decodeSession(r.Body, &b) {
 				continue
 			}
 			s := session{id: r.ID, day: d, loadAU: b.load(), focus: b.Focus}

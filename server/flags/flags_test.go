@@ -154,3 +154,41 @@ func BenchmarkCompute(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkDecodeAll is the baseline for BenchmarkCompute: decoding every
+// body of the same records once with encoding/json, which any engine that
+// reads all the records would pay.
+func BenchmarkDecodeAll(b *testing.B) {
+	for _, days := range []int{365, 730} {
+		in := benchCamp(days)
+		b.Run(fmt.Sprintf("days=%d", days), func(b *testing.B) {
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				for j := range in.Records {
+					r := &in.Records[j]
+					var err error
+					switch r.Kind {
+					case kindCheckin:
+						var v checkinBody
+						err = json.Unmarshal(r.Body, &v)
+					case kindJump:
+						var v jumpBody
+						err = json.Unmarshal(r.Body, &v)
+					case kindRound:
+						var v roundBody
+						err = json.Unmarshal(r.Body, &v)
+					case kindSession:
+						var v sessionBody
+						err = json.Unmarshal(r.Body, &v)
+					default:
+						var v map[string]json.RawMessage
+						err = json.Unmarshal(r.Body, &v)
+					}
+					if err != nil {
+						b.Fatal(err)
+					}
+				}
+			}
+		})
+	}
+}
