@@ -228,3 +228,21 @@ func (s *Store) Redeem(code, deviceName, from string, now time.Time) (Device, st
 	}
 	return Device{}, "", err
 }
+
+// CancelJoin withdraws an unused join code (the coach closed the code's
+// screen, or showed it to the wrong person). Used or unknown codes fail.
+func (s *Store) CancelJoin(code string) error {
+	code = normalizeCode(code)
+	return s.db.Update(func(tx *bolt.Tx) error {
+		b := tx.Bucket(bucketJoins)
+		v := b.Get(codeKey(code))
+		if v == nil {
+			return ErrJoinUnknown
+		}
+		var r joinRec
+		if err := json.Unmarshal(v, &r); err == nil && !r.UsedAt.IsZero() {
+			return ErrJoinUsed
+		}
+		return b.Delete(codeKey(code))
+	})
+}

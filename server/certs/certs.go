@@ -22,6 +22,7 @@ package certs
 
 import (
 	"bytes"
+	"context"
 	"crypto"
 	"crypto/ecdsa"
 	"crypto/elliptic"
@@ -598,4 +599,30 @@ func writeFileAtomic(path string, data []byte, mode os.FileMode) error {
 		d.Close()
 	}
 	return nil
+}
+
+// Keep re-checks the names every interval until ctx ends and renews the
+// leaf when the laptop's addresses change (a new venue's Wi-Fi while the
+// hub runs) or expiry nears. report, if not nil, is told of each renewal
+// (with the reason) and each failure; names is usually CurrentNames and
+// now time.Now.
+func (b *Bundle) Keep(ctx context.Context, every time.Duration, names func() Names, now func() time.Time, report func(reason string, err error)) {
+	t := time.NewTicker(every)
+	defer t.Stop()
+	for {
+		select {
+		case <-ctx.Done():
+			return
+		case <-t.C:
+		}
+		n, at := names(), now()
+		reason := b.NeedsRenewal(n, at)
+		if reason == "" {
+			continue
+		}
+		changed, err := b.Renew(n, at)
+		if report != nil && (changed || err != nil) {
+			report(reason, err)
+		}
+	}
 }

@@ -1,6 +1,7 @@
 package certs
 
 import (
+	"context"
 	"crypto/ecdsa"
 	"crypto/elliptic"
 	"crypto/sha256"
@@ -19,6 +20,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 
@@ -396,4 +398,38 @@ func TestNormalizeDeduplicates(t *testing.T) {
 	}.normalize()
 	assert.Equal(t, []string{"laptop.local", "localhost"}, n.DNS)
 	assert.Len(t, n.IPs, 3) // 127.0.0.1, 192.168.1.2, ::1
+}
+
+func TestKeepFollowsAddressChanges(t *testing.T) {
+	b, err := Ensure(t.TempDir(), campNames(), t0)
+	require.NoError(t, err)
+	caDER := b.CADER()
+	var mu sync.Mutex
+	current := campNames()
+	names := func() Names { mu.Lock(); defer mu.Unlock(); return current }
+	renewed := make(chan string, 4)
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	go b.Keep(ctx, 5*time.Millisecond, names, func() time.Time { return t0 }, func(reason string, err error) {
+		assert.NoError(t, err)
+		renewed <- reason
+	})
+
+	mu.Lock()
+	current.IPs = append(current.IPs, net.ParseIP("192.168.8.23"))
+	mu.Unlock()
+	select {
+	case reason := <-renewed:
+		assert.Contains(t, reason, "192.168.8.23")
+	case <-time.After(5 * time.Second):
+		t.Fatal("the new address was not picked up")
+	}
+	assert.NoError(t, verifyName(t, b, "192.168.8.23", t0))
+	assert.Equal(t, caDER, b.CADER())
+	// No further renewals while nothing changes.
+	select {
+	case r := <-renewed:
+		t.Fatalf("renewed again without a change: %s", r)
+	case <-time.After(50 * time.Millisecond):
+	}
 }
