@@ -103,7 +103,9 @@ func (l *logBuf) String() string {
 
 func start(t *testing.T, dir string) (*pwatest.Browser, context.Context, *logBuf) {
 	log := &logBuf{}
+	t0 := time.Now()
 	b := pwatest.Start(t, pwatest.Options{UserDataDir: dir, Log: log})
+	t.Logf("browser started in %s", time.Since(t0))
 	t.Cleanup(func() {
 		if t.Failed() || os.Getenv("PWA_LOG") != "" {
 			t.Logf("browser log:\n%s", log.String())

@@ -192,8 +192,9 @@ func mimeOf(p string) string {
 
 // Handler serves the app. Mount it under "/" after the /api routes: it
 // answers /api/* with 404 so a missing API route never returns the app.
-func Handler() http.Handler {
-	b := load()
+func Handler() http.Handler { return load().handler() }
+
+func (b *bundle) handler() http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		if r.Method != http.MethodGet && r.Method != http.MethodHead {
 			w.Header().Set("Allow", "GET, HEAD")

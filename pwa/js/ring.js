@@ -19,7 +19,7 @@ function useEdit(kind) {
 
 // ---------------- jump grid ----------------
 // Valid ranges: flight 200–1000 ms, i.e. about 4.9–122.6 cm by h = g·t²/8.
-const RANGE = { height: [5, 120, 'cm'], flight: [200, 1000, 'ms'] };
+const RANGE = { height: [1, 120, 'cm'], flight: [200, 1000, 'ms'] };
 
 export function Jumps() {
   const list = useAthletes();
@@ -210,10 +210,10 @@ export const PROTOCOLS = [
 ];
 const MODALITIES = [['bike', 'Bike'], ['run', 'Run'], ['rower', 'Rower'], ['bag', 'Bag'], ['skip', 'Skipping'], ['other', 'Other']];
 const NUM_FIELDS = [
-  ['work_s', 'Work', 's', 1, 3600], ['rest_s', 'Rest', 's', 0, 3600], ['reps', 'Reps per set', '', 1, 100],
+  ['work_s', 'Work', 's', 1, 3600], ['rest_s', 'Rest', 's', 0, 3600], ['reps', 'Reps per set', '', 1, 200],
   ['sets', 'Sets', '', 1, 20], ['set_rest_s', 'Rest between sets', 's', 0, 3600],
 ];
-const OPT_FIELDS = [['done_reps', 'Reps completed', '', 0, 2000], ['hr_peak', 'Peak heart rate', 'bpm', 40, 240], ['hr_mean', 'Mean heart rate', 'bpm', 40, 240], ['rpe', 'RPE (0–10)', '', 0, 10]];
+const OPT_FIELDS = [['done_reps', 'Reps completed', '', 0, 2000], ['hr_peak', 'Peak heart rate', 'bpm', 40, 230], ['hr_mean', 'Mean heart rate', 'bpm', 40, 230], ['rpe', 'RPE (0–10)', '', 0, 10]];
 
 export function Intervals() {
   const list = useAthletes();

@@ -99,18 +99,18 @@ export function Checkin() {
     }
     const sh = parseNum(f.sleep_h);
     if (f.sleep_h) {
-      if (!(sh >= 0 && sh <= 24)) errs.push('Sleep must be between 0 and 24 hours.');
+      if (!(sh >= 0 && sh <= 16)) errs.push('Sleep must be between 0 and 16 hours.');
       else body.sleep_h = sh;
     }
     for (const [k] of WELLNESS) if (f[k]) body[k] = f[k];
     const rhr = parseNum(f.rhr);
     if (f.rhr) {
-      if (!(Number.isInteger(rhr) && rhr >= 25 && rhr <= 220)) errs.push('Resting heart rate must be a whole number between 25 and 220 bpm.');
+      if (!(Number.isInteger(rhr) && rhr >= 25 && rhr <= 150)) errs.push('Resting heart rate must be a whole number between 25 and 150 bpm.');
       else body.rhr_bpm = rhr;
     }
     const usg = parseNum(f.usg);
     if (f.usg) {
-      if (!(usg >= 1.0 && usg <= 1.05)) errs.push('Urine specific gravity must be between 1.000 and 1.050.');
+      if (!(usg >= 1.0 && usg <= 1.04)) errs.push('Urine specific gravity must be between 1.000 and 1.040.');
       else body.usg = usg;
     }
     if (f.note && f.note.trim()) body.note = f.note.trim();
@@ -185,7 +185,7 @@ export function Session() {
     e.preventDefault();
     if (!athlete) return setState({ error: 'Choose the athlete first.' });
     if (f.rpe === undefined) return setState({ error: 'Pick how hard the session was (0–10).' });
-    if (!(minutes > 0 && minutes <= 600)) return setState({ error: 'Minutes must be between 1 and 600.' });
+    if (!(minutes >= 1 && minutes <= 300)) return setState({ error: 'Duration must be between 1 and 300 min.' });
     const body = { type: f.type, minutes, rpe: f.rpe };
     if (f.focus) body.focus = f.focus;
     if (f.note && f.note.trim()) body.note = f.note.trim();

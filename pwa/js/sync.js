@@ -218,6 +218,7 @@ async function registerBackgroundSync() {
 
 let ws = null;
 let wsFailures = 0;
+let lastPokeSeq = -1;
 function connectWS() {
   const proto = location.protocol === 'https:' ? 'wss:' : 'ws:';
   getMeta('token').then((token) => {
@@ -230,8 +231,10 @@ function connectWS() {
     ws.onmessage = (e) => {
       let m;
       try { m = JSON.parse(e.data); } catch (_) { return; }
-      if (m.t === 'hello') { wsFailures = 0; requestSync('ws-hello'); }
-      if (m.t === 'poke') requestSync('poke');
+      // hello: (re)connected, so catch up. poke: only when the hub's
+      // sequence moved (the hub also sends heartbeat pokes).
+      if (m.t === 'hello') { wsFailures = 0; lastPokeSeq = m.seq; requestSync('ws-hello'); }
+      if (m.t === 'poke' && m.seq !== lastPokeSeq) { lastPokeSeq = m.seq; requestSync('poke'); }
     };
     ws.onclose = () => { ws = null; retryWS(); };
     ws.onerror = () => { try { ws && ws.close(); } catch (_) { /* closing anyway */ } };

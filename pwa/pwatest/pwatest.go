@@ -48,8 +48,10 @@ type Options struct {
 	// Pass the same directory to two successive browsers to test that the
 	// device's data survives a restart.
 	UserDataDir string
-	// Log receives the browser's stderr and the page's console, if set.
+	// Log receives the page's console messages and uncaught exceptions.
 	Log io.Writer
+	// BrowserOutput receives Chromium's own stdout and stderr.
+	BrowserOutput io.Writer
 }
 
 // Browser is one running Chromium.
@@ -87,8 +89,8 @@ func Start(t testing.TB, opt Options) *Browser {
 		chromedp.NoFirstRun,
 		chromedp.WindowSize(412, 915), // a phone-sized window
 	)
-	if opt.Log != nil {
-		flags = append(flags, chromedp.CombinedOutput(opt.Log))
+	if opt.BrowserOutput != nil {
+		flags = append(flags, chromedp.CombinedOutput(opt.BrowserOutput))
 	}
 	allocCtx, allocCancel := chromedp.NewExecAllocator(context.Background(), flags...)
 	var ctxOpts []chromedp.ContextOption
@@ -231,9 +233,16 @@ func Click(ctx context.Context, testid string) error {
 	return chromedp.Do(ctx, chromedp.Click(chromedp.CSS(sel), chromedp.NodeVisible))
 }
 
-// Type types text into the input with a data-testid, as keystrokes.
+// Type replaces the text of the input with a data-testid, typing the new
+// text as keystrokes.
 func Type(ctx context.Context, testid, text string) error {
 	sel := Q(testid)
+	if err := Poll(ctx, fmt.Sprintf(`document.querySelector(%q)`, sel), 5*time.Second); err != nil {
+		return err
+	}
+	if err := Eval(ctx, fmt.Sprintf(`(() => { const e = document.querySelector(%q); if (e.value !== '') { e.value = ''; e.dispatchEvent(new Event('input', { bubbles: true })); } return true })()`, sel), nil); err != nil {
+		return err
+	}
 	return chromedp.Do(ctx, chromedp.SendKeys(chromedp.CSS(sel), text, chromedp.NodeVisible))
 }
 
