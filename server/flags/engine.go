@@ -15,6 +15,12 @@ import (
 // 28-day baselines plus the day, and the mass trend's 42 days).
 const recentDays = 42
 
+// maxHistoryDays bounds the load series: records older than this many days
+// before the evaluated day are ignored (a mistyped year cannot make the
+// engine allocate centuries of days). After ten years the chronic EWMA
+// keeps no trace of its seed.
+const maxHistoryDays = 3650
+
 type checkin struct {
 	id   string
 	at   string
@@ -86,7 +92,7 @@ func newEngine(in *Input) (*engine, bool) {
 			continue
 		}
 		d, ok := dayOf(r.Day)
-		if ok && d < e.first && r.Kind != kindAthlete && r.Kind != kindBout && r.Kind != kindSettings {
+		if ok && d < e.first && d >= today-maxHistoryDays && r.Kind != kindAthlete && r.Kind != kindBout && r.Kind != kindSettings {
 			e.first = d
 		}
 	}

@@ -21,6 +21,7 @@ import (
 	"sort"
 	"time"
 
+	"cornerbook/server/records"
 	devsync "cornerbook/sync"
 )
 
@@ -39,20 +40,20 @@ const (
 
 // Rule ids (fixed by the product; settings and decisions name them).
 const (
-	RuleJumpDrop       = "jump_drop"
-	RuleMassAbovePath  = "mass_above_path"
-	RuleMassLossFast   = "mass_loss_fast"
-	RuleCutAtRisk      = "cut_at_risk"
-	RuleSparDensity    = "spar_density"
-	RuleSparSpacing    = "spar_spacing"
-	RuleSparOnHold     = "spar_on_hold"
-	RuleLoadSpike      = "load_spike"
-	RuleMonotony       = "monotony"
-	RuleWellnessDrop   = "wellness_drop"
-	RuleHydration      = "hydration"
-	RuleMissingCheckin = "missing_checkin"
-	RuleOffPlan        = "off_plan"
-	RuleResidualGap    = "residual_gap"
+	RuleJumpDrop       = records.RuleJumpDrop
+	RuleMassAbovePath  = records.RuleMassAbovePath
+	RuleMassLossFast   = records.RuleMassLossFast
+	RuleCutAtRisk      = records.RuleCutAtRisk
+	RuleSparDensity    = records.RuleSparDensity
+	RuleSparSpacing    = records.RuleSparSpacing
+	RuleSparOnHold     = records.RuleSparOnHold
+	RuleLoadSpike      = records.RuleLoadSpike
+	RuleMonotony       = records.RuleMonotony
+	RuleWellnessDrop   = records.RuleWellnessDrop
+	RuleHydration      = records.RuleHydration
+	RuleMissingCheckin = records.RuleMissingCheckin
+	RuleOffPlan        = records.RuleOffPlan
+	RuleResidualGap    = records.RuleResidualGap
 )
 
 // Rules lists every rule id in a stable order.

@@ -97,22 +97,17 @@ func TestDefaultThresholdsCoverEveryRuleAndAreCopies(t *testing.T) {
 		t.Error("DefaultThresholds must return a copy")
 	}
 	// Product defaults, PRODUCT.md "Flag rules".
-	for key, want := range map[string]float64{
-		"jump_drop.min_days": 5, "jump_drop.cv_floor_pct": 2, "mass_above_path.factor_same_day": 1.03,
-		"mass_loss_fast.alert_pct_week": 1.5, "cut_at_risk.alert_pct_day_before": 8, "spar_density.cap_rounds": 30,
-		"spar_density.hard_cap_rounds": 15, "load_spike.chronic_n": 28, "wellness_drop.alert_z": -2,
-		"hydration.alert_usg": 1.030, "missing_checkin.hour": 10, "residual_gap.max_strength_days": 35,
+	for _, c := range []struct {
+		rule, param string
+		want        float64
+	}{
+		{RuleJumpDrop, "min_days", 5}, {RuleJumpDrop, "cv_floor_pct", 2}, {RuleMassAbovePath, "factor_same_day", 1.03},
+		{RuleMassLossFast, "alert_pct_week", 1.5}, {RuleCutAtRisk, "alert_pct_day_before", 8}, {RuleSparDensity, "cap_rounds", 30},
+		{RuleSparDensity, "hard_cap_rounds", 15}, {RuleLoadSpike, "chronic_n", 28}, {RuleWellnessDrop, "alert_z", -2},
+		{RuleHydration, "alert_usg", 1.030}, {RuleMissingCheckin, "hour", 10}, {RuleResidualGap, "max_strength_days", 35},
 	} {
-		var rule, param string
-		fmt.Sscanf(key, "%s", &rule)
-		for i := range key {
-			if key[i] == '.' {
-				rule, param = key[:i], key[i+1:]
-				break
-			}
-		}
-		if got := DefaultThresholds()[rule][param]; got != want {
-			t.Errorf("%s = %v, want %v", key, got, want)
+		if got := DefaultThresholds()[c.rule][c.param]; got != c.want {
+			t.Errorf("%s.%s = %v, want %v", c.rule, c.param, got, c.want)
 		}
 	}
 }

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"cornerbook/server/flags/day"
+	"cornerbook/server/records"
 	devsync "cornerbook/sync"
 )
 
@@ -198,38 +199,24 @@ func TaperBand(referenceAU, minCutPct, maxCutPct float64) (lowAU, highAU float64
 	return referenceAU * (1 - maxCutPct/100), referenceAU * (1 - minCutPct/100)
 }
 
-// Gravity used for heights from flight time, m/s² (many sport papers use
-// 9.81; the difference from standard gravity is 0.035 %).
-const Gravity = 9.81
+// HeightFromFlight is the jump height in cm from flight time in ms by the
+// flight-time method, h = g·t²/8 (records.JumpHeightCm, g = records.G).
+func HeightFromFlight(ms float64) float64 { return records.JumpHeightCm(ms) }
 
-// Valid jump attempts (flight time 0.20–1.00 s; common practice, no
-// source): heights in cm.
-var (
-	minJumpCm = HeightFromFlight(200)
-	maxJumpCm = HeightFromFlight(1000)
-)
-
-// HeightFromFlight is the jump height in cm from flight time in ms:
-// h = g·t²/8 (flight-time method).
-func HeightFromFlight(ms float64) float64 {
-	t := ms / 1000
-	return Gravity * t * t / 8 * 100
-}
-
-// validHeights lists a jump's valid attempts in cm, from heights if given,
-// else from flight times.
+// validHeights lists a jump's valid attempts in cm (the ranges records
+// validation accepts), from heights if given, else from flight times.
 func validHeights(b *jumpBody) []float64 {
 	var out []float64
 	if len(b.HeightsCm) > 0 {
 		for _, h := range b.HeightsCm {
-			if h >= minJumpCm-1e-9 && h <= maxJumpCm+1e-9 {
+			if h >= records.MinHeightCm && h <= records.MaxHeightCm {
 				out = append(out, h)
 			}
 		}
 		return out
 	}
 	for _, ms := range b.FlightMs {
-		if ms >= 200 && ms <= 1000 {
+		if ms >= records.MinFlightMs && ms <= records.MaxFlightMs {
 			out = append(out, HeightFromFlight(ms))
 		}
 	}

@@ -10,8 +10,7 @@ import (
 func TestHeightFromFlight(t *testing.T) {
 	approxV(t, "t 0.500 s", HeightFromFlight(500), 30.6563, 0.05)
 	approxV(t, "t 0.600 s", HeightFromFlight(600), 44.1450, 0.05)
-	approxV(t, "min valid", minJumpCm, 4.905, 0.001)
-	approxV(t, "max valid", maxJumpCm, 122.625, 0.001)
+	approxV(t, "1.000 s", HeightFromFlight(1000), 122.625, 0.001)
 }
 
 // jumpBaseline logs five test days in the 28 days before d(40), with rest

@@ -80,9 +80,6 @@ func (e *engine) massLossFast() {
 	window := int(e.param(rule, "window_days"))
 	minN := int(e.param(rule, "min_checkins"))
 	days, kg, ids := e.massSeries(e.today - day.Number(window) + 1)
-	if len(kg) == 0 {
-		return // no masses at all: nothing to say beyond missing_checkin
-	}
 	if len(kg) < minN {
 		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: ids,
 			Reason: fmt.Sprintf("Rate of loss forming: %d of %d morning masses in the last %d days.", len(kg), minN, window)})

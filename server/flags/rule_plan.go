@@ -55,15 +55,9 @@ func (e *engine) offPlan() {
 	if !ok || w.Level == "" {
 		return
 	}
-	frac := e.param(rule, "level_"+w.Level)
-	if _, known := defaults[rule]["level_"+w.Level]; !known {
-		if _, set := e.in.Settings[rule]["level_"+w.Level]; !set {
-			return // a level with no fraction: nothing to compare
-		}
-	}
-	planned := frac * ref
+	planned := e.param(rule, "level_"+w.Level) * ref
 	if planned <= 0 {
-		return
+		return // a level with no fraction (or a zero one): nothing to compare
 	}
 	elapsed := int(e.today-start) + 1
 	inputs := e.sessionIDs(start)

@@ -136,9 +136,9 @@ func (e *engine) sparSpacing() {
 // alert for any sparring round logged inside it.
 func (e *engine) sparOnHold() {
 	const rule = RuleSparOnHold
-	stop := int(e.param(rule, "stoppage_days"))
-	ko := int(e.param(rule, "knockout_days"))
-	koLOC := int(e.param(rule, "knockout_loc_days"))
+	stop := int(e.atLeast(rule, "stoppage_days"))
+	ko := int(e.atLeast(rule, "knockout_days"))
+	koLOC := int(e.atLeast(rule, "knockout_loc_days"))
 	var active []incident
 	for _, inc := range e.incidents {
 		sd := StandDownFor(inc.kind, stop, ko, koLOC)
@@ -200,7 +200,7 @@ func (e *engine) sparOnHold() {
 		e.add(f)
 	}
 	if len(sparIDs) > 0 {
-		e.add(Flag{Rule: rule, Level: LevelAlert, Value: f64(float64(len(sparIDs))), Threshold: f64(0), Unit: "rounds",
+		e.add(Flag{Rule: rule, Level: LevelAlert, Value: f64(float64(len(sparIDs))), Unit: "rounds",
 			Inputs: append(sparIDs, incIDs...), Caution: CautionHead,
 			Reason: fmt.Sprintf("%d sparring round(s) logged today during a stand-down; no sparring or contact until cleared in writing by a doctor.", len(sparIDs))})
 	}

@@ -177,6 +177,12 @@ func TestSparOnHoldDatedMinimums(t *testing.T) {
 	in := c.input(d(35))
 	in.Settings = map[string]map[string]float64{RuleSparOnHold: {"stoppage_days": 42}}
 	one(t, Compute(in), RuleSparOnHold)
+	// …but never shortened below the published minimum.
+	in = c.input(d(20))
+	in.Settings = map[string]map[string]float64{RuleSparOnHold: {"stoppage_days": 10}}
+	if f := one(t, Compute(in), RuleSparOnHold); *f.Threshold != 30 {
+		t.Errorf("stand-down shortened to %v days", *f.Threshold)
+	}
 	// An injury carries no sparring stand-down.
 	c = &camp{}
 	c.add(kindIncident, d(0), map[string]any{"type": "injury"})
