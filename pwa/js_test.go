@@ -47,8 +47,8 @@ func TestJSModulesMatchGoAndReferences(t *testing.T) {
 
 	t.Run("HLC matches sync.Clock", func(t *testing.T) {
 		type op struct {
-			Recv bool       `json:"recv"`
-			PT   int64      `json:"pt"`
+			Recv bool        `json:"recv"`
+			PT   int64       `json:"pt"`
 			M    devsync.HLC `json:"m"`
 		}
 		r := rand.New(rand.NewPCG(1, 2))
@@ -105,8 +105,8 @@ func TestJSModulesMatchGoAndReferences(t *testing.T) {
 	t.Run("units and jump arithmetic", func(t *testing.T) {
 		var v struct {
 			Kg100, Lb, H500, H600 float64
-			Mean, Best          float64
-			N                   int
+			Mean, Best            float64
+			N                     int
 		}
 		require.NoError(t, pwatest.Eval(ctx, `import('/js/record.js').then((m) => {
 			const st = m.attemptStats([30.1, 31.4, 29.9, NaN, 0]);
