@@ -263,6 +263,10 @@ func TestRealTLSHandshake(t *testing.T) {
 		require.NoError(t, err, sni)
 		st := conn.ConnectionState()
 		assert.Equal(t, b.Leaf().SerialNumber, st.PeerCertificates[0].SerialNumber)
+		// The authority follows the leaf, so Chromium's SPKI allow-list
+		// (SPKIHash) finds it in the chain.
+		require.Len(t, st.PeerCertificates, 2)
+		assert.Equal(t, b.CADER(), st.PeerCertificates[1].Raw)
 		assert.GreaterOrEqual(t, st.Version, uint16(tls.VersionTLS12))
 		conn.Close()
 	}
