@@ -1,0 +1,168 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"slices"
+	"strings"
+	"time"
+
+	"cornerbook/server"
+	"cornerbook/server/dataio"
+	"cornerbook/server/records"
+	"cornerbook/storage"
+)
+
+func dataFlag(fs *flag.FlagSet) *string {
+	return fs.String("data", DefaultDataDir, "data folder")
+}
+
+func runImport(args []string, stdin io.Reader, stdout, stderr io.Writer) error {
+	fs := flag.NewFlagSet("import", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	data := dataFlag(fs)
+	if err := parseInterleaved(fs, args); err != nil {
+		return errUsage
+	}
+	if fs.NArg() != 1 {
+		fmt.Fprintln(stderr, "import takes one FILE of JSON Lines (- reads standard input)")
+		return errUsage
+	}
+	in := stdin
+	if name := fs.Arg(0); name != "-" {
+		f, err := os.Open(name)
+		if err != nil {
+			return err
+		}
+		defer f.Close()
+		in = f
+	}
+	db, err := openData(*data, time.Now)
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	last := time.Time{}
+	res, err := dataio.ImportJSONL(db, in, records.PrepareAt(time.Now()), func(done, total int) {
+		if time.Since(last) > 200*time.Millisecond || done == total {
+			fmt.Fprintf(stderr, "\rimporting: %d of %d records (%d%%)", done, total, done*100/max(total, 1))
+			last = time.Now()
+		}
+	})
+	if res.Lines > 0 {
+		fmt.Fprintln(stderr)
+	}
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "imported %d records: %d stored, %d already up to date\n", res.Lines, res.Applied, res.Unchanged)
+	return nil
+}
+
+func runExport(args []string, stdout io.Writer) error {
+	fs := flag.NewFlagSet("export", flag.ContinueOnError)
+	data := dataFlag(fs)
+	kind := fs.String("kind", "", "only this record kind ("+strings.Join(records.Kinds, ", ")+")")
+	asCSV := fs.Bool("csv", false, "CSV of one kind (RFC 4180, units in the header) instead of JSON Lines")
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 {
+		return errUsage
+	}
+	if *kind != "" && !slices.Contains(records.Kinds, *kind) {
+		return fmt.Errorf("--kind %q is not a record kind (one of %s)", *kind, strings.Join(records.Kinds, ", "))
+	}
+	if *asCSV && *kind == "" {
+		return errors.New("--csv needs --kind K: CSV holds one kind per file")
+	}
+	db, err := openData(*data, time.Now)
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	if *asCSV {
+		return dataio.ExportCSV(db, stdout, *kind)
+	}
+	return dataio.ExportJSONL(db, stdout, *kind)
+}
+
+func runFlags(args []string, stdout io.Writer) error {
+	fs := flag.NewFlagSet("flags", flag.ContinueOnError)
+	data := dataFlag(fs)
+	day := fs.String("day", "", "the day, YYYY-MM-DD (required)")
+	athlete := fs.String("athlete", "", "only this athlete id")
+	asJSON := fs.Bool("json", false, "JSON list instead of one line per flag")
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 {
+		return errUsage
+	}
+	if _, err := time.Parse("2006-01-02", *day); err != nil {
+		return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
+	}
+	db, err := openData(*data, time.Now)
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	srv, err := server.New(server.Config{Store: db})
+	if err != nil {
+		return err
+	}
+	fl, err := srv.Flags(*day, *athlete)
+	if err != nil {
+		return err
+	}
+	if *asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		if fl == nil {
+			return enc.Encode([]any{})
+		}
+		return enc.Encode(fl)
+	}
+	names := srv.AthleteNames()
+	for _, f := range fl {
+		fmt.Fprintf(stdout, "%-6s %-16s %-18s %s\n", strings.ToUpper(f.Level), names[f.Athlete], f.Rule, f.Reason)
+	}
+	if len(fl) == 0 {
+		fmt.Fprintln(stdout, "no flags for this day")
+	}
+	return nil
+}
+
+func runBackup(args []string, stdout io.Writer) error {
+	fs := flag.NewFlagSet("backup", flag.ContinueOnError)
+	data := dataFlag(fs)
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 1 {
+		return errUsage
+	}
+	db, err := openData(*data, time.Now)
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	n, err := storage.BackupFile(db, fs.Arg(0))
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "backup written: %s (%d KiB)\n", fs.Arg(0), n>>10)
+	return nil
+}
+
+func runRestore(args []string, stdout io.Writer) error {
+	fs := flag.NewFlagSet("restore", flag.ContinueOnError)
+	data := dataFlag(fs)
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 1 {
+		return errUsage
+	}
+	if err := os.MkdirAll(*data, 0o700); err != nil {
+		return err
+	}
+	epoch, err := storage.RestoreFile(fs.Arg(0), dataPath(*data))
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "restored %s into %s; new epoch %s (devices will resync)\n", fs.Arg(0), *data, epoch)
+	return nil
+}

@@ -1,0 +1,66 @@
+// Command cornerbook is the camp hub: it serves the app and the sync
+// endpoints, and its subcommands import, export, compute flags, back up
+// and restore the data folder. Every subcommand works while the hub is
+// stopped; while a hub holds the folder, it says so instead of hanging.
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"syscall"
+)
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	os.Exit(Run(ctx, os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
+}
+
+// Run dispatches a command line and returns the exit code.
+func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	cmd := "serve"
+	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
+		cmd, args = args[0], args[1:]
+	}
+	var err error
+	switch cmd {
+	case "serve":
+		err = runServe(ctx, args, stdout, stderr)
+	case "import":
+		err = runImport(args, stdin, stdout, stderr)
+	case "export":
+		err = runExport(args, stdout)
+	case "flags":
+		err = runFlags(args, stdout)
+	case "backup":
+		err = runBackup(args, stdout)
+	case "restore":
+		err = runRestore(args, stdout)
+	case "help", "-h", "--help":
+		fmt.Fprint(stdout, usage)
+		return 0
+	default:
+		fmt.Fprintf(stderr, "cornerbook: %q is not a command\n\n%s", cmd, usage)
+		return 2
+	}
+	if err != nil {
+		if err == errUsage {
+			return 2
+		}
+		fmt.Fprintf(stderr, "cornerbook %s: %v\n", cmd, err)
+		return 1
+	}
+	return 0
+}
+
+const usage = `Usage:
+  cornerbook [serve] [--data DIR] [--addr ADDR] [--demo]
+  cornerbook import  --data DIR FILE        (JSON Lines; - reads standard input)
+  cornerbook export  --data DIR [--kind K] [--csv]
+  cornerbook flags   --data DIR --day YYYY-MM-DD [--athlete ID] [--json]
+  cornerbook backup  --data DIR FILE
+  cornerbook restore --data DIR FILE
+`

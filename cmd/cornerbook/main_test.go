@@ -1,0 +1,138 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"io"
+	"net/http"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+// runCmd runs one command line and returns its exit code and output.
+func runCmd(t *testing.T, stdin string, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := Run(context.Background(), args, strings.NewReader(stdin), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+// mustRunMain starts the hub on a free port in a temp folder.
+func mustRunMain(t *testing.T, demo bool) *Main {
+	t.Helper()
+	m := NewMain()
+	m.Config.Addr = "127.0.0.1:0"
+	m.Config.DataDir = t.TempDir()
+	m.Config.Demo = demo
+	m.Stdout = io.Discard
+	require.NoError(t, m.Run(context.Background()))
+	t.Cleanup(func() { m.Close() })
+	return m
+}
+
+// TestMain_DemoServesAppAndCamp: the demo hub answers with the app and the
+// invented camp's athletes.
+func TestMain_DemoServesAppAndCamp(t *testing.T) {
+	m := mustRunMain(t, true)
+	base := m.Server.URL()
+	resp, err := http.Get(base + "/")
+	require.NoError(t, err)
+	body, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	assert.Equal(t, 200, resp.StatusCode)
+	assert.Contains(t, string(body), "<html")
+
+	resp, err = http.Get(base + "/api/pull?since=0&limit=2000")
+	require.NoError(t, err)
+	var page struct {
+		Records []struct{ Kind string }
+	}
+	require.NoError(t, json.NewDecoder(resp.Body).Decode(&page))
+	resp.Body.Close()
+	athletes := 0
+	for _, r := range page.Records {
+		if r.Kind == "athlete" {
+			athletes++
+		}
+	}
+	assert.Equal(t, 4, athletes, "the demo camp has four invented athletes")
+}
+
+// TestCommands_LockedFolder: while a hub holds the folder, commands say so
+// clearly instead of hanging.
+func TestCommands_LockedFolder(t *testing.T) {
+	m := mustRunMain(t, false)
+	start := time.Now()
+	code, _, stderr := runCmd(t, "", "export", "--data", m.Config.DataDir)
+	assert.Equal(t, 1, code)
+	assert.Contains(t, stderr, "in use by another cornerbook")
+	assert.Less(t, time.Since(start), 10*time.Second)
+}
+
+// TestCommands_ExportImportRoundTrip: export → import into an empty folder
+// → export gives identical output, and a second import stores nothing new.
+func TestCommands_ExportImportRoundTrip(t *testing.T) {
+	m := mustRunMain(t, true)
+	dir := m.Config.DataDir
+	require.NoError(t, m.Close())
+
+	code, first, stderr := runCmd(t, "", "export", "--data", dir)
+	require.Equal(t, 0, code, stderr)
+	require.Greater(t, strings.Count(first, "\n"), 500)
+	file := filepath.Join(t.TempDir(), "camp.jsonl")
+	require.NoError(t, os.WriteFile(file, []byte(first), 0o600))
+
+	fresh := filepath.Join(t.TempDir(), "fresh")
+	code, out, stderr := runCmd(t, "", "import", "--data", fresh, file)
+	require.Equal(t, 0, code, stderr)
+	assert.Contains(t, out, "stored")
+	code, second, _ := runCmd(t, "", "export", "--data", fresh)
+	require.Equal(t, 0, code)
+	assert.Equal(t, first, second, "export → import → export is identical")
+
+	code, out, _ = runCmd(t, first, "import", "--data", fresh, "-")
+	require.Equal(t, 0, code)
+	assert.Contains(t, out, "0 stored", "importing the same file twice stores nothing new")
+
+	code, csv, _ := runCmd(t, "", "export", "--data", fresh, "--kind", "checkin", "--csv")
+	require.Equal(t, 0, code)
+	header := strings.SplitN(csv, "\n", 2)[0]
+	assert.Contains(t, header, "mass_kg (kg)", "units in the CSV header")
+}
+
+// TestCommands_BadImport: a file with bad lines imports nothing and names
+// every bad line and field.
+func TestCommands_BadImport(t *testing.T) {
+	dir := t.TempDir()
+	bad := `{"id":"0193a1b2-0000-7000-8000-000000000001","kind":"athlete","athlete":"0193a1b2-0000-7000-8000-000000000001","day":"2026-11-01","at":"2026-11-01T08:00:00Z","device":"d1","stamp":{"l":1,"c":0},"body":{"name":"A","units":"kg"}}
+{"id":"0193a1b2-0000-7000-8000-000000000002","kind":"checkin","athlete":"0193a1b2-0000-7000-8000-000000000001","day":"2026-11-02","at":"2026-11-02T08:00:00Z","device":"d1","stamp":{"l":2,"c":0},"body":{"mass_kg":900}}
+not json at all
+`
+	code, _, stderr := runCmd(t, bad, "import", "--data", dir, "-")
+	assert.Equal(t, 1, code)
+	assert.Contains(t, stderr, "line 2: body.mass_kg")
+	assert.Contains(t, stderr, "line 3:")
+	assert.Contains(t, stderr, "nothing was imported")
+	code, out, _ := runCmd(t, "", "export", "--data", dir)
+	assert.Equal(t, 0, code)
+	assert.Empty(t, out, "nothing was stored")
+}
+
+func TestCommands_Usage(t *testing.T) {
+	code, _, stderr := runCmd(t, "", "frobnicate")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, stderr, "is not a command")
+	code, _, stderr = runCmd(t, "", "flags", "--data", t.TempDir(), "--day", "2026-13-01")
+	assert.Equal(t, 1, code)
+	assert.Contains(t, stderr, "--day must be a calendar day")
+	code, _, stderr = runCmd(t, "", "export", "--data", t.TempDir(), "--kind", "lunch")
+	assert.Equal(t, 1, code)
+	assert.Contains(t, stderr, "not a record kind")
+}

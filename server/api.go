@@ -1,0 +1,264 @@
+package server
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"net/http"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/gorilla/mux"
+
+	"cornerbook/pwa"
+	"cornerbook/storage"
+	devsync "cornerbook/sync"
+)
+
+// handlePush applies a batch of numbered mutations in one transaction and
+// acknowledges only after the commit.
+func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessWrite)
+	if err != nil {
+		return err
+	}
+	var req devsync.PushRequest
+	if err := decodeStrict(w, r, devsync.MaxPushBytes, &req); err != nil {
+		return err
+	}
+	if req.Device == "" {
+		return userError(devsync.CodeBadRequest, "device", "is required: the id of the device that made these entries")
+	}
+	if len(req.Device) > 100 {
+		return userError(devsync.CodeBadRequest, "device", "is longer than 100 characters")
+	}
+	if who.DeviceID != "" && req.Device != who.DeviceID {
+		return userError(devsync.CodeForbidden, "device", "does not match the device this token was issued to")
+	}
+	if len(req.Mutations) > devsync.MaxMutationsPerPush {
+		return userError(CodeTooLarge, "mutations", fmt.Sprintf("holds %d entries; send at most %d per push", len(req.Mutations), devsync.MaxMutationsPerPush))
+	}
+	now := s.now().UnixMilli()
+	for i, m := range req.Mutations {
+		if m.Record.Stamp.L > now+devsync.MaxDriftMs {
+			e := userError(devsync.CodeClockSkew, fmt.Sprintf("mutations[%d].record.stamp.l", i),
+				fmt.Sprintf("is %s ahead of the hub's clock; check the device's date and time (nothing in this push was applied)", humanMs(m.Record.Stamp.L-now)))
+			e.ServerTime = now
+			return e
+		}
+	}
+	res, err := s.store.Push(req, who.allowWrite(req.Device))
+	if err != nil {
+		if e := fromField(err); e != nil {
+			return e
+		}
+		return err
+	}
+	var top devsync.HLC
+	for _, m := range req.Mutations {
+		if m.Record.Stamp.Compare(top) > 0 {
+			top = m.Record.Stamp
+		}
+	}
+	hlc := s.observe(top)
+	epoch, err := s.store.Epoch()
+	if err != nil {
+		return err
+	}
+	if res.Rejected == nil {
+		res.Rejected = []devsync.Rejection{}
+	}
+	for i := range res.Rejected {
+		// Fields are named as in the record format ("id", "body.mass_kg").
+		res.Rejected[i].Field = strings.TrimPrefix(res.Rejected[i].Field, "record.")
+	}
+	writeJSON(w, http.StatusOK, devsync.PushResponse{
+		AckedThrough: res.AckedThrough, Rejected: res.Rejected,
+		Applied: res.Applied, Superseded: res.Superseded, Duplicates: res.Duplicates,
+		ServerTime: s.now().UnixMilli(), ServerHLC: hlc, MaxSeq: res.MaxSeq, Epoch: epoch,
+	})
+	if res.Applied > 0 {
+		s.flags.Changed(res.Changed)
+		s.hub.Poke(res.MaxSeq)
+	}
+	return nil
+}
+
+// handlePull returns one page of records after a cursor.
+func (s *Server) handlePull(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	q := r.URL.Query()
+	since, err := uintParam(q.Get("since"), "since", 0)
+	if err != nil {
+		return err
+	}
+	limit, err := uintParam(q.Get("limit"), "limit", devsync.DefaultPullLimit)
+	if err != nil {
+		return err
+	}
+	if limit == 0 || limit > devsync.MaxPullLimit {
+		return userError(devsync.CodeBadRequest, "limit", fmt.Sprintf("must be between 1 and %d", devsync.MaxPullLimit))
+	}
+	recs, next, more, maxSeq, err := s.store.Pull(since, int(limit), who.canRead)
+	if err != nil {
+		return err
+	}
+	epoch, err := s.store.Epoch()
+	if err != nil {
+		return err
+	}
+	if recs == nil {
+		recs = []devsync.Record{}
+	}
+	writeJSON(w, http.StatusOK, devsync.PullResponse{
+		Epoch: epoch, Records: recs, Next: next, More: more, MaxSeq: maxSeq,
+		ServerTime: s.now().UnixMilli(), ServerHLC: s.stampNow(),
+	})
+	return nil
+}
+
+// Status is the hub's self-description for screens.
+type Status struct {
+	Name       string `json:"name"`
+	Epoch      string `json:"epoch"`
+	MaxSeq     uint64 `json:"maxSeq"`
+	ServerTime int64  `json:"serverTime"`
+	Build      string `json:"build"`
+	TimeZone   string `json:"timeZone"`
+	Today      string `json:"today"`
+	Peers      int    `json:"peers"`
+	Role       string `json:"role"`
+	Athlete    string `json:"athlete,omitempty"`
+}
+
+func (s *Server) handleStatus(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	epoch, err := s.store.Epoch()
+	if err != nil {
+		return err
+	}
+	loc := s.flags.location()
+	writeJSON(w, http.StatusOK, Status{
+		Name: s.cfg.Name, Epoch: epoch, MaxSeq: s.hub.seq.Load(), ServerTime: s.now().UnixMilli(),
+		Build: pwa.BuildHash(), TimeZone: loc.String(), Today: s.now().In(loc).Format("2006-01-02"),
+		Peers: s.hub.Count(), Role: who.Role, Athlete: who.Athlete,
+	})
+	return nil
+}
+
+func (s *Server) handleHistory(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	id := mux.Vars(r)["id"]
+	versions, err := s.store.History(id)
+	if errors.Is(err, storage.ErrNotFound) || (err == nil && len(versions) == 0) {
+		return userError(CodeNotFound, "id", "no record with this id")
+	}
+	if err != nil {
+		return err
+	}
+	if !who.canRead(&versions[len(versions)-1]) {
+		return userError(CodeNotFound, "id", "no record with this id")
+	}
+	writeJSON(w, http.StatusOK, map[string]any{"id": id, "versions": versions})
+	return nil
+}
+
+// decodeStrict reads a JSON body of at most limit bytes that must be valid
+// UTF-8 and hold only known fields.
+func decodeStrict(w http.ResponseWriter, r *http.Request, limit int64, v any) error {
+	body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			return userError(CodeTooLarge, "body", fmt.Sprintf("is larger than %d KiB; send fewer entries per push", limit>>10))
+		}
+		return userError(devsync.CodeBadRequest, "body", "could not be read: "+err.Error())
+	}
+	return decodeJSON(body, v)
+}
+
+// decodeJSON decodes one JSON value strictly, naming the field at fault.
+func decodeJSON(body []byte, v any) error {
+	if !utf8.Valid(body) {
+		return userError(devsync.CodeBadRequest, "body", "is not valid UTF-8 text")
+	}
+	dec := json.NewDecoder(bytes.NewReader(body))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		return jsonError(err)
+	}
+	if dec.More() {
+		return userError(devsync.CodeBadRequest, "body", "holds more than one JSON value")
+	}
+	return nil
+}
+
+// jsonError explains a decoding error in terms of the field.
+func jsonError(err error) error {
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		return userError(devsync.CodeBadRequest, "body", fmt.Sprintf("is not valid JSON (near byte %d): %v", se.Offset, se))
+	case errors.As(err, &te):
+		return userError(devsync.CodeBadRequest, te.Field, fmt.Sprintf("must be %s, not a JSON %s", jsonKind(te.Type.String()), te.Value))
+	case errors.Is(err, io.EOF):
+		return userError(devsync.CodeBadRequest, "body", "is empty")
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		return userError(devsync.CodeBadRequest, "body", "ends in the middle of a JSON value (was the upload cut?)")
+	case strings.HasPrefix(err.Error(), "json: unknown field "):
+		return userError(devsync.CodeBadRequest, strings.Trim(strings.TrimPrefix(err.Error(), "json: unknown field "), `"`), "is not a known field")
+	}
+	return userError(devsync.CodeBadRequest, "body", err.Error())
+}
+
+func jsonKind(goType string) string {
+	switch {
+	case strings.HasPrefix(goType, "int"), strings.HasPrefix(goType, "uint"):
+		return "a whole number"
+	case strings.HasPrefix(goType, "float"):
+		return "a number"
+	case goType == "string":
+		return "text"
+	case goType == "bool":
+		return "true or false"
+	case strings.HasPrefix(goType, "[]"):
+		return "a list"
+	}
+	return "an object"
+}
+
+func uintParam(v, name string, def uint64) (uint64, error) {
+	if v == "" {
+		return def, nil
+	}
+	n, err := strconv.ParseUint(v, 10, 64)
+	if err != nil {
+		return 0, userError(devsync.CodeBadRequest, name, fmt.Sprintf("must be a whole number of 0 or more; got %q", v))
+	}
+	return n, nil
+}
+
+func humanMs(ms int64) string {
+	switch {
+	case ms >= 86_400_000:
+		return fmt.Sprintf("%.1f days", float64(ms)/86_400_000)
+	case ms >= 3_600_000:
+		return fmt.Sprintf("%.1f hours", float64(ms)/3_600_000)
+	case ms >= 60_000:
+		return fmt.Sprintf("%.0f minutes", float64(ms)/60_000)
+	}
+	return fmt.Sprintf("%.0f seconds", float64(ms)/1000)
+}

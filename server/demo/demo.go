@@ -1,0 +1,379 @@
+// Package demo builds the invented demo camp: an invented gym and four
+// invented fighters with six weeks of history ending on a given day, drawn
+// from a fixed seed so the same day always gives the same camp. It is laid
+// out so that every flag rule has something to show.
+//
+// Everything here is invented: the gym, the people, the bouts and every
+// number. Day-to-day variability is realistic in size (morning body mass
+// CV about 0.5 %, Cheuvront et al. 2004; CMJ day-to-day CV about 3–5 %,
+// Markovic et al. 2004 — both as summarised in REFERENCES.md).
+package demo
+
+import (
+	"encoding/binary"
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"time"
+
+	"cornerbook/server/records"
+	"cornerbook/storage"
+	devsync "cornerbook/sync"
+)
+
+// Seed fixes the demo's random draws.
+const Seed = 20261201
+
+// GymName is the invented gym.
+const GymName = "Millrace Boxing Gym"
+
+// HistoryDays is how many days of history end on the seeding day.
+const HistoryDays = 42
+
+// SeedDevice numbers the seeding pushes.
+const SeedDevice = "demo-seeder"
+
+// fighter is one invented athlete and the story the demo tells about him or her.
+type fighter struct {
+	key        string
+	name       string
+	units      string
+	sex        string
+	birthYear  int
+	class      string
+	limitKg    float64
+	weighType  string
+	startMass  float64
+	campStart  int // day offset from today (negative)
+	boutIn     int // days from today to the bout
+	massAt     func(d int) float64
+	baseCMJ    float64
+	refLoad    float64
+}
+
+// Build returns every record of the demo camp for the history ending on
+// today (the camp's local day), in the order they would have been logged.
+func Build(today time.Time) []devsync.Record {
+	g := &gen{rng: rand.New(rand.NewPCG(Seed, 0x5eed)), today: dayStart(today), loc: today.Location()}
+	return g.build()
+}
+
+// SeedIfEmpty pushes the demo camp into an empty store through the normal
+// push path. It returns how many records it stored (0 if the store already
+// held data).
+func SeedIfEmpty(db *storage.DB, now time.Time) (int, error) {
+	seq, err := db.MaxSeq()
+	if err != nil || seq > 0 {
+		return 0, err
+	}
+	recs := Build(now)
+	dev, err := db.Device(SeedDevice)
+	if err != nil && err != storage.ErrNotFound {
+		return 0, err
+	}
+	n := dev.LastN
+	stored := 0
+	for start := 0; start < len(recs); start += 500 {
+		end := min(start+500, len(recs))
+		req := devsync.PushRequest{Device: SeedDevice}
+		for _, r := range recs[start:end] {
+			n++
+			req.Mutations = append(req.Mutations, devsync.Mutation{N: n, Op: devsync.OpUpsert, Record: r})
+		}
+		res, err := db.Push(req, nil)
+		if err != nil {
+			return stored, err
+		}
+		if len(res.Rejected) > 0 {
+			rj := res.Rejected[0]
+			return stored, fmt.Errorf("demo record %s refused: %s: %s", rj.ID, rj.Field, rj.Reason)
+		}
+		stored += res.Applied
+	}
+	return stored, nil
+}
+
+type gen struct {
+	rng   *rand.Rand
+	today time.Time
+	loc   *time.Location
+	out   []devsync.Record
+}
+
+func dayStart(t time.Time) time.Time {
+	y, m, d := t.Date()
+	return time.Date(y, m, d, 0, 0, 0, 0, t.Location())
+}
+
+func (g *gen) day(off int) time.Time { return g.today.AddDate(0, 0, off) }
+
+func (g *gen) dayStr(off int) string { return g.day(off).Format("2006-01-02") }
+
+// id makes a UUIDv7 from a time and the seeded generator (RFC 9562 layout).
+func (g *gen) id(t time.Time) string {
+	var b [16]byte
+	ms := uint64(t.UnixMilli())
+	b[0], b[1], b[2], b[3], b[4], b[5] = byte(ms>>40), byte(ms>>32), byte(ms>>24), byte(ms>>16), byte(ms>>8), byte(ms)
+	binary.BigEndian.PutUint64(b[8:], g.rng.Uint64())
+	binary.BigEndian.PutUint16(b[6:], uint16(g.rng.Uint32()))
+	b[6] = (b[6] & 0x0f) | 0x70
+	b[8] = (b[8] & 0x3f) | 0x80
+	return fmt.Sprintf("%x-%x-%x-%x-%x", b[0:4], b[4:6], b[6:8], b[8:10], b[10:16])
+}
+
+// add appends one record logged at day offset off, hh:mm local time.
+func (g *gen) add(kind, athlete string, off, hh, mm int, device string, body any) string {
+	at := g.day(off).Add(time.Duration(hh)*time.Hour + time.Duration(mm)*time.Minute + time.Duration(g.rng.IntN(50))*time.Second)
+	raw, err := json.Marshal(body)
+	if err != nil {
+		panic(err)
+	}
+	id := g.id(at)
+	if kind == records.KindAthlete {
+		athlete = id
+	}
+	g.out = append(g.out, devsync.Record{
+		ID: id, Kind: kind, Athlete: athlete, Day: g.dayStr(off), At: at.Format(time.RFC3339),
+		Device: device, Stamp: devsync.HLC{L: at.UnixMilli()}, Body: raw,
+	})
+	return id
+}
+
+func (g *gen) norm(sd float64) float64 { return g.rng.NormFloat64() * sd }
+
+func round1(x float64) float64 { return math.Round(x*10) / 10 }
+func round2(x float64) float64 { return math.Round(x*100) / 100 }
+
+func ptr[T any](v T) *T { return &v }
+
+const coachTablet = "demo-coach-tablet"
+
+func (g *gen) build() []devsync.Record {
+	start := -HistoryDays + 1
+	// Camp-wide settings: the gym's name and the morning check-in hour.
+	g.add(records.KindSettings, "", start, 6, 0, coachTablet, records.Settings{GymName: GymName, CheckinHour: ptr(10.0)})
+
+	lb := records.LbToKg
+	fs := []*fighter{
+		{ // Pro lightweight, pounds. Story: mass stays above the planned
+			// path, so the cut left for the final week grows; and his
+			// training load jumps in the last week.
+			key: "tomas", name: "Tomas Varga", units: "lb", sex: "m", birthYear: 1998,
+			class: "pro_lightweight", limitKg: lb(135), weighType: "day_before", startMass: 66.4,
+			campStart: start + 3, boutIn: 28, baseCMJ: 44.0, refLoad: 2400,
+			massAt: func(d int) float64 { return 66.4 - 0.004*float64(d-start) },
+		},
+		{ // Amateur 57 kg woman, kilograms, same-day weigh-in. Story: a
+			// fast-loss fortnight, concentrated urine this morning, and a
+			// week of near-identical loads.
+			key: "ines", name: "Ines Halloran", units: "kg", sex: "f", birthYear: 2001,
+			class: "wb2025_f_57", limitKg: 57, weighType: "same_day", startMass: 60.6,
+			campStart: start + 1, boutIn: 42, baseCMJ: 33.0, refLoad: 2100,
+			massAt: func(d int) float64 {
+				if d <= -14 {
+					return 60.6 - 0.02*float64(d-start)
+				}
+				return 60.6 - 0.02*float64(-14-start) - 0.145*float64(d+14)
+			},
+		},
+		{ // Amateur 71 kg, kilograms. Story: a hard-sparring streak this
+			// week, with jump height and wellness falling today.
+			key: "kofi", name: "Kofi Brandt", units: "kg", sex: "m", birthYear: 1996,
+			class: "ol2024_m_71", limitKg: 71, weighType: "same_day", startMass: 74.2,
+			campStart: start + 6, boutIn: 56, baseCMJ: 42.0, refLoad: 2600,
+			massAt: func(d int) float64 { return 74.2 - 0.035*float64(d-start) },
+		},
+		{ // Pro welterweight, pounds. Story: a head knock five days ago, no
+			// clearance yet, a sparring round logged during the stand-down,
+			// a missed check-in this morning and a taper that cuts too little.
+			key: "mateo", name: "Mateo Lindqvist", units: "lb", sex: "m", birthYear: 1994,
+			class: "pro_welterweight", limitKg: lb(147), weighType: "day_before", startMass: 70.6,
+			campStart: start, boutIn: 23, baseCMJ: 46.0, refLoad: 2800,
+			massAt: func(d int) float64 { return 70.6 - 0.075*float64(d-start) },
+		},
+	}
+	for _, f := range fs {
+		g.fighter(f, start)
+	}
+	return g.out
+}
+
+func (g *gen) fighter(f *fighter, start int) {
+	phone := "demo-phone-" + f.key
+	aid := g.add(records.KindAthlete, "", start, 6, 0, coachTablet, records.Athlete{Name: f.name, Units: f.units, BirthYear: f.birthYear, Sex: f.sex})
+
+	campStart, boutDay := f.campStart, f.boutIn
+	weighDay := boutDay - 1
+	if f.weighType == "same_day" {
+		weighDay = boutDay
+	}
+	weigh := g.day(weighDay).Add(9 * time.Hour)
+	weeks := planWeeks(campStart, boutDay)
+	if f.key == "mateo" {
+		// The coach typed the taper week as "low" (a 25 % cut): off_plan
+		// points out that this is lighter than the 41–60 % band.
+		weeks[len(weeks)-1].Level = "low"
+	}
+	g.add(records.KindBout, aid, campStart, 8, 0, coachTablet, records.Bout{
+		Name: "Invented bout, week " + fmt.Sprint(len(weeks)), CampStart: g.dayStr(campStart), WeighIn: weigh.Format(time.RFC3339),
+		WeighInType: f.weighType, BoutDay: g.dayStr(boutDay), WeightClass: f.class, LimitKg: round2(f.limitKg),
+		StartMassKg: f.startMass, ReferenceLoadAU: f.refLoad, Weeks: weeks,
+	})
+
+	for d := start; d <= 0; d++ {
+		wd := g.day(d).Weekday()
+		g.checkin(f, aid, phone, d)
+		// Jumps on Monday, Wednesday and Friday mornings, three attempts.
+		if wd == time.Monday || wd == time.Wednesday || wd == time.Friday || (f.key == "kofi" && d == 0) {
+			g.jump(f, aid, d)
+		}
+		if wd == time.Sunday {
+			continue // rest day: no sessions, no rounds
+		}
+		g.trainingDay(f, aid, phone, d, wd)
+	}
+	g.story(f, aid, phone)
+}
+
+// planWeeks is the step-loading plan the coach started from: three
+// building weeks then a lighter one, and a taper in the final week.
+func planWeeks(campStart, boutDay int) []records.Week {
+	n := (boutDay - campStart + 6) / 7
+	cycle := []string{"medium", "medium_heavy", "heavy", "low"}
+	var ws []records.Week
+	for i := 1; i <= n; i++ {
+		lvl := cycle[(i-1)%4]
+		if i == n {
+			lvl = "taper"
+		}
+		ws = append(ws, records.Week{Week: i, Level: lvl, SparCapRounds: ptr(30)})
+	}
+	return ws
+}
+
+func (g *gen) checkin(f *fighter, aid, phone string, d int) {
+	if f.key == "mateo" && d == 0 {
+		return // missed this morning's check-in
+	}
+	if g.rng.Float64() < 0.03 && d < -2 {
+		return // the odd forgotten morning
+	}
+	mass := round1(f.massAt(d) + g.norm(0.3))
+	item := func() *int { return ptr(min(5, max(1, 3+g.rng.IntN(2)+g.rng.IntN(2)-g.rng.IntN(2)))) }
+	c := records.Checkin{MassKg: ptr(mass), SleepH: ptr(round1(7.4 + g.norm(0.6))), Sleep: item(), Fatigue: item(),
+		Soreness: item(), Stress: item(), Mood: item(), RHR: ptr(52 + g.rng.IntN(7))}
+	if d%3 == 0 {
+		c.USG = ptr(math.Round((1.010+g.rng.Float64()*0.007)*1000) / 1000)
+	}
+	switch {
+	case f.key == "ines" && d == 0:
+		c.USG = ptr(1.032) // concentrated: hydration alert
+	case f.key == "ines" && d == -9:
+		c.USG = ptr(1.023) // a watch-level reading earlier
+	case f.key == "kofi" && d == 0:
+		c.Sleep, c.Fatigue, c.Soreness, c.Stress, c.Mood = ptr(2), ptr(1), ptr(2), ptr(3), ptr(2)
+		c.SleepH = ptr(5.4)
+	}
+	g.add(records.KindCheckin, aid, d, 7, 10+g.rng.IntN(40), phone, c)
+}
+
+func (g *gen) jump(f *fighter, aid string, d int) {
+	base := f.baseCMJ * (1 + g.norm(0.025))
+	if f.key == "kofi" && d == 0 {
+		base = f.baseCMJ * 0.86 // a clear drop after the sparring streak
+	}
+	j := records.Jump{Test: "cmj", Method: "mat"}
+	if f.units == "lb" {
+		// This athlete's sessions use the mat's flight-time read-out.
+		for i := 0; i < 3; i++ {
+			h := base * (1 + g.norm(0.015))
+			t := math.Sqrt(8 * h / 100 / 9.81)
+			j.FlightMs = append(j.FlightMs, math.Round(t*1000))
+		}
+	} else {
+		for i := 0; i < 3; i++ {
+			j.HeightsCm = append(j.HeightsCm, round1(base*(1+g.norm(0.015))))
+		}
+	}
+	g.add(records.KindJump, aid, d, 9, 40+g.rng.IntN(15), coachTablet, j)
+}
+
+func (g *gen) session(aid, device string, d, hh int, typ, focus string, minutes, rpe float64) {
+	g.add(records.KindSession, aid, d, hh, g.rng.IntN(50), device, records.Session{Type: typ, Focus: focus, Minutes: minutes, RPE: rpe})
+}
+
+func (g *gen) rounds(aid string, d int, activity string, n, intensity int, seconds int) {
+	for i := 0; i < n; i++ {
+		g.add(records.KindRound, aid, d, 16, 5+4*i, coachTablet, records.Round{Activity: activity, Seconds: seconds, Intensity: intensity})
+	}
+}
+
+func (g *gen) trainingDay(f *fighter, aid, phone string, d int, wd time.Weekday) {
+	scale := 1.0
+	if f.key == "tomas" {
+		scale = 0.8
+		if d > -7 {
+			scale = 2.5 // the last week's jump in load: double sessions
+		}
+	}
+	if f.key == "ines" && d > -7 {
+		// Near-identical sessions every day of the last week.
+		g.session(aid, phone, d, 18, "boxing", "technical", 70, 6)
+		g.rounds(aid, d, "pads", 4, 2, 180)
+		return
+	}
+	// Boxing every training day.
+	g.session(aid, phone, d, 18, "boxing", "technical", math.Round(60*scale+g.norm(8)), math.Round(5+g.rng.Float64()*2))
+	switch wd {
+	case time.Monday, time.Thursday:
+		focus := "max_strength"
+		if f.key == "mateo" {
+			focus = "strength_speed" // no max-strength work all camp: residual gap
+		}
+		g.session(aid, phone, d, 11, "strength", focus, math.Round(50*scale), 7)
+	case time.Tuesday, time.Friday:
+		focus := "anaerobic"
+		if wd == time.Friday {
+			focus = "plyometric"
+			if f.key == "kofi" && d > -12 {
+				focus = "aerobic" // speed work dropped lately
+			}
+		}
+		g.add(records.KindIntervals, aid, d, 10, 30, coachTablet, records.Intervals{
+			Protocol: "rounds_3x1", Modality: "bike", WorkS: 180, RestS: 60, Reps: 6, Sets: 1, RPE: ptr(8.0), HRPeak: ptr(182 + g.rng.IntN(8)),
+		})
+		g.session(aid, phone, d, 10, "conditioning", focus, math.Round(35*scale), 8)
+	}
+	// Rounds: sparring on Tuesday and Thursday, pads and bag otherwise.
+	switch {
+	case f.key == "kofi" && d >= -3:
+		g.rounds(aid, d, "spar", 7, 3, 180) // the hard streak
+	case f.key == "mateo" && d >= -5 && d < 0:
+		if d == -2 {
+			g.rounds(aid, d, "spar", 1, 1, 120) // logged during the stand-down
+		} else {
+			g.rounds(aid, d, "drill", 3, 1, 180)
+		}
+	case wd == time.Tuesday || wd == time.Thursday:
+		g.rounds(aid, d, "spar", 5+g.rng.IntN(3), 2+g.rng.IntN(2), 180)
+	default:
+		g.rounds(aid, d, "pads", 4, 2, 180)
+		g.rounds(aid, d, "bag", 3, 2, 180)
+	}
+}
+
+// story adds the one-off events.
+func (g *gen) story(f *fighter, aid, phone string) {
+	switch f.key {
+	case "mateo":
+		g.add(records.KindIncident, aid, -5, 16, 40, coachTablet, records.Incident{Type: "head_knock", Note: "Heavy right hand in sparring; sat out the rest of the session."})
+		g.add(records.KindNote, aid, -4, 9, 0, coachTablet, records.Note{Text: "Seen by the camp doctor; no contact until cleared.", By: "S&C coach"})
+	case "kofi":
+		g.add(records.KindDecision, aid, -1, 12, 35, coachTablet, records.Decision{Rule: "spar_spacing", Note: "Third hard day; kept it, but no sparring tomorrow unless jumps are back.", By: "S&C coach"})
+	case "tomas":
+		// An earlier knockdown, cleared by the doctor the next day.
+		inc := g.add(records.KindIncident, aid, -30, 16, 30, coachTablet, records.Incident{Type: "knockdown", Note: "Slipped and caught a jab; stood up at once."})
+		g.add(records.KindClearance, aid, -29, 10, 0, coachTablet, records.Clearance{Incident: inc, By: "Camp doctor", Note: "Examined; no signs of concussion."})
+	}
+}

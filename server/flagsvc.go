@@ -1,0 +1,318 @@
+package server
+
+import (
+	"encoding/json"
+	"fmt"
+	"net/http"
+	"sort"
+	"sync"
+	"time"
+
+	"cornerbook/server/flags"
+	"cornerbook/server/records"
+	"cornerbook/storage"
+	devsync "cornerbook/sync"
+)
+
+// History windows the flag rules need: the longest rolling window is the
+// 28-day baseline plus the 28-day chronic load, and residual gaps look
+// back up to ~40 days; incidents and clearances are read in full because a
+// stand-down can outlast any window.
+const flagWindowDays = 120
+
+// flagService computes the day's flags from the store and keeps them
+// current: a push invalidates only the athletes it touched, and the
+// current day of those athletes is recomputed and announced.
+type flagService struct {
+	s *Server
+
+	mu    sync.Mutex // guards cache
+	cache map[string][]flags.Flag
+}
+
+func newFlagService(s *Server) *flagService {
+	return &flagService{s: s, cache: map[string][]flags.Flag{}}
+}
+
+func cacheKey(athlete, day string) string { return athlete + "|" + day }
+
+// location is the camp's time zone: the camp-wide setting, else the hub's.
+func (f *flagService) location() *time.Location {
+	st := f.campSettings()
+	if st.TimeZone != "" {
+		if loc, err := time.LoadLocation(st.TimeZone); err == nil {
+			return loc
+		}
+	}
+	return f.s.cfg.Location
+}
+
+func (f *flagService) campSettings() records.Settings {
+	var out records.Settings
+	var latest devsync.Record
+	f.s.store.Range("", records.KindSettings, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
+		if latest.ID == "" || r.Stamp.Compare(latest.Stamp) > 0 {
+			latest = r
+		}
+		return nil
+	})
+	if latest.ID != "" {
+		json.Unmarshal(latest.Body, &out)
+	}
+	return out
+}
+
+// Today is the camp's current local day.
+func (f *flagService) Today() string { return f.s.now().In(f.location()).Format("2006-01-02") }
+
+// Athletes lists the camp's live athlete records, by name.
+func (f *flagService) Athletes() ([]devsync.Record, error) {
+	var out []devsync.Record
+	err := f.s.store.Kind(records.KindAthlete, func(r devsync.Record) error {
+		out = append(out, r)
+		return nil
+	})
+	sort.Slice(out, func(i, j int) bool { return athleteName(out[i]) < athleteName(out[j]) })
+	return out, err
+}
+
+func athleteName(r devsync.Record) string {
+	var a records.Athlete
+	json.Unmarshal(r.Body, &a)
+	return a.Name
+}
+
+// Day returns the flags of one day for one athlete, or all athletes when
+// athlete is "". Results are cached until a push touches the athlete.
+func (f *flagService) Day(day, athlete string) ([]flags.Flag, error) {
+	ids := []string{athlete}
+	if athlete == "" {
+		ath, err := f.Athletes()
+		if err != nil {
+			return nil, err
+		}
+		ids = ids[:0]
+		for _, a := range ath {
+			ids = append(ids, a.ID)
+		}
+	}
+	var out []flags.Flag
+	for _, id := range ids {
+		fl, err := f.forAthlete(id, day)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, fl...)
+	}
+	sortFlags(out)
+	return out, nil
+}
+
+func (f *flagService) forAthlete(id, day string) ([]flags.Flag, error) {
+	k := cacheKey(id, day)
+	f.mu.Lock()
+	fl, ok := f.cache[k]
+	f.mu.Unlock()
+	if ok {
+		return fl, nil
+	}
+	in, err := f.input(id, day)
+	if err != nil {
+		return nil, err
+	}
+	fl = flags.Compute(in)
+	f.mu.Lock()
+	f.cache[k] = fl
+	f.mu.Unlock()
+	return fl, nil
+}
+
+// input gathers one athlete's records for the rules.
+func (f *flagService) input(id, day string) (flags.Input, error) {
+	ath, err := f.s.store.Get(id)
+	if err != nil || ath.Deleted || ath.Kind != records.KindAthlete {
+		return flags.Input{}, userError(CodeNotFound, "athlete", fmt.Sprintf("no athlete with id %q", id))
+	}
+	from, err := addDays(day, -flagWindowDays)
+	if err != nil {
+		return flags.Input{}, err
+	}
+	in := flags.Input{Day: day, Now: f.s.now(), Location: f.location(), Athlete: ath}
+	windowed := []string{records.KindCheckin, records.KindJump, records.KindRound, records.KindSession,
+		records.KindIntervals, records.KindDecision}
+	for _, kind := range windowed {
+		if err := f.s.store.Range(id, kind, from, day, func(r devsync.Record) error {
+			in.Records = append(in.Records, r)
+			return nil
+		}); err != nil {
+			return in, err
+		}
+	}
+	for _, kind := range []string{records.KindIncident, records.KindClearance} {
+		if err := f.s.store.Range(id, kind, "0000-01-01", day, func(r devsync.Record) error {
+			in.Records = append(in.Records, r)
+			return nil
+		}); err != nil {
+			return in, err
+		}
+	}
+	// The bout: the one whose bout day is the nearest on or after the day;
+	// else the latest before it.
+	var best *devsync.Record
+	var bestDay string
+	f.s.store.Range(id, records.KindBout, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
+		var b records.Bout
+		if json.Unmarshal(r.Body, &b) != nil {
+			return nil
+		}
+		r2 := r
+		switch {
+		case best == nil:
+			best, bestDay = &r2, b.BoutDay
+		case b.BoutDay >= day && (bestDay < day || b.BoutDay < bestDay):
+			best, bestDay = &r2, b.BoutDay
+		case b.BoutDay < day && bestDay < day && b.BoutDay > bestDay:
+			best, bestDay = &r2, b.BoutDay
+		}
+		return nil
+	})
+	in.Bout = best
+	in.Settings = f.settingsFor(id)
+	return in, nil
+}
+
+// settingsFor merges camp-wide thresholds under the athlete's own.
+func (f *flagService) settingsFor(id string) map[string]map[string]float64 {
+	out := map[string]map[string]float64{}
+	merge := func(st records.Settings) {
+		for rule, params := range st.Thresholds {
+			if out[rule] == nil {
+				out[rule] = map[string]float64{}
+			}
+			for k, v := range params {
+				out[rule][k] = v
+			}
+		}
+	}
+	merge(f.campSettings())
+	var latest devsync.Record
+	f.s.store.Range(id, records.KindSettings, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
+		if latest.ID == "" || r.Stamp.Compare(latest.Stamp) > 0 {
+			latest = r
+		}
+		return nil
+	})
+	if latest.ID != "" {
+		var st records.Settings
+		if json.Unmarshal(latest.Body, &st) == nil {
+			merge(st)
+		}
+	}
+	return out
+}
+
+// Changed drops cached flags of the athletes the records touch and
+// recomputes their current day; dashboards are poked when it changes.
+func (f *flagService) Changed(recs []devsync.Record) {
+	all := false
+	touched := map[string]bool{}
+	for _, r := range recs {
+		if r.Athlete == "" {
+			all = true
+			continue
+		}
+		touched[r.Athlete] = true
+	}
+	f.mu.Lock()
+	if all {
+		f.cache = map[string][]flags.Flag{}
+	} else {
+		for k := range f.cache {
+			for a := range touched {
+				if len(k) > len(a) && k[:len(a)] == a && k[len(a)] == '|' {
+					delete(f.cache, k)
+				}
+			}
+		}
+	}
+	f.mu.Unlock()
+	f.s.hub.FlagsChanged()
+}
+
+func (s *Server) handleFlags(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	q := r.URL.Query()
+	day := q.Get("day")
+	if day == "" {
+		day = s.flags.Today()
+	}
+	if _, err := time.Parse("2006-01-02", day); err != nil {
+		return userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day YYYY-MM-DD; got %q", day))
+	}
+	athlete := q.Get("athlete")
+	if who.Role == "athlete" {
+		if athlete != "" && athlete != who.Athlete {
+			return userError(devsync.CodeForbidden, "athlete", "this device may only see its own athlete's flags")
+		}
+		athlete = who.Athlete
+	}
+	fl, err := s.flags.Day(day, athlete)
+	if err != nil {
+		return err
+	}
+	if fl == nil {
+		fl = []flags.Flag{}
+	}
+	writeJSON(w, http.StatusOK, map[string]any{"day": day, "flags": fl})
+	return nil
+}
+
+func addDays(day string, n int) (string, error) {
+	t, err := time.Parse("2006-01-02", day)
+	if err != nil {
+		return "", userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day YYYY-MM-DD; got %q", day))
+	}
+	return t.AddDate(0, 0, n).Format("2006-01-02"), nil
+}
+
+var _ = storage.ErrNotFound
+
+// sortFlags orders a camp's flags most serious first (alert, watch, info,
+// then "not enough data yet"), keeping each athlete's own order within a level.
+func sortFlags(fs []flags.Flag) {
+	rank := func(f *flags.Flag) int {
+		if f.Status == flags.StatusForming {
+			return 3
+		}
+		switch f.Level {
+		case flags.LevelAlert:
+			return 0
+		case flags.LevelWatch:
+			return 1
+		}
+		return 2
+	}
+	sort.SliceStable(fs, func(i, j int) bool { return rank(&fs[i]) < rank(&fs[j]) })
+}
+
+// Flags returns the flags of one day (all athletes when athlete is ""),
+// most serious first.
+func (s *Server) Flags(day, athlete string) ([]flags.Flag, error) {
+	if _, err := time.Parse("2006-01-02", day); err != nil {
+		return nil, userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day YYYY-MM-DD; got %q", day))
+	}
+	return s.flags.Day(day, athlete)
+}
+
+// AthleteNames maps athlete ids to names.
+func (s *Server) AthleteNames() map[string]string {
+	out := map[string]string{}
+	ath, _ := s.flags.Athletes()
+	for _, a := range ath {
+		out[a.ID] = athleteName(a)
+	}
+	return out
+}

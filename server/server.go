@@ -1,0 +1,211 @@
+// Package server is the hub's HTTP face: the push/pull sync endpoints (the
+// only write path), the websocket that pokes devices and dashboards, the
+// day's flags, and the app itself. Handlers return errors; one adapter
+// turns them into JSON answers (errors.go).
+package server
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"log"
+	"net"
+	"net/http"
+	"sync"
+	"sync/atomic"
+	"time"
+
+	"github.com/gorilla/mux"
+
+	"cornerbook/pwa"
+	"cornerbook/server/records"
+	"cornerbook/storage"
+	devsync "cornerbook/sync"
+)
+
+// Defaults for Config.
+const (
+	DefaultShutdownTimeout = 3 * time.Second
+	DefaultLockTimeout     = time.Second
+)
+
+// Config holds what the hub needs. The zero value of each optional field
+// means the default noted beside it.
+type Config struct {
+	Store *storage.DB         // required: the open data folder
+	Now   func() time.Time    // hub clock; nil means time.Now
+	Log   *log.Logger         // nil means the standard logger
+	Name  string              // hub name shown on screens; "" means "Cornerbook hub"
+	// Location is the camp's time zone for "the day" when a setting does
+	// not say otherwise; nil means the machine's local zone.
+	Location *time.Location
+}
+
+// Server is one running hub.
+type Server struct {
+	cfg   Config
+	store *storage.DB
+	hub   *pokeHub
+	http  *http.Server
+	ln    net.Listener
+	flags *flagService
+
+	clockMu sync.Mutex // guards clock
+	clock   devsync.Clock
+
+	down atomic.Bool // test kill switch: drop every connection
+}
+
+// OpenStore opens (or creates) the data folder's database with the
+// record validation and derived fields of server/records.
+func OpenStore(path string, now func() time.Time) (*storage.DB, error) {
+	if now == nil {
+		now = time.Now
+	}
+	return storage.Open(path, storage.Options{
+		Timeout: DefaultLockTimeout,
+		Now:     now,
+		Prepare: func(r *devsync.Record) error { return records.PrepareAt(now())(r) },
+	})
+}
+
+// New builds a hub around an open store. It does not listen yet.
+func New(cfg Config) (*Server, error) {
+	if cfg.Store == nil {
+		return nil, errors.New("server: Config.Store is required")
+	}
+	if cfg.Now == nil {
+		cfg.Now = time.Now
+	}
+	if cfg.Log == nil {
+		cfg.Log = log.Default()
+	}
+	if cfg.Name == "" {
+		cfg.Name = "Cornerbook hub"
+	}
+	if cfg.Location == nil {
+		cfg.Location = time.Local
+	}
+	s := &Server{cfg: cfg, store: cfg.Store, hub: newPokeHub()}
+	seq, err := s.store.MaxSeq()
+	if err != nil {
+		return nil, err
+	}
+	s.hub.seq.Store(seq)
+	s.clock.Restore(devsync.HLC{L: s.now().UnixMilli()})
+	s.flags = newFlagService(s)
+	return s, nil
+}
+
+func (s *Server) now() time.Time { return s.cfg.Now() }
+
+func (s *Server) logf(format string, args ...any) { s.cfg.Log.Printf(format, args...) }
+
+// Handler is the hub's whole HTTP surface.
+func (s *Server) Handler() http.Handler {
+	r := mux.NewRouter()
+	api := r.PathPrefix("/api").Subrouter()
+	api.HandleFunc("/push", s.serve(s.handlePush)).Methods(http.MethodPost)
+	api.HandleFunc("/pull", s.serve(s.handlePull)).Methods(http.MethodGet)
+	api.HandleFunc("/ws", s.serve(s.handleWS)).Methods(http.MethodGet)
+	api.HandleFunc("/status", s.serve(s.handleStatus)).Methods(http.MethodGet)
+	api.HandleFunc("/flags", s.serve(s.handleFlags)).Methods(http.MethodGet)
+	api.HandleFunc("/records/{id}/history", s.serve(s.handleHistory)).Methods(http.MethodGet)
+	api.PathPrefix("/").HandlerFunc(s.serve(func(w http.ResponseWriter, r *http.Request) error {
+		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
+	}))
+	r.PathPrefix("/").Handler(pwa.Handler())
+	return s.killSwitch(r)
+}
+
+// killSwitch drops connections while the hub is marked down, so tests see
+// a real network failure without closing the listener (same port, same
+// origin).
+func (s *Server) killSwitch(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if s.down.Load() {
+			if hj, ok := w.(http.Hijacker); ok {
+				if c, _, err := hj.Hijack(); err == nil {
+					c.Close()
+					return
+				}
+			}
+			http.Error(w, "hub down", http.StatusServiceUnavailable)
+			return
+		}
+		next.ServeHTTP(w, r)
+	})
+}
+
+// SetDown makes the hub unreachable (true) or reachable again (false).
+// For tests of offline behaviour.
+func (s *Server) SetDown(down bool) {
+	s.down.Store(down)
+	if down {
+		s.hub.CloseAll(false)
+	}
+}
+
+// Open listens on addr synchronously (so listen errors surface) and serves
+// in a goroutine.
+func (s *Server) Open(addr string) error {
+	ln, err := net.Listen("tcp", addr)
+	if err != nil {
+		return fmt.Errorf("listen on %s: %w", addr, err)
+	}
+	return s.Serve(ln)
+}
+
+// Serve serves on an existing listener in a goroutine.
+func (s *Server) Serve(ln net.Listener) error {
+	s.ln = ln
+	s.http = &http.Server{
+		Handler:           s.Handler(),
+		ReadHeaderTimeout: 10 * time.Second,
+		IdleTimeout:       120 * time.Second,
+		ErrorLog:          s.cfg.Log,
+	}
+	go func() {
+		if err := s.http.Serve(ln); err != nil && !errors.Is(err, http.ErrServerClosed) {
+			s.logf("serve: %v", err)
+		}
+	}()
+	return nil
+}
+
+// Addr is the listening address.
+func (s *Server) Addr() string {
+	if s.ln == nil {
+		return ""
+	}
+	return s.ln.Addr().String()
+}
+
+// URL is the base URL of the listening hub.
+func (s *Server) URL() string { return "http://" + s.Addr() }
+
+// Close stops accepting, drops websockets and waits for handlers up to
+// DefaultShutdownTimeout. It does not close the store.
+func (s *Server) Close() error {
+	s.hub.CloseAll(true)
+	if s.http == nil {
+		return nil
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), DefaultShutdownTimeout)
+	defer cancel()
+	return s.http.Shutdown(ctx)
+}
+
+// stampNow issues a hub timestamp.
+func (s *Server) stampNow() devsync.HLC {
+	s.clockMu.Lock()
+	defer s.clockMu.Unlock()
+	return s.clock.Now(s.now().UnixMilli())
+}
+
+// observe applies the receive rule for a stamp seen in a push.
+func (s *Server) observe(h devsync.HLC) devsync.HLC {
+	s.clockMu.Lock()
+	defer s.clockMu.Unlock()
+	return s.clock.Update(h, s.now().UnixMilli())
+}
