@@ -13,8 +13,35 @@
 // support a rule, the rule says so with a "forming" flag instead of staying
 // silent, so that "no flag" never means "not enough data".
 //
-// Statistics live in package stats; the rule functions here are small and
-// each is tested against the rule as the product states it.
+// Statistics live in package stats and calendar arithmetic in package day;
+// the rule functions here (rule_*.go) are small and each is tested against
+// the rule as the product states it. Thresholds are the table in
+// server/records (records.Defaults), overridden by Input.Settings.
+//
+// Choices made where the rule leaves room (common practice, no source):
+//   - A day's morning mass is its earliest check-in carrying a mass; the
+//     mass trend runs over the masses logged (missing days are skipped, not
+//     filled) from camp start or 42 days back, whichever is later.
+//   - The default path's knee is never above the start mass, and a camp
+//     shorter than the final phase goes straight to the limit. Explicit
+//     knots replace the default path; before the first knot and after the
+//     last the path is flat.
+//   - cut_at_risk projects at a constant percentage per week (the
+//     geometric path) and takes the projected mass as the body mass.
+//   - Daily load sums session records (rpe × minutes, or the stored
+//     load_au). Intervals records are not added: their RPE is normally
+//     the same session's sRPE, and counting both would double the load.
+//   - jump_drop does not mix measuring methods in one baseline; its
+//     typical error is the floored CV times the baseline.
+//   - wellness_drop divides by at least sd_floor points (0.5), so a
+//     near-constant baseline does not turn a one-point dip into z = −∞.
+//   - spar_on_hold never uses a stand-down shorter than the published
+//     minimum (30/60/90 days), whatever the settings say.
+//   - off_plan projects the week's load only from its third day on (a
+//     forming flag before), and judges a planned taper week from camp
+//     start until the taper week ends.
+//   - residual_gap with no session of the quality on record reports the
+//     days on record as a lower bound once they exceed the limit.
 package flags
 
 import (

@@ -141,9 +141,14 @@ func (e *engine) cutAtRisk() {
 	default:
 		return
 	}
+	reason := fmt.Sprintf("Losing %.1f %%/week from today's %.1f kg trend reaches %.1f kg in %.0f days, when the final %.0f days start: %.1f kg (%.1f %%) still to lose to the %.1f kg limit, above %.1f %% for a %s weigh-in.",
+		rate, trend, projected, ahead, e.param(rule, "final_days"), still, pct, p.body.LimitKg, e.param(rule, name), kind)
+	if ahead == 0 {
+		reason = fmt.Sprintf("In the final %.0f days, today's %.1f kg trend is %.1f kg (%.1f %%) above the %.1f kg limit, above %.1f %% for a %s weigh-in.",
+			e.param(rule, "final_days"), trend, still, pct, p.body.LimitKg, e.param(rule, name), kind)
+	}
 	e.add(Flag{Rule: rule, Level: level, Value: f64(pct), Threshold: f64(e.param(rule, name)),
-		ThresholdName: rule + "." + name, Unit: "%", Inputs: append(ids, p.id), Caution: CautionMass,
+		ThresholdName: rule + "." + name, Unit: "%", Inputs: append(ids, p.id), Caution: CautionMass, Reason: reason,
 		Details: map[string]float64{"projected_kg": projected, "still_kg": still, "limit_kg": p.body.LimitKg, "trend_kg": trend, "days_to_final": ahead},
-		Reason: fmt.Sprintf("At %.1f %%/week from today's %.1f kg trend, %.1f kg would remain %.0f days from now, %.1f kg (%.1f %%) above the %.1f kg limit for the final %.0f days, beyond %.1f %% for a %s weigh-in.",
-			rate, trend, projected, ahead, still, pct, p.body.LimitKg, e.param(rule, "final_days"), e.param(rule, name), kind)})
+	})
 }

@@ -188,11 +188,11 @@ func (e *engine) sparOnHold() {
 			f.Threshold = f64(float64(sd.Days))
 			f.ThresholdName = rule + "." + inc.kind + "_days"
 			f.Details["days_left"] = left
-			clearNote := "and until a doctor's clearance is recorded"
+			clearNote := ", and not until cleared in writing by a doctor"
 			if cleared {
-				clearNote = "clearance recorded, minimum still running"
+				clearNote = " (clearance recorded; the minimum still runs)"
 			}
-			f.Reason = fmt.Sprintf("Stand-down after the %s on %s: day %.0f of at least %d, no sparring or contact before %s %s; no sparring or contact until cleared in writing by a doctor.",
+			f.Reason = fmt.Sprintf("Stand-down after the %s on %s, day %.0f of at least %d: no sparring or contact before %s%s.",
 				what, inc.day, since, sd.Days, end, clearNote)
 		} else {
 			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (suspected concussion), day %.0f: no sparring or contact until cleared in writing by a doctor.", what, inc.day, since)
