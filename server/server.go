@@ -32,10 +32,10 @@ const (
 // Config holds what the hub needs. The zero value of each optional field
 // means the default noted beside it.
 type Config struct {
-	Store *storage.DB         // required: the open data folder
-	Now   func() time.Time    // hub clock; nil means time.Now
-	Log   *log.Logger         // nil means the standard logger
-	Name  string              // hub name shown on screens; "" means "Cornerbook hub"
+	Store *storage.DB      // required: the open data folder
+	Now   func() time.Time // hub clock; nil means time.Now
+	Log   *log.Logger      // nil means the standard logger
+	Name  string           // hub name shown on screens; "" means "Cornerbook hub"
 	// Location is the camp's time zone for "the day" when a setting does
 	// not say otherwise; nil means the machine's local zone.
 	Location *time.Location

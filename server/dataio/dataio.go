@@ -89,9 +89,9 @@ func (e *ImportError) Error() string {
 
 // Result counts what an import did.
 type Result struct {
-	Lines      int // records read
-	Applied    int // stored as new or newer versions
-	Unchanged  int // already stored with an equal or later version
+	Lines     int // records read
+	Applied   int // stored as new or newer versions
+	Unchanged int // already stored with an equal or later version
 }
 
 // ImportJSONL reads JSON Lines records. The whole file is checked first

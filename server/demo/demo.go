@@ -36,20 +36,20 @@ const SeedDevice = "demo-seeder"
 
 // fighter is one invented athlete and the story the demo tells about him or her.
 type fighter struct {
-	key        string
-	name       string
-	units      string
-	sex        string
-	birthYear  int
-	class      string
-	limitKg    float64
-	weighType  string
-	startMass  float64
-	campStart  int // day offset from today (negative)
-	boutIn     int // days from today to the bout
-	massAt     func(d int) float64
-	baseCMJ    float64
-	refLoad    float64
+	key       string
+	name      string
+	units     string
+	sex       string
+	birthYear int
+	class     string
+	limitKg   float64
+	weighType string
+	startMass float64
+	campStart int // day offset from today (negative)
+	boutIn    int // days from today to the bout
+	massAt    func(d int) float64
+	baseCMJ   float64
+	refLoad   float64
 }
 
 // Build returns every record of the demo camp for the history ending on
