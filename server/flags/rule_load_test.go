@@ -154,3 +154,43 @@ func TestMonotony(t *testing.T) {
 	}
 	wantLevel(t, one(t, c.run(d(4)), RuleMonotony), LevelInfo, StatusForming)
 }
+
+// The stored load_au (derived by the hub, Foster et al. 2001: rpe ×
+// minutes) is used as is; without it the load is rpe × minutes; a session
+// with neither adds nothing.
+func TestSessionLoadSources(t *testing.T) {
+	c := &camp{}
+	c.load(d(0), 900)
+	week := []float64{400, 350, 420, 380, 400, 360, 0}
+	for i, l := range week {
+		switch {
+		case i%2 == 0 && l > 0:
+			c.add(kindSession, d(23+i), map[string]any{"type": "boxing", "load_au": l})
+		case l > 0:
+			c.session(d(23+i), l/4, 4, "")
+		}
+	}
+	c.add(kindSession, d(29), map[string]any{"type": "other", "minutes": 30}) // no RPE yet: no load
+	f := one(t, c.run(d(29)), RuleMonotony)
+	approx(t, "monotony", f.Value, 2.236753, 0.0005)
+}
+
+// A fighter who flies east mid-camp: check-ins carry different offsets,
+// and one recorded just after midnight in the new zone is still the camp
+// day the device chose. Windows count those day strings, so the wellness
+// baseline keeps its seven days.
+func TestDaysComeFromDayStringsAcrossZones(t *testing.T) {
+	c := &camp{}
+	for i, total := range []int{19, 20, 18, 21, 19, 17, 19} {
+		c.wellnessTotal(d(20+i), total)
+		if i >= 4 {
+			// In the new zone (+09:00) the instant is the previous UTC day.
+			c.last().At = d(20+i) + "T06:30:00+09:00"
+		}
+	}
+	c.wellness(d(27), 3, 2, 3, 4, 3)
+	c.last().At = d(27) + "T00:10:00+09:00"
+	f := one(t, c.run(d(27)), RuleWellnessDrop)
+	approxV(t, "baseline check-ins", f.Details["baseline_checkins"], 7, 0)
+	approxV(t, "z", f.Details["z"], -3.098387, 0.001)
+}
