@@ -10,6 +10,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
+	"unicode/utf8"
 
 	devsync "cornerbook/sync"
 )
@@ -37,31 +39,127 @@ func decodeBody(raw json.RawMessage, dst any, kind string) (map[string]bool, err
 	if len(bytes.TrimSpace(raw)) == 0 || string(bytes.TrimSpace(raw)) == "null" {
 		raw = json.RawMessage("{}")
 	}
-	// The walker finds the first structural problem with its full path;
-	// the standard decoder (with DisallowUnknownFields) then does the
-	// decoding and catches anything the walker let through.
-	if err := walk(raw, reflect.TypeOf(dst).Elem(), "body", kind); err != nil {
-		return nil, err
+	t := reflect.TypeOf(dst).Elem()
+	// Rare kinds with nested objects (bout paths and weeks, settings maps)
+	// are walked first, so every nested field is spelled exactly. The
+	// frequent flat kinds take the fast path: one standard decode, then an
+	// exact check of the top-level names; the walker runs only to name
+	// the field of an error.
+	if kind == KindBout || kind == KindSettings || kind == KindAthlete {
+		if err := walk(raw, t, "body", kind); err != nil {
+			return nil, err
+		}
 	}
 	dec := json.NewDecoder(bytes.NewReader(raw))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(dst); err != nil {
+		if werr := walk(raw, t, "body", kind); werr != nil {
+			return nil, werr
+		}
 		return nil, jsonError(err, kind)
 	}
 	if _, err := dec.Token(); !errors.Is(err, io.EOF) {
 		return nil, fe("body", "must be one JSON object; found more after it")
 	}
-	var top map[string]json.RawMessage
-	if err := json.Unmarshal(raw, &top); err != nil {
-		return nil, fe("body", "must be a JSON object")
-	}
-	present := make(map[string]bool, len(top))
-	for k, v := range top {
-		if string(bytes.TrimSpace(v)) != "null" {
-			present[k] = true
+	keys := topKeys(raw)
+	fields := fieldsOf(t)
+	for k := range keys {
+		if _, ok := fields.types[k]; !ok {
+			// The standard decoder matches names case-insensitively; we
+			// do not, so a field is spelled one way only.
+			return nil, fe("body."+k, "is not a field of a %s record (known: %s)", kind, strings.Join(fields.names, ", "))
 		}
 	}
-	return present, nil
+	return keys, nil
+}
+
+// topKeys lists the top-level keys of a JSON object already known to be
+// valid, each mapped to whether its value is not null.
+func topKeys(raw []byte) map[string]bool {
+	keys := map[string]bool{}
+	i := skipSpace(raw, 0)
+	if i >= len(raw) || raw[i] != '{' {
+		return keys
+	}
+	i++
+	for {
+		i = skipSpace(raw, i)
+		if i >= len(raw) || raw[i] != '"' {
+			return keys
+		}
+		ks := i
+		i = skipString(raw, i)
+		key := string(raw[ks+1 : i-1])
+		if bytes.IndexByte(raw[ks:i], '\\') >= 0 || !utf8.Valid(raw[ks:i]) {
+			_ = json.Unmarshal(raw[ks:i], &key)
+		}
+		i = skipSpace(raw, i)
+		if i >= len(raw) || raw[i] != ':' {
+			return keys
+		}
+		i = skipSpace(raw, i+1)
+		vs := i
+		i = skipValue(raw, i)
+		keys[key] = string(raw[vs:i]) != "null"
+		i = skipSpace(raw, i)
+		if i >= len(raw) || raw[i] != ',' {
+			return keys
+		}
+		i++
+	}
+}
+
+func skipSpace(b []byte, i int) int {
+	for i < len(b) && (b[i] == ' ' || b[i] == '\t' || b[i] == '\n' || b[i] == '\r') {
+		i++
+	}
+	return i
+}
+
+// skipString returns the index after the string starting at b[i] == '"'.
+func skipString(b []byte, i int) int {
+	for i++; i < len(b); i++ {
+		switch b[i] {
+		case '\\':
+			i++
+		case '"':
+			return i + 1
+		}
+	}
+	return len(b)
+}
+
+// skipValue returns the index after the value starting at b[i].
+func skipValue(b []byte, i int) int {
+	if i >= len(b) {
+		return i
+	}
+	switch b[i] {
+	case '"':
+		return skipString(b, i)
+	case '{', '[':
+		depth := 0
+		for i < len(b) {
+			switch b[i] {
+			case '"':
+				i = skipString(b, i)
+				continue
+			case '{', '[':
+				depth++
+			case '}', ']':
+				depth--
+				if depth == 0 {
+					return i + 1
+				}
+			}
+			i++
+		}
+		return i
+	}
+	for i < len(b) && b[i] != ',' && b[i] != '}' && b[i] != ']' && b[i] != ' ' && b[i] != '\t' && b[i] != '\n' && b[i] != '\r' {
+		i++
+	}
+	return i
 }
 
 // jsonError turns a decoder error into a FieldError (the walker normally
@@ -106,10 +204,19 @@ func typeWords(t reflect.Type) string {
 	return t.String()
 }
 
-// jsonFields maps a struct's JSON names to their field types.
-func jsonFields(t reflect.Type) (map[string]reflect.Type, []string) {
-	m := map[string]reflect.Type{}
-	var names []string
+type structFields struct {
+	types map[string]reflect.Type // JSON name → field type
+	names []string                // JSON names in struct order
+}
+
+var fieldCache sync.Map // reflect.Type → *structFields
+
+// fieldsOf maps a struct's JSON names to their field types.
+func fieldsOf(t reflect.Type) *structFields {
+	if f, ok := fieldCache.Load(t); ok {
+		return f.(*structFields)
+	}
+	sf := &structFields{types: map[string]reflect.Type{}}
 	for i := 0; i < t.NumField(); i++ {
 		f := t.Field(i)
 		if !f.IsExported() {
@@ -122,10 +229,11 @@ func jsonFields(t reflect.Type) (map[string]reflect.Type, []string) {
 		if name == "" {
 			name = f.Name
 		}
-		m[name] = f.Type
-		names = append(names, name)
+		sf.types[name] = f.Type
+		sf.names = append(sf.names, name)
 	}
-	return m, names
+	fieldCache.Store(t, sf)
+	return sf
 }
 
 // walk checks that raw has the shape of type t, naming the first field
@@ -163,7 +271,8 @@ func walk(raw json.RawMessage, t reflect.Type, path, kind string) error {
 			}
 			return wrong()
 		}
-		fields, names := jsonFields(t)
+		sf := fieldsOf(t)
+		fields, names := sf.types, sf.names
 		keys := make([]string, 0, len(obj))
 		for k := range obj {
 			keys = append(keys, k)

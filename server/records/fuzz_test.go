@@ -53,3 +53,27 @@ func FuzzPrepare(f *testing.F) {
 		}
 	})
 }
+
+// FuzzTopKeys checks the fast top-level key scan against the standard
+// decoder on every valid JSON object.
+func FuzzTopKeys(f *testing.F) {
+	f.Add([]byte(`{"a":1,"b":null,"c":{"d":[1,"}",{"e":null}]},"f\u0041":"x\"y"}`))
+	f.Add([]byte(` { "mass_kg" : 64.8 , "note" : "a,b}" } `))
+	f.Add([]byte(`{}`))
+	f.Fuzz(func(t *testing.T, raw []byte) {
+		var m map[string]json.RawMessage
+		if json.Unmarshal(raw, &m) != nil || m == nil {
+			return
+		}
+		got := topKeys(raw)
+		if len(got) != len(m) {
+			t.Fatalf("%s: %d keys, want %d (%v)", raw, len(got), len(m), got)
+		}
+		for k, v := range m {
+			present, ok := got[k]
+			if !ok || present != (string(bytes.TrimSpace(v)) != "null") {
+				t.Fatalf("%s: key %q: got %v %v", raw, k, present, ok)
+			}
+		}
+	})
+}

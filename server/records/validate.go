@@ -50,7 +50,7 @@ const (
 	MaxReferenceLoadAU     = 50000        // weekly AU: 14 sessions of 300 min at RPE 10 is 42,000
 	MaxCheckinHour         = 23.5         // local hour
 	MaxBoutNameLen         = 120
-	MaxShortLen            = 40 // modality, protocol id, jump session id
+	MaxShortLen            = 40   // modality, protocol id, jump session id
 	limitMatchKg           = 0.01 // a limit typed or shown to 0.01 kg still names its class
 )
 
