@@ -1,7 +1,21 @@
 // Package records defines Cornerbook's record kinds: the body of each kind
 // as a Go type, its validation in words a coach understands, the unit
 // conversions and the fields the hub derives (jump heights from flight
-// time, session load). It is pure: no I/O, no clock of its own.
+// time, session load). It is pure: no I/O, no clock of its own (time
+// zone names are resolved by time.LoadLocation, from the system's zone
+// database or the tzdata embedded here).
+//
+//   - Prepare, PrepareAt: validate a record and fill its derived fields;
+//     every error is a *devsync.FieldError with a JSON path and a reason
+//     with units. PrepareAt adds the checks that need the hub's date.
+//   - LbToKg, KgToLb, JumpHeightCm, SessionLoad, IntervalsSeconds: the
+//     formulas, with their sources.
+//   - Classes: weight classes (professional in lb, amateur in kg), each
+//     with an exact LimitKg.
+//   - Rules, Defaults, Resolve, Settings.Layer: flag-rule thresholds and
+//     their bounds; settings are validated against them, and a test pins
+//     them to the parameters the flag engine reads.
+//   - CR10 (session-RPE anchors), Protocols (interval templates).
 package records
 
 // Kind names, fixed by the record format.
@@ -60,13 +74,16 @@ type Week struct {
 
 // Bout is one fighter's bout and camp plan.
 type Bout struct {
-	Name            string  `json:"name,omitempty"` // e.g. "vs. R. Example, city hall"
-	CampStart       string  `json:"camp_start"`
-	WeighIn         string  `json:"weigh_in"`                // RFC 3339 with offset
-	WeighInZone     string  `json:"weigh_in_zone,omitempty"` // IANA zone of the weigh-in venue
-	WeighInType     string  `json:"weigh_in_type"`           // day_before or same_day
-	BoutDay         string  `json:"bout_day"`
-	WeightClass     string  `json:"weight_class,omitempty"` // id from the class table, or "custom"
+	Name        string `json:"name,omitempty"` // e.g. "vs. R. Example, city hall"
+	CampStart   string `json:"camp_start"`
+	WeighIn     string `json:"weigh_in"`                // RFC 3339 with offset
+	WeighInZone string `json:"weigh_in_zone,omitempty"` // IANA zone of the weigh-in venue
+	WeighInType string `json:"weigh_in_type"`           // day_before or same_day
+	BoutDay     string `json:"bout_day"`
+	WeightClass string `json:"weight_class,omitempty"` // id from Classes, or "custom"
+	// LimitKg is the weigh-in limit. A class from the table fixes it (the
+	// hub fills it in exactly); 0 means no upper limit (heavyweight,
+	// "+92 kg"), and the mass rules then do not apply.
 	LimitKg         float64 `json:"limit_kg"`
 	StartMassKg     float64 `json:"start_mass_kg"`
 	ReferenceLoadAU float64 `json:"reference_load_au,omitempty"` // the athlete's habitual weekly load
