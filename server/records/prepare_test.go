@@ -388,6 +388,12 @@ func TestPrepareAtClock(t *testing.T) {
 	if !errors.As(err, &fe) || fe.Field != "day" || !strings.Contains(fe.Reason, "2026-03-02") || !strings.Contains(fe.Reason, "1 day") {
 		t.Errorf("two days ahead: got %v", err)
 	}
+	// A delete of that record is never refused for its date.
+	r = ci("2026-03-04")
+	r.Deleted = true
+	if err := PrepareAt(now)(&r); err != nil {
+		t.Errorf("deleting a record dated in the future: %v", err)
+	}
 	// Prepare itself has no clock: the same record passes.
 	r = ci("2026-03-04")
 	if err := Prepare(&r); err != nil {
