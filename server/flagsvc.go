@@ -181,20 +181,11 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 	return in, nil
 }
 
-// settingsFor merges camp-wide thresholds under the athlete's own.
+// settingsFor merges the defaults, the camp-wide settings and the
+// athlete's own, later layers winning.
 func (f *flagService) settingsFor(id string) map[string]map[string]float64 {
-	out := map[string]map[string]float64{}
-	merge := func(st records.Settings) {
-		for rule, params := range st.Thresholds {
-			if out[rule] == nil {
-				out[rule] = map[string]float64{}
-			}
-			for k, v := range params {
-				out[rule][k] = v
-			}
-		}
-	}
-	merge(f.campSettings())
+	camp := f.campSettings()
+	var own records.Settings
 	var latest devsync.Record
 	f.s.store.Range(id, records.KindSettings, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
 		if latest.ID == "" || r.Stamp.Compare(latest.Stamp) > 0 {
@@ -203,12 +194,9 @@ func (f *flagService) settingsFor(id string) map[string]map[string]float64 {
 		return nil
 	})
 	if latest.ID != "" {
-		var st records.Settings
-		if json.Unmarshal(latest.Body, &st) == nil {
-			merge(st)
-		}
+		json.Unmarshal(latest.Body, &own)
 	}
-	return out
+	return records.Resolve(camp.Layer(), own.Layer())
 }
 
 // Changed drops cached flags of the athletes the records touch and

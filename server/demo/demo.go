@@ -50,6 +50,21 @@ type fighter struct {
 	massAt    func(d int) float64
 	baseCMJ   float64
 	refLoad   float64
+	weeks     []records.Week
+}
+
+// levelLoad is the share of the reference week each planned level asks
+// for (the hub's default off_plan fractions), relative to medium-heavy:
+// the demo's training follows the plan it was given.
+var levelLoad = map[string]float64{"rest": 0.3 / 0.85, "low": 0.5 / 0.85, "medium": 0.7 / 0.85, "medium_heavy": 1, "heavy": 1 / 0.85, "taper": 0.5 / 0.85}
+
+// planScale is how hard day d of the camp is, from the planned week.
+func (f *fighter) planScale(d int) float64 {
+	w := (d - f.campStart) / 7
+	if d < f.campStart || w >= len(f.weeks) {
+		return 0.8
+	}
+	return levelLoad[f.weeks[w].Level]
 }
 
 // Build returns every record of the demo camp for the history ending on
@@ -160,16 +175,16 @@ func (g *gen) build() []devsync.Record {
 			// path, so the cut left for the final week grows; and his
 			// training load jumps in the last week.
 			key: "tomas", name: "Tomas Varga", units: "lb", sex: "m", birthYear: 1998,
-			class: "pro_lightweight", limitKg: lb(135), weighType: "day_before", startMass: 66.4,
-			campStart: start + 3, boutIn: 28, baseCMJ: 44.0, refLoad: 2400,
-			massAt: func(d int) float64 { return 66.4 - 0.004*float64(d-start) },
+			class: "pro_lightweight", limitKg: lb(135), weighType: "day_before", startMass: 67.2,
+			campStart: start + 3, boutIn: 28, baseCMJ: 44.0, refLoad: 3300,
+			massAt: func(d int) float64 { return 67.2 - 0.006*float64(d-start) },
 		},
 		{ // Amateur 57 kg woman, kilograms, same-day weigh-in. Story: a
 			// fast-loss fortnight, concentrated urine this morning, and a
 			// week of near-identical loads.
 			key: "ines", name: "Ines Halloran", units: "kg", sex: "f", birthYear: 2001,
 			class: "wb2025_f_57", limitKg: 57, weighType: "same_day", startMass: 60.6,
-			campStart: start + 1, boutIn: 42, baseCMJ: 33.0, refLoad: 2100,
+			campStart: start + 1, boutIn: 42, baseCMJ: 33.0, refLoad: 3400,
 			massAt: func(d int) float64 {
 				if d <= -14 {
 					return 60.6 - 0.02*float64(d-start)
@@ -181,7 +196,7 @@ func (g *gen) build() []devsync.Record {
 			// week, with jump height and wellness falling today.
 			key: "kofi", name: "Kofi Brandt", units: "kg", sex: "m", birthYear: 1996,
 			class: "ol2024_m_71", limitKg: 71, weighType: "same_day", startMass: 74.2,
-			campStart: start + 6, boutIn: 56, baseCMJ: 42.0, refLoad: 2600,
+			campStart: start + 6, boutIn: 56, baseCMJ: 42.0, refLoad: 3400,
 			massAt: func(d int) float64 { return 74.2 - 0.035*float64(d-start) },
 		},
 		{ // Pro welterweight, pounds. Story: a head knock five days ago, no
@@ -189,7 +204,7 @@ func (g *gen) build() []devsync.Record {
 			// a missed check-in this morning and a taper that cuts too little.
 			key: "mateo", name: "Mateo Lindqvist", units: "lb", sex: "m", birthYear: 1994,
 			class: "pro_welterweight", limitKg: lb(147), weighType: "day_before", startMass: 70.6,
-			campStart: start, boutIn: 23, baseCMJ: 46.0, refLoad: 2800,
+			campStart: start, boutIn: 23, baseCMJ: 46.0, refLoad: 3400,
 			massAt: func(d int) float64 { return 70.6 - 0.075*float64(d-start) },
 		},
 	}
@@ -215,6 +230,7 @@ func (g *gen) fighter(f *fighter, start int) {
 		// points out that this is lighter than the 41–60 % band.
 		weeks[len(weeks)-1].Level = "low"
 	}
+	f.weeks = weeks
 	g.add(records.KindBout, aid, campStart, 8, 0, coachTablet, records.Bout{
 		Name: "Invented bout, week " + fmt.Sprint(len(weeks)), CampStart: g.dayStr(campStart), WeighIn: weigh.Format(time.RFC3339),
 		WeighInType: f.weighType, BoutDay: g.dayStr(boutDay), WeightClass: f.class, LimitKg: round2(f.limitKg),
@@ -310,9 +326,9 @@ func (g *gen) rounds(aid string, d int, activity string, n, intensity int, secon
 }
 
 func (g *gen) trainingDay(f *fighter, aid, phone string, d int, wd time.Weekday) {
-	scale := 1.0
+	scale := f.planScale(d)
 	if f.key == "tomas" {
-		scale = 0.8
+		scale *= 0.8
 		if d > -7 {
 			scale = 2.5 // the last week's jump in load: double sessions
 		}
@@ -349,8 +365,8 @@ func (g *gen) trainingDay(f *fighter, aid, phone string, d int, wd time.Weekday)
 	switch {
 	case f.key == "kofi" && d >= -3:
 		g.rounds(aid, d, "spar", 7, 3, 180) // the hard streak
-	case f.key == "mateo" && d >= -5 && d < 0:
-		if d == -2 {
+	case f.key == "mateo" && d >= -5:
+		if d == -3 {
 			g.rounds(aid, d, "spar", 1, 1, 120) // logged during the stand-down
 		} else {
 			g.rounds(aid, d, "drill", 3, 1, 180)

@@ -1,0 +1,80 @@
+package server_test
+
+import (
+	"encoding/json"
+	"flag"
+	"os"
+	"path/filepath"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"cornerbook/server"
+	"cornerbook/server/demo"
+	"cornerbook/server/flags"
+)
+
+var update = flag.Bool("update", false, "rewrite golden files")
+
+// demoToday is the fixed day the golden demo camp ends on.
+var demoToday = time.Date(2026, 12, 1, 10, 30, 0, 0, time.UTC)
+
+func demoHub(t *testing.T) *server.Server {
+	t.Helper()
+	now := func() time.Time { return demoToday }
+	db, err := server.OpenStore(filepath.Join(t.TempDir(), "demo.db"), now)
+	require.NoError(t, err)
+	t.Cleanup(func() { db.Close() })
+	n, err := demo.SeedIfEmpty(db, demoToday)
+	require.NoError(t, err)
+	require.Greater(t, n, 1000)
+	srv, err := server.New(server.Config{Store: db, Now: now, Location: time.UTC})
+	require.NoError(t, err)
+	return srv
+}
+
+// TestDemoCamp_Golden: the flags of every demo day are stable, and every
+// rule of the product has something to show somewhere in the demo.
+func TestDemoCamp_Golden(t *testing.T) {
+	srv := demoHub(t)
+	type dayFlags struct {
+		Day   string       `json:"day"`
+		Flags []flags.Flag `json:"flags"`
+	}
+	var all []dayFlags
+	seen := map[string]bool{}
+	for i := demo.HistoryDays - 1; i >= 0; i-- {
+		day := demoToday.AddDate(0, 0, -i).Format("2006-01-02")
+		fl, err := srv.Flags(day, "")
+		require.NoError(t, err)
+		for _, f := range fl {
+			if f.Status == flags.StatusFlag {
+				seen[f.Rule] = true
+			}
+		}
+		all = append(all, dayFlags{day, fl})
+	}
+	for _, rule := range flags.Rules {
+		assert.True(t, seen[rule], "the demo camp never raises %s", rule)
+	}
+	got, err := json.MarshalIndent(all, "", " ")
+	require.NoError(t, err)
+	path := filepath.Join("..", "testdata", "golden", "demo-flags.json")
+	if *update {
+		require.NoError(t, os.WriteFile(path, append(got, '\n'), 0o644))
+	}
+	want, err := os.ReadFile(path)
+	require.NoError(t, err, "run go test ./server -run TestDemoCamp_Golden -update to create it")
+	assert.JSONEq(t, string(want), string(got), "demo flags changed; if intended, rerun with -update and review the diff")
+}
+
+// TestDemoCamp_Reproducible: the same day gives the same camp, record for record.
+func TestDemoCamp_Reproducible(t *testing.T) {
+	a, b := demo.Build(demoToday), demo.Build(demoToday)
+	require.Equal(t, len(a), len(b))
+	for i := range a {
+		require.Equal(t, a[i], b[i])
+	}
+}
