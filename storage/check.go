@@ -21,8 +21,8 @@ const maxCheckProblems = 20
 //   - every change entry names a stored record whose current sequence is
 //     that entry, and every record has exactly one change entry;
 //   - no change entry lies above the bucket's sequence;
-//   - every record's newest version is the current winner, stored at its
-//     sequence;
+//   - every earlier version belongs to a stored record, under a sequence
+//     below the current winner's;
 //   - every index entry names a live record with that athlete, kind and
 //     day, and every live record has its index entry (so exactly one);
 //   - every device state decodes.
@@ -131,13 +131,8 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 			}
 		}
 		prefix := append(bytes.Clone(k), '|')
-		vk, vv := lastWithPrefix(versions.Cursor(), prefix)
-		if vk == nil {
-			if !add("record %q has no stored version", k) {
-				return
-			}
-		} else if !bytes.Equal(vk[len(prefix):], s) || !bytes.Equal(vv, v) {
-			if !add("record %q: its newest version (seq %d) is not the stored winner (seq %d)", k, binary.BigEndian.Uint64(vk[len(prefix):]), binary.BigEndian.Uint64(s)) {
+		if vk, _ := lastWithPrefix(versions.Cursor(), prefix); vk != nil && bytes.Compare(vk[len(prefix):], s) >= 0 {
+			if !add("record %q: an earlier version (seq %d) is not below the winner's sequence %d", k, binary.BigEndian.Uint64(vk[len(prefix):]), binary.BigEndian.Uint64(s)) {
 				return
 			}
 		}
@@ -153,6 +148,28 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 	if nChanges != nRecords {
 		if !add("%d change entries for %d records", nChanges, nRecords) {
 			return
+		}
+	}
+
+	// Versions belong to stored records.
+	vc := versions.Cursor()
+	for k, v := vc.First(); k != nil; k, v = vc.Next() {
+		if len(k) < 10 || k[len(k)-9] != '|' {
+			if !add("version key %x is malformed", k) {
+				return
+			}
+			continue
+		}
+		id := k[:len(k)-9]
+		if records.Get(id) == nil {
+			if !add("version %x belongs to no stored record", k) {
+				return
+			}
+		}
+		if r, err := decode(v); err != nil || r.ID != string(id) {
+			if !add("version %x is unreadable or carries another id", k) {
+				return
+			}
 		}
 	}
 

@@ -1,6 +1,8 @@
 package storage
 
 import (
+	"bytes"
+	"encoding/binary"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -144,6 +146,9 @@ func (p *pusher) open() {
 	p.index = p.tx.Bucket(BucketIndex)
 	p.changes = p.tx.Bucket(BucketChanges)
 	p.changes.FillPercent = changesFill
+	p.records.FillPercent = appendFill
+	p.seqs.FillPercent = appendFill
+	p.index.FillPercent = appendFill
 	p.devices = p.tx.Bucket(BucketDevices)
 	p.conf = p.tx.Bucket(BucketConflicts)
 }
@@ -248,10 +253,17 @@ func (p *pusher) write(rec, stored *devsync.Record) error {
 	}
 	id := []byte(rec.ID)
 	if stored != nil {
-		if old := p.seqs.Get(id); old != nil {
-			if err := p.changes.Delete(old); err != nil {
-				return err
-			}
+		old := p.seqs.Get(id)
+		if len(old) != 8 {
+			return fmt.Errorf("stored record has no sequence")
+		}
+		oldSeq := binary.BigEndian.Uint64(old)
+		// The replaced winner joins the history under the sequence it held.
+		if err := p.versions.Put(versionKey(rec.ID, oldSeq), bytes.Clone(p.records.Get(id))); err != nil {
+			return err
+		}
+		if err := p.changes.Delete(u64(oldSeq)); err != nil {
+			return err
 		}
 		if !stored.Deleted {
 			if err := p.index.Delete(indexKey(stored)); err != nil {
@@ -271,9 +283,6 @@ func (p *pusher) write(rec, stored *devsync.Record) error {
 		return err
 	}
 	if err := p.records.Put(id, v); err != nil {
-		return err
-	}
-	if err := p.versions.Put(versionKey(rec.ID, seq), v); err != nil {
 		return err
 	}
 	if !rec.Deleted {

@@ -33,10 +33,14 @@ func (db *DB) Get(id string) (devsync.Record, error) {
 }
 
 // History returns every winning version of one record ever stored, oldest
-// first (the last is the current winner), or ErrNotFound.
+// first; the last is the current winner. ErrNotFound for an unknown id.
 func (db *DB) History(id string) ([]devsync.Record, error) {
 	var out []devsync.Record
 	err := db.bolt.View(func(tx *bolt.Tx) error {
+		cur := tx.Bucket(BucketRecords).Get([]byte(id))
+		if cur == nil {
+			return ErrNotFound
+		}
 		prefix := append([]byte(id), '|')
 		c := tx.Bucket(BucketVersions).Cursor()
 		for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
@@ -46,9 +50,11 @@ func (db *DB) History(id string) ([]devsync.Record, error) {
 			}
 			out = append(out, r)
 		}
-		if len(out) == 0 {
-			return ErrNotFound
+		r, err := decode(cur)
+		if err != nil {
+			return err
 		}
+		out = append(out, r)
 		return nil
 	})
 	return out, err

@@ -13,7 +13,8 @@
 //	meta       "epoch" → 32 hex digits, "schema" → "1"
 //	records    id → record JSON (current winner, tombstones included)
 //	seqs       id → u64be change sequence of the current winner
-//	versions   id "|" u64be seq → record JSON (every winning version)
+//	versions   id "|" u64be seq → record JSON (earlier winners, under the
+//	           sequence each held; with records, the full history)
 //	index      athlete "|" kind "|" day "|" id → empty (live records only)
 //	changes    u64be seq → id (one entry per record, at its latest change)
 //	devices    device id → {"lastN","lastPush","pushes"}
@@ -68,6 +69,8 @@ const schemaVersion = "1"
 // README: sequential inserts pack well at 0.9–1.0). It is not persisted,
 // so every write transaction sets it.
 const changesFill = 0.9
+
+const appendFill = 0.9
 
 // scanBudget bounds how many change entries one Pull page looks at when a
 // visibility filter hides most of them, so a page is always a short read

@@ -147,8 +147,14 @@ func TestCheckFindsDamage(t *testing.T) {
 		"lost change entry": func(tx *bolt.Tx, id []byte) error {
 			return tx.Bucket(storage.BucketChanges).Delete([]byte{0, 0, 0, 0, 0, 0, 0, 1})
 		},
-		"record replaced behind the history": func(tx *bolt.Tx, id []byte) error {
-			return tx.Bucket(storage.BucketRecords).Put(id, bytes.Replace(tx.Bucket(storage.BucketRecords).Get(id), []byte(`"dev-gen"`), []byte(`"dev-x"`), 1))
+		"version above the winner": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketVersions).Put(append(append(id, '|'), 0, 0, 0, 0, 0, 0, 0, 99), tx.Bucket(storage.BucketRecords).Get(id))
+		},
+		"orphan version": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketVersions).Put([]byte("0190d2a8-0000-7000-8000-000000000000|\x00\x00\x00\x00\x00\x00\x00\x01"), []byte(`{"id":"0190d2a8-0000-7000-8000-000000000000"}`))
+		},
+		"record under another id": func(tx *bolt.Tx, id []byte) error {
+			return tx.Bucket(storage.BucketRecords).Put(id, bytes.Replace(tx.Bucket(storage.BucketRecords).Get(id), id[:8], []byte("ffffffff"), 1))
 		},
 		"bad device state": func(tx *bolt.Tx, id []byte) error {
 			return tx.Bucket(storage.BucketDevices).Put([]byte("dev-a"), []byte("{"))
