@@ -81,6 +81,7 @@ function StatusBar() {
     ${s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…</span>`}
     ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
     ${s.waiting === 0 && !s.lastSync && s.reachable === null && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
+    ${s.reachable === true && s.error && html`<span class="pill warn" data-testid="status-error">Sync stopped: ${s.error}</span>`}
     ${s.rejected > 0 && html`<button class="pill warn" type="button" data-testid="status-rejected" onClick=${() => navigate('/settings#rejected')}>${plural(s.rejected, 'entry', 'entries')} rejected — tap to see why</button>`}
   </div>`;
 }

@@ -1,6 +1,6 @@
 // Coach screens: jump grid, rounds ringside, conditioning intervals.
 import {
-  html, useState, useEffect, useAthletes, useAthlete, AthleteSelect, NoAthletes, Choice, SaveLine,
+  html, useState, useEffect, useAthletes, useAthlete, AthleteSelect, NoAthletes, Choice, SaveLine, savedState,
   useAsync, useVersion, fmt, plural,
 } from './ui.js';
 import { save, remove, getRecord, byDay } from './db.js';
@@ -76,7 +76,7 @@ export function Jumps() {
         if (session) body.session = session;
         await save({ id: editing && editing.id, kind: 'jump', athlete: a.id, day: editing ? editing.day : localDay(), body });
       }
-      setState({ saved: `${DONE}: ${plural(todo.length, 'jump test', 'jump tests')}` });
+      setState(savedState(`${DONE}: ${plural(todo.length, 'jump test', 'jump tests')}`));
       if (!editing) setCells({});
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -163,7 +163,7 @@ export function Rounds() {
       }
       setLast(editing ? null : ids);
       const names = chosen.map((id) => (list.find((a) => a.id === id) || {}).name).join(', ');
-      setState({ saved: `${DONE}: ${editing ? 'round corrected' : `round for ${names}`}` });
+      setState(savedState(`${DONE}: ${editing ? 'round corrected' : `round for ${names}`}`));
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
   const undo = async () => {
@@ -171,7 +171,7 @@ export function Rounds() {
     try {
       for (const id of last) await remove(id);
       setLast(null);
-      setState({ saved: 'Last round removed (it can be restored from Today)' });
+      setState(savedState('Last round removed (it can be restored from Today)'));
     } catch (err) { setState({ error: `Not undone: ${err.message}` }); }
   };
 
@@ -254,7 +254,7 @@ export function Intervals() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: 'intervals', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState({ saved: DONE });
+      setState(savedState(DONE));
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
   const field = ([k, l, u]) => html`<label for=${`intervals-${k}`}>${l}</label>

@@ -1,7 +1,7 @@
 // Home, morning check-in, session RPE, incident and clearance.
 import {
   html, useState, useEffect, Link, navigate, useAthletes, useAthlete, AthleteSelect, NoAthletes,
-  Choice, SaveLine, useAsync, useVersion, getPicked, setPicked, fmt,
+  Choice, SaveLine, savedState, useAsync, useVersion, getPicked, setPicked, fmt,
 } from './ui.js';
 import { save, getRecord, byKind } from './db.js';
 import { localDay, toKg, fromKg, roundTo, parseNum } from './record.js';
@@ -119,7 +119,7 @@ export function Checkin() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: 'checkin', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState({ saved: DONE });
+      setState(savedState(DONE));
       if (!editing) setF({});
     } catch (err) {
       setState({ error: `Not saved: ${err.message}` });
@@ -192,7 +192,7 @@ export function Session() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: 'session', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState({ saved: DONE });
+      setState(savedState(DONE));
       if (!editing) setF({ type: f.type, focus: '' });
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -259,7 +259,7 @@ export function Incident() {
       const body = { type };
       if (note.trim()) body.note = note.trim();
       await save({ id: editing && editing.id, kind: 'incident', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState({ saved: DONE });
+      setState(savedState(DONE));
       setStep('done');
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -330,7 +330,7 @@ export function Clearance() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: 'clearance', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState({ saved: DONE });
+      setState(savedState(DONE));
       setIncident(undefined); setBy(''); setNote('');
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };

@@ -52,6 +52,10 @@ export function Settings({ build }) {
       <p class="muted small">Epoch <span class="num">${meta.epoch || 'not synced yet'}</span>, pulled through <span class="num">${meta.cursor || 0}</span>, clock offset <span class="num">${Math.round((meta.offset || 0) / 1000)} s</span>.</p>
       <button class="secondary" type="button" data-testid="settings-sync" onClick=${() => requestSync('manual')}>Sync now</button>
     </div>
+    <div class="card" data-testid="settings-install">
+      <h2>Install</h2>
+      <p class="muted small">Install the app before logging: on Android, the browser menu → Install app; on iPhone, Share → Add to Home Screen. Entries made in a browser tab and in the installed app are kept apart on iPhone.</p>
+    </div>
     <div class="card">
       <h2>Storage</h2>
       <p data-testid="settings-persist-answer" data-state=${persist}>${persistText}</p>

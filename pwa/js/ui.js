@@ -100,11 +100,16 @@ export function useAthlete(list, initial) {
   return [athlete, pick, id];
 }
 
+// savedState is the state after a save's transaction completed; each one
+// carries a new sequence number so a repeated message is still news.
+let saveSeq = 0;
+export function savedState(text) { return { saved: text, seq: ++saveSeq }; }
+
 // SaveLine shows the outcome of a save: only after the transaction completed.
 export function SaveLine({ state }) {
   if (!state) return null;
   if (state.error) return html`<p class="error" role="alert" data-testid="save-error">${state.error}</p>`;
-  if (state.saved) return html`<p class="saved" role="status" data-testid="saved">${state.saved}</p>`;
+  if (state.saved) return html`<p class="saved" role="status" data-testid="saved" data-seq=${state.seq}>${state.saved}</p>`;
   return null;
 }
 

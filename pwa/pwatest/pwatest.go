@@ -287,6 +287,24 @@ func athleteID(ctx context.Context, prefix, name string) (string, error) {
 
 const saved = "Saved on this phone"
 
+// SaveAndWait taps a save button and waits for this tap's confirmation,
+// which the app shows only after the IndexedDB transaction completed.
+func SaveAndWait(ctx context.Context, testid string) error {
+	var before int
+	if err := Eval(ctx, `Number((document.querySelector('[data-testid="saved"]') || { dataset: {} }).dataset.seq || 0)`, &before); err != nil {
+		return err
+	}
+	if err := Click(ctx, testid); err != nil {
+		return err
+	}
+	err := Poll(ctx, fmt.Sprintf(`(() => { const e = document.querySelector('[data-testid="saved"]'); return e && Number(e.dataset.seq) > %d && e.textContent.includes(%q) })()`, before, saved), 10*time.Second)
+	if err != nil {
+		msg, _ := Text(ctx, "save-error")
+		return fmt.Errorf("%s: not saved (%q): %w", testid, msg, err)
+	}
+	return nil
+}
+
 // LogCheckin logs a morning check-in with body mass through the check-in
 // screen, typing the mass in the athlete's own units, and waits until the
 // screen says it is saved on the device.
@@ -311,10 +329,7 @@ func LogCheckin(ctx context.Context, athleteName string, massKg float64) error {
 	if err := Type(ctx, "checkin-mass", fmt.Sprintf("%.1f", v)); err != nil {
 		return err
 	}
-	if err := Click(ctx, "checkin-save"); err != nil {
-		return err
-	}
-	return WaitText(ctx, "saved", saved)
+	return SaveAndWait(ctx, "checkin-save")
 }
 
 // LogJumps types each athlete's attempts (cm) into the jump grid and saves.
@@ -336,10 +351,7 @@ func LogJumps(ctx context.Context, heightsCm map[string][]float64) error {
 			}
 		}
 	}
-	if err := Click(ctx, "jumps-save"); err != nil {
-		return err
-	}
-	return WaitText(ctx, "saved", saved)
+	return SaveAndWait(ctx, "jumps-save")
 }
 
 // LogRound taps one finished round for the named athletes.
@@ -368,12 +380,7 @@ func LogRound(ctx context.Context, athleteNames []string, activity string, inten
 	if err := Click(ctx, fmt.Sprintf("round-intensity-%d", intensity)); err != nil {
 		return err
 	}
-	// Clear the previous confirmation so the wait sees this tap's.
-	_ = Eval(ctx, `(() => { const e = document.querySelector('[data-testid="saved"]'); if (e) e.remove(); return true })()`, nil)
-	if err := Click(ctx, "round-done"); err != nil {
-		return err
-	}
-	return WaitText(ctx, "saved", saved)
+	return SaveAndWait(ctx, "round-done")
 }
 
 // LogSession logs a session RPE (0–10) and duration for an athlete.
@@ -390,10 +397,7 @@ func LogSession(ctx context.Context, athleteName string, rpe int, minutes int) e
 	if err := Type(ctx, "session-minutes", fmt.Sprint(minutes)); err != nil {
 		return err
 	}
-	if err := Click(ctx, "session-save"); err != nil {
-		return err
-	}
-	return WaitText(ctx, "saved", saved)
+	return SaveAndWait(ctx, "session-save")
 }
 
 // ReadIDB returns every value of one store of the app's IndexedDB

@@ -1,0 +1,36 @@
+package pwa
+
+import (
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+)
+
+// The app shell a phone downloads on first load stays within 150 KB
+// compressed (gzip, as served); uPlot is precached for the chart screens
+// but loaded lazily and counted apart.
+func TestShellSizeBudget(t *testing.T) {
+	b := load()
+	var shell, charts, raw int
+	for _, p := range Files() {
+		a := b.assets[p]
+		n := len(a.body)
+		if a.gz != nil {
+			n = len(a.gz)
+		}
+		raw += len(a.body)
+		if strings.HasPrefix(p, "/vendor/uplot/") {
+			charts += n
+			continue
+		}
+		shell += n
+	}
+	sw := len(b.sw.body)
+	if b.sw.gz != nil {
+		sw = len(b.sw.gz)
+	}
+	shell += sw
+	t.Logf("shell %.1f KB gzip (incl. sw.js), uPlot %.1f KB gzip, all precached files %.1f KB raw", float64(shell)/1024, float64(charts)/1024, float64(raw)/1024)
+	assert.LessOrEqual(t, shell, 150*1024)
+}
