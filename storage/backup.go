@@ -1,6 +1,7 @@
 package storage
 
 import (
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -11,6 +12,7 @@ import (
 	"time"
 
 	bolt "go.etcd.io/bbolt"
+	berrors "go.etcd.io/bbolt/errors"
 )
 
 // BackupFile writes a consistent hot copy of the store to path: into a
@@ -73,6 +75,9 @@ func VerifyFile(path string) (err error) {
 	if st.Size() == 0 {
 		return fmt.Errorf("%w: the file is empty", ErrBadBackup)
 	}
+	if err := checkExtent(path, st.Size()); err != nil {
+		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+	}
 	defer func() {
 		// bbolt may panic on a badly damaged file; that is a refusal too.
 		if r := recover(); r != nil {
@@ -85,6 +90,10 @@ func VerifyFile(path string) (err error) {
 	}
 	defer bdb.Close()
 	return bdb.View(func(tx *bolt.Tx) error {
+		// Pages first, so no lookup follows a damaged page pointer.
+		for err := range tx.Check() {
+			return fmt.Errorf("%w: the file is damaged: %v", ErrBadBackup, err)
+		}
 		for _, b := range allBuckets {
 			if tx.Bucket(b) == nil {
 				return fmt.Errorf("%w: it has no %q section", ErrBadBackup, b)
@@ -92,9 +101,6 @@ func VerifyFile(path string) (err error) {
 		}
 		if v := tx.Bucket(BucketMeta).Get(keySchema); string(v) != schemaVersion {
 			return fmt.Errorf("%w: its layout version is %q, this hub reads %q", ErrBadBackup, v, schemaVersion)
-		}
-		for err := range tx.Check() {
-			return fmt.Errorf("%w: the file is damaged: %v", ErrBadBackup, err)
 		}
 		var problems []string
 		checkInvariants(tx, func(format string, args ...any) bool {
@@ -108,21 +114,82 @@ func VerifyFile(path string) (err error) {
 	})
 }
 
+// checkExtent reads the two bbolt meta pages and refuses a file shorter
+// than the pages they claim: bbolt memory-maps the file, and touching a
+// page past its end is a SIGBUS that no recover() catches (a truncated
+// copy on a USB stick is the common case).
+func checkExtent(path string, size int64) error {
+	f, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	const (
+		hdr   = 16         // page header: id, flags, count, overflow
+		magic = 0xED0CDAED // bbolt's meta magic
+	)
+	var need int64
+	valid := 0
+	pageSize := int64(0)
+	for i := 0; i < 2; i++ {
+		off := int64(0)
+		if i == 1 {
+			if pageSize == 0 {
+				break
+			}
+			off = pageSize
+		}
+		buf := make([]byte, hdr+64)
+		if _, err := f.ReadAt(buf, off); err != nil {
+			continue
+		}
+		m := buf[hdr:]
+		if binary.LittleEndian.Uint32(m[0:4]) != magic {
+			continue
+		}
+		ps := int64(binary.LittleEndian.Uint32(m[8:12]))
+		if ps < 512 || ps > 1<<20 {
+			continue
+		}
+		if pageSize == 0 {
+			pageSize = ps
+		}
+		// meta: magic, version, pageSize, flags (16 bytes); root bucket
+		// (root pgid, sequence: 16); freelist pgid (8); high-water pgid (8).
+		pgid := int64(binary.LittleEndian.Uint64(m[40:48]))
+		need = max(need, pgid*ps)
+		valid++
+	}
+	if valid == 0 {
+		return errors.New("it is not a database file")
+	}
+	if size < need {
+		return fmt.Errorf("the file is cut short: %d bytes of %d (an interrupted copy?)", size, need)
+	}
+	return nil
+}
+
 // RestoreFile replaces the database at dst with the backup at src after
 // checking the backup, and gives the restored store a new epoch so every
 // device re-pushes its own records and pulls from the start. A refused
-// backup changes nothing. dst must not be open by a running hub.
+// backup changes nothing. The store that was at dst is not deleted: it is
+// kept beside it as dst.replaced-YYYYMMDD-HHMMSS (ReplacedPath finds the
+// newest). dst must not be open by a running hub: its lock is held for
+// the whole swap, and a hub holding it makes the restore stop with
+// ErrLocked before anything changes.
 func RestoreFile(src, dst string) (epoch string, err error) {
 	if err := VerifyFile(src); err != nil {
 		return "", err
 	}
 	if _, err := os.Stat(dst); err == nil {
-		// Take the lock briefly: a running hub holds it and the restore stops here.
 		cur, err := bolt.Open(dst, 0o600, &bolt.Options{Timeout: time.Second})
 		if err != nil {
-			return "", &lockedError{cause: err}
+			if errors.Is(err, berrors.ErrTimeout) {
+				return "", &lockedError{cause: err}
+			}
+			return "", fmt.Errorf("open %s: %w", dst, err)
 		}
-		cur.Close()
+		defer cur.Close() // after the swap: no hub can open the old file meanwhile
 	}
 	in, err := os.Open(src)
 	if err != nil {
@@ -146,10 +213,38 @@ func RestoreFile(src, dst string) (epoch string, err error) {
 		os.Remove(tmpPath)
 		return "", err
 	}
+	aside := ""
+	if _, err := os.Stat(dst); err == nil {
+		stamp := time.Now().UTC()
+		aside = dst + ".replaced-" + stamp.Format("20060102-150405")
+		for _, err := os.Stat(aside); err == nil; _, err = os.Stat(aside) {
+			stamp = stamp.Add(time.Second) // two restores within a second keep both
+			aside = dst + ".replaced-" + stamp.Format("20060102-150405")
+		}
+		if err := os.Rename(dst, aside); err != nil {
+			os.Remove(tmpPath)
+			return "", fmt.Errorf("keep the current store aside: %w", err)
+		}
+	}
 	if err := os.Rename(tmpPath, dst); err != nil {
+		if aside != "" {
+			os.Rename(aside, dst)
+		}
+		os.Remove(tmpPath)
 		return "", err
 	}
 	return epoch, syncDir(filepath.Dir(dst))
+}
+
+// ReplacedPath is the newest store a RestoreFile into dst kept aside, or
+// "" if there is none.
+func ReplacedPath(dst string) string {
+	names, _ := filepath.Glob(dst + ".replaced-????????-??????")
+	if len(names) == 0 {
+		return ""
+	}
+	sort.Strings(names)
+	return names[len(names)-1]
 }
 
 // SnapshotName is the file name of the daily snapshot of a day.
