@@ -89,7 +89,7 @@ function StatusBar() {
 function App() {
   const { path } = useRoute();
   const [build, setBuild] = useState(sw.build);
-  useEffect(() => { const fn = (x) => setBuild(x.build); sw.subs.add(fn); return () => sw.subs.delete(fn); }, []);
+  useEffect(() => { const fn = (x) => setBuild(x.build); sw.subs.add(fn); fn(sw); return () => sw.subs.delete(fn); }, []);
   const Screen = ROUTES[path] || NotFound;
   return html`<header class="top">
       <${Link} to="/" class="home" data-testid="nav-home"><span class="mark" aria-hidden="true"></span>Cornerbook</${Link}>
