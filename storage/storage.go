@@ -33,6 +33,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
 	"time"
 
 	bolt "go.etcd.io/bbolt"
@@ -126,6 +128,9 @@ func Open(path string, opt Options) (*DB, error) {
 	if opt.Now == nil {
 		opt.Now = time.Now
 	}
+	if err := createAtomically(path); err != nil {
+		return nil, fmt.Errorf("create %s: %w", path, err)
+	}
 	b, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: opt.Timeout})
 	if err != nil {
 		if errors.Is(err, berrors.ErrTimeout) {
@@ -134,30 +139,74 @@ func Open(path string, opt Options) (*DB, error) {
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
 	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare}
-	err = b.Update(func(tx *bolt.Tx) error {
-		for _, name := range allBuckets {
-			if _, err := tx.CreateBucketIfNotExists(name); err != nil {
-				return err
-			}
-		}
-		meta := tx.Bucket(BucketMeta)
-		if v := meta.Get(keySchema); v == nil {
-			if err := meta.Put(keySchema, []byte(schemaVersion)); err != nil {
-				return err
-			}
-		} else if string(v) != schemaVersion {
-			return fmt.Errorf("the data file has layout %q; this cornerbook reads layout %s — use a newer cornerbook", v, schemaVersion)
-		}
-		if meta.Get(keyEpoch) == nil {
-			return meta.Put(keyEpoch, []byte(newEpoch()))
-		}
-		return nil
-	})
+	err = b.Update(initBuckets)
 	if err != nil {
 		b.Close()
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
 	return db, nil
+}
+
+// createAtomically makes a new store file whole or not at all: bbolt
+// writes its first pages into a temporary file beside path, and a hard
+// link puts it in place only if path still does not exist (so two
+// processes starting at once end up on one file), then the directory is
+// fsynced. A power cut during bbolt's very first initialisation can
+// otherwise leave a file it refuses to open (bbolt README, known issues).
+// Where hard links are not supported (some USB sticks), bbolt creates the
+// file itself.
+func createAtomically(path string) error {
+	if _, err := os.Stat(path); err == nil || !errors.Is(err, os.ErrNotExist) {
+		return nil // exists (or cannot be examined: let bbolt report it)
+	}
+	dir := filepath.Dir(path)
+	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".new-*")
+	if err != nil {
+		return err
+	}
+	tmp := f.Name()
+	f.Close()
+	defer os.Remove(tmp)
+	b, err := bolt.Open(tmp, 0o600, &bolt.Options{Timeout: time.Second})
+	if err != nil {
+		return err
+	}
+	err = b.Update(func(tx *bolt.Tx) error { return initBuckets(tx) })
+	if cerr := b.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return err
+	}
+	if err := os.Link(tmp, path); err != nil {
+		if errors.Is(err, os.ErrExist) {
+			return nil // another process created it first; use theirs
+		}
+		return nil // no hard links here: bbolt creates the file in place
+	}
+	return syncDir(dir)
+}
+
+// initBuckets creates the buckets, schema and epoch of a new store and
+// checks the schema of an existing one.
+func initBuckets(tx *bolt.Tx) error {
+	for _, name := range allBuckets {
+		if _, err := tx.CreateBucketIfNotExists(name); err != nil {
+			return err
+		}
+	}
+	meta := tx.Bucket(BucketMeta)
+	if v := meta.Get(keySchema); v == nil {
+		if err := meta.Put(keySchema, []byte(schemaVersion)); err != nil {
+			return err
+		}
+	} else if string(v) != schemaVersion {
+		return fmt.Errorf("the data file has layout %q; this cornerbook reads layout %s — use a newer cornerbook", v, schemaVersion)
+	}
+	if meta.Get(keyEpoch) == nil {
+		return meta.Put(keyEpoch, []byte(newEpoch()))
+	}
+	return nil
 }
 
 // Close closes the file.

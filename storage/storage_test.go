@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -195,5 +196,52 @@ func TestPushErrorsCommitNothing(t *testing.T) {
 	}
 	if _, err := db.Get(recs[0].ID); !errors.Is(err, storage.ErrNotFound) {
 		t.Fatal("the first mutation of a refused push was stored")
+	}
+}
+
+func TestFirstOpenCreatesOneWholeFile(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "cornerbook.db")
+	type result struct {
+		db  *storage.DB
+		err error
+	}
+	results := make(chan result, 2)
+	for range 2 {
+		go func() {
+			db, err := storage.Open(path, storage.Options{Timeout: 200 * time.Millisecond})
+			results <- result{db, err}
+		}()
+	}
+	var opened []*storage.DB
+	locked := 0
+	for range 2 {
+		r := <-results
+		switch {
+		case r.err == nil:
+			opened = append(opened, r.db)
+		case errors.Is(r.err, storage.ErrLocked):
+			locked++
+		default:
+			t.Fatalf("open: %v", r.err)
+		}
+	}
+	if len(opened) != 1 || locked != 1 {
+		t.Fatalf("two first opens at once: %d opened, %d locked; want one of each", len(opened), locked)
+	}
+	defer opened[0].Close()
+	if err := opened[0].Check(); err != nil {
+		t.Fatal(err)
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 || entries[0].Name() != "cornerbook.db" {
+		var names []string
+		for _, e := range entries {
+			names = append(names, e.Name())
+		}
+		t.Fatalf("data folder holds %v, want only cornerbook.db", names)
+	}
+	if st, _ := os.Stat(path); st.Mode().Perm() != 0o600 {
+		t.Fatalf("store file mode %v, want 0600 (it holds athletes' health data)", st.Mode().Perm())
 	}
 }
