@@ -15,6 +15,7 @@ import (
 	"cornerbook/pwa"
 	"cornerbook/pwa/pwatest"
 
+	"github.com/chromedp/cdproto/emulation"
 	"github.com/chromedp/chromedp"
 
 	"github.com/stretchr/testify/require"
@@ -155,6 +156,10 @@ func TestScreenshot(t *testing.T) {
 	_, ctx, _ := start(t, "")
 	require.NoError(t, pwatest.Open(ctx, s.URL("/")))
 	seed(t, ctx, athlete(idAna, "Ana Pereira", "kg"), athlete(idBeto, "Beto Lindqvist", "lb"))
+	if os.Getenv("PWA_DARK") != "" {
+		_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: "dark"}}})
+		require.NoError(t, err)
+	}
 	for _, p := range []string{"/", "/checkin", "/jumps", "/rounds", "/session", "/intervals", "/incident", "/today", "/settings"} {
 		require.NoError(t, pwatest.Route(ctx, p))
 		time.Sleep(300 * time.Millisecond)

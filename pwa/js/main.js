@@ -78,7 +78,7 @@ function StatusBar() {
     ${u.waiting && html`<button class="pill warn" type="button" data-testid="status-update" onClick=${applyUpdate}>Update ready — tap to reload</button>`}
     ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync</span>`}
     ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this phone</span>`}
-    ${s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…</span>`}
+    ${s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…${s.sent ? ` ${s.sent} sent` : ''}${s.received ? ` ${s.received} received` : ''}</span>`}
     ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
     ${s.waiting === 0 && !s.lastSync && s.reachable === null && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
     ${s.reachable === true && s.error && html`<span class="pill warn" data-testid="status-error">Sync stopped: ${s.error}</span>`}

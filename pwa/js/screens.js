@@ -203,8 +203,8 @@ export function Session() {
     ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
     <label>How hard was the whole session?</label>
     <div class="scale11" role="group" aria-label="Session RPE, 0 to 10">
-      ${[0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10].map((v) => html`<${Choice} value=${v} current=${f.rpe} onPick=${(x) => set('rpe', x)}
-        testid=${`rpe-${v}`} label=${`${v}${CR10[v] ? ' ' + CR10[v] : ''}`}>${v}<small>${CR10[v] || '\u00a0'}</small></${Choice}>`)}
+      ${[10, 9, 8, 7, 6, 5, 4, 3, 2, 1, 0].map((v) => html`<${Choice} value=${v} current=${f.rpe} onPick=${(x) => set('rpe', x)}
+        testid=${`rpe-${v}`} label=${`${v}${CR10[v] ? ' ' + CR10[v] : ''}`}><b>${v}</b><small>${CR10[v] || ''}</small></${Choice}>`)}
     </div>
     <p class="muted small">Answer about half an hour after the session, for the session as a whole.</p>
     <label for="session-minutes">Duration</label>

@@ -146,6 +146,8 @@ export const status = {
   syncing: false,
   error: '',
   clockFixed: false,
+  received: 0, // records taken in during the running sync (progress)
+  sent: 0, // mutations acknowledged during the running sync
 };
 const subs = new Set();
 export function onStatus(fn) {
@@ -181,6 +183,8 @@ export async function requestSync(reason) {
   if (running) { again = true; return; }
   running = true;
   status.syncing = true;
+  status.received = 0;
+  status.sent = 0;
   publish();
   try {
     do {
@@ -255,6 +259,10 @@ export function startSync(onData) {
   import('./db.js').then(({ onChange }) => {
     onChange((m) => {
       if (m.type === 'changed' && m.local) { syncSoon(); registerBackgroundSync(); }
+      if (status.syncing && (m.pulled || m.acked)) {
+        status.received += m.pulled || 0;
+        status.sent += m.acked || 0;
+      }
       if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
       refreshCounts();
     });
