@@ -35,10 +35,13 @@ type PushResult struct {
 //  1. n ≤ the device's counter → duplicate, skipped;
 //  2. the mutation's own checks and the record's shape (id, kind,
 //     athlete, day);
-//  3. allow (nil = allow all): an error rejects it, code FORBIDDEN (or
-//     VALIDATION for a *devsync.FieldError);
-//  4. Options.Prepare for non-deleted records (validation, derived fields);
-//  5. the kind may not change under an existing id;
+//  3. the kind may not change under an existing id;
+//  4. allow(stored, incoming) (nil = allow all), with the current winner
+//     (nil for a new record) so a rights check sees whose record it
+//     would overwrite: an error rejects the mutation with code FORBIDDEN
+//     (its field from a wrapped *devsync.FieldError, if any), or
+//     VALIDATION when the error is itself a *devsync.FieldError;
+//  5. Options.Prepare for non-deleted records (validation, derived fields);
 //  6. last-writer-wins against the stored winner (devsync.Compare, sticky
 //     deletes): a winner is written with its history, index and a new
 //     change sequence; a loser is kept in the conflicts audit.
@@ -49,7 +52,7 @@ type PushResult struct {
 // A request-level problem (no device id, n not strictly increasing) is
 // returned as a *devsync.FieldError and nothing is applied. Any other
 // error means nothing was committed.
-func (db *DB) Push(req devsync.PushRequest, allow func(*devsync.Record) error) (PushResult, error) {
+func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 	if err := checkRequest(&req); err != nil {
 		return PushResult{}, err
 	}
@@ -96,6 +99,11 @@ func (db *DB) Push(req devsync.PushRequest, allow func(*devsync.Record) error) (
 	}
 	return res, nil
 }
+
+// Allow decides whether the pushing device may write incoming over stored
+// (the current winner, tombstones included; nil for a new id). Both are
+// copies: changes to stored are ignored, changes to incoming are kept.
+type Allow func(stored, incoming *devsync.Record) error
 
 // checkRequest refuses a request as a whole.
 func checkRequest(req *devsync.PushRequest) error {
@@ -180,8 +188,17 @@ func reject(m *devsync.Mutation, code string, err error) devsync.Rejection {
 	return r
 }
 
+// refuse turns an error from allow into a rejection: FORBIDDEN, unless
+// the error is itself a *devsync.FieldError (a bad value: VALIDATION).
+func refuse(m *devsync.Mutation, err error) devsync.Rejection {
+	if _, ok := err.(*devsync.FieldError); ok {
+		return reject(m, devsync.CodeValidation, err)
+	}
+	return reject(m, devsync.CodeForbidden, err)
+}
+
 // apply runs one mutation. A non-nil error aborts the whole transaction.
-func (p *pusher) apply(m *devsync.Mutation, allow func(*devsync.Record) error, res *PushResult) (outcome, devsync.Rejection, error) {
+func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outcome, devsync.Rejection, error) {
 	if err := m.Check(); err != nil {
 		return rejected, reject(m, devsync.CodeValidation, err), nil
 	}
@@ -192,13 +209,31 @@ func (p *pusher) apply(m *devsync.Mutation, allow func(*devsync.Record) error, r
 	if rec.Body != nil {
 		rec.Body = append(json.RawMessage(nil), rec.Body...)
 	}
+
+	var stored *devsync.Record
+	if v := p.records.Get([]byte(rec.ID)); v != nil {
+		s, err := decode(v)
+		if err != nil {
+			return 0, devsync.Rejection{}, fmt.Errorf("stored record is unreadable: %w", err)
+		}
+		stored = &s
+		if s.Kind != rec.Kind {
+			return rejected, reject(m, devsync.CodeValidation,
+				devsync.Invalid("record.kind", "this id already belongs to a %s record", s.Kind)), nil
+		}
+	}
 	if allow != nil {
-		if err := allow(&rec); err != nil {
-			var fe *devsync.FieldError
-			if errors.As(err, &fe) {
-				return rejected, reject(m, devsync.CodeValidation, err), nil
-			}
-			return rejected, reject(m, devsync.CodeForbidden, err), nil
+		var view *devsync.Record
+		if stored != nil {
+			c := *stored
+			c.Body = append(json.RawMessage(nil), stored.Body...)
+			view = &c
+		}
+		if err := allow(view, &rec); err != nil {
+			return rejected, refuse(m, err), nil
+		}
+		if err := CheckShape(&rec); err != nil {
+			return rejected, reject(m, devsync.CodeValidation, err), nil
 		}
 	}
 	if !rec.Deleted && p.db.prepare != nil {
@@ -211,20 +246,11 @@ func (p *pusher) apply(m *devsync.Mutation, allow func(*devsync.Record) error, r
 			return rejected, reject(m, devsync.CodeValidation, err), nil
 		}
 	}
-
-	id := []byte(rec.ID)
-	var stored *devsync.Record
-	if v := p.records.Get(id); v != nil {
-		s, err := decode(v)
-		if err != nil {
-			return 0, devsync.Rejection{}, fmt.Errorf("stored record is unreadable: %w", err)
-		}
-		stored = &s
-		if s.Kind != rec.Kind {
-			return rejected, reject(m, devsync.CodeValidation,
-				devsync.Invalid("record.kind", "this id already belongs to a %s record", s.Kind)), nil
-		}
+	if stored != nil && stored.Kind != rec.Kind {
+		return rejected, reject(m, devsync.CodeValidation,
+			devsync.Invalid("record.kind", "this id already belongs to a %s record", stored.Kind)), nil
 	}
+
 	if !devsync.Wins(&rec, stored) {
 		if devsync.Compare(&rec, stored) < 0 {
 			if err := p.keepLoser(&rec); err != nil {

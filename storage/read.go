@@ -113,23 +113,33 @@ func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) 
 }
 
 // Range calls fn for each live record of one athlete and kind whose day
-// lies in [fromDay, toDay], ordered by day then id, through a Cursor.Seek
-// on the athlete|kind|day|id index. An empty fromDay starts at the first
-// record (day-less records, such as bouts, sort first); an empty toDay
-// runs to the last. Camp-wide kinds use athlete "".
+// lies in [fromDay, toDay], ordered by day then id, through Cursor.Seek on
+// the athlete|kind|day|id index. An empty fromDay starts at the first
+// day, an empty toDay runs to the last. Records without a day (the
+// undated kinds: athlete, settings, bout) belong to every range and come
+// first, so Range(athlete, "bout", "", "") and a range with any bounds
+// both find a fighter's bouts. Camp-wide kinds use athlete "".
 func (db *DB) Range(athlete, kind, fromDay, toDay string, fn func(devsync.Record) error) error {
 	return db.bolt.View(func(tx *bolt.Tx) error {
 		records := tx.Bucket(BucketRecords)
 		prefix := []byte(athlete + "|" + kind + "|")
 		c := tx.Bucket(BucketIndex).Cursor()
+		// Day-less keys are prefix + "|" + id; '|' sorts after every
+		// digit, so they are the last of the prefix: read them first.
+		undated := append(bytes.Clone(prefix), '|')
+		for k, _ := c.Seek(undated); k != nil && bytes.HasPrefix(k, undated); k, _ = c.Next() {
+			if err := emit(records, k[len(undated):], fn); err != nil {
+				return err
+			}
+		}
 		for k, _ := c.Seek(append(bytes.Clone(prefix), fromDay...)); k != nil && bytes.HasPrefix(k, prefix); k, _ = c.Next() {
 			rest := k[len(prefix):]
 			sep := bytes.IndexByte(rest, '|')
 			if sep < 0 {
 				return fmt.Errorf("index key %q is malformed", k)
 			}
-			if toDay != "" && string(rest[:sep]) > toDay {
-				return nil
+			if sep == 0 || toDay != "" && string(rest[:sep]) > toDay {
+				return nil // past the last day (sep 0: the day-less keys, already read)
 			}
 			if err := emit(records, rest[sep+1:], fn); err != nil {
 				return err
@@ -140,7 +150,8 @@ func (db *DB) Range(athlete, kind, fromDay, toDay string, fn func(devsync.Record
 }
 
 // Kind calls fn for every live record of one kind, all athletes, ordered
-// by athlete, day, id (camp-wide records, athlete "", come last). It
+// by athlete, day, id (day-less records after an athlete's dated ones;
+// camp-wide records, athlete "", after every athlete's). It
 // skips from athlete to athlete with Cursor.Seek, so its cost is the
 // records it returns plus a seek or two per athlete.
 func (db *DB) Kind(kind string, fn func(devsync.Record) error) error {

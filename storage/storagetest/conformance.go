@@ -325,7 +325,7 @@ func testBadVersionUnchanged(t *testing.T, db *storage.DB) {
 	muts = append(muts, Mutations(5, badKind)...)
 	forbidden := g.Edit(r)
 	muts = append(muts, Mutations(6, forbidden)...)
-	res, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: muts}, func(rec *devsync.Record) error {
+	res, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: muts}, func(_, rec *devsync.Record) error {
 		if rec.Stamp == forbidden.Stamp {
 			return errors.New("this device may only write its own athlete's records")
 		}
@@ -440,11 +440,24 @@ func testRequestLevel(t *testing.T, db *storage.DB) {
 	}
 }
 
+// forbiddenField is how a rights check may say which field it refuses:
+// an error that wraps a *devsync.FieldError.
+type forbiddenField struct{ fe *devsync.FieldError }
+
+func (e forbiddenField) Error() string { return "not allowed: " + e.fe.Error() }
+func (e forbiddenField) Unwrap() error { return e.fe }
+
 func testAllow(t *testing.T, db *storage.DB) {
 	recs := Records(13, 2, 2) // athletes A, B alternate
-	onlyA := func(r *devsync.Record) error {
-		if r.Athlete != recs[0].Athlete {
+	a := recs[0].Athlete
+	// An athlete's phone may write only that athlete's records, and may not
+	// take over another athlete's record by renaming it.
+	onlyA := func(stored, rec *devsync.Record) error {
+		if rec.Athlete != a {
 			return errors.New("an athlete's phone writes only that athlete's records")
+		}
+		if stored != nil && stored.Athlete != a {
+			return forbiddenField{&devsync.FieldError{Field: "record.athlete", Reason: "this record belongs to another athlete"}}
 		}
 		return nil
 	}
@@ -460,9 +473,46 @@ func testAllow(t *testing.T, db *storage.DB) {
 			t.Fatalf("forbidden rejection: %+v", rej)
 		}
 	}
+	// B's record, stored by the coach, cannot be renamed to A by A's phone.
+	push(t, db, "dev-coach", Mutations(1, recs[1])...)
+	takeover := NewGen(14, "dev-a").Edit(recs[1])
+	takeover.Athlete = a
+	var sawStored *devsync.Record
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(5, takeover)}, func(stored, rec *devsync.Record) error {
+		sawStored = stored
+		err := onlyA(stored, rec)
+		stored.Athlete = "tampered" // a copy: must not reach the store
+		return err
+	})
+	if sawStored == nil || sawStored.ID != recs[1].ID {
+		t.Fatalf("allow did not see the stored winner: %+v", sawStored)
+	}
+	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeForbidden || res.Rejected[0].Field != "record.athlete" {
+		t.Fatalf("takeover: %+v", res.Rejected)
+	}
+	sameRecord(t, "record after a refused takeover", mustGet(t, db, recs[1].ID), recs[1])
+	// stored is a copy: an allow that scribbles on it cannot confuse the
+	// index update of an accepted edit.
+	moved := NewGen(16, "dev-coach").Edit(recs[1])
+	moved.Day = Day(7)
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: Mutations(2, moved)}, func(stored, _ *devsync.Record) error {
+		stored.Athlete, stored.Day = a, Day(0)
+		return nil
+	})
+	if res.Applied != 1 {
+		t.Fatalf("accepted edit: %+v", res)
+	}
+	if err := db.Check(); err != nil {
+		t.Fatalf("after an allow that changed its copy of the stored record: %v", err)
+	}
 	// A *FieldError from allow is a validation rejection with its field.
-	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(5, NewGen(14, "dev-a").Checkin(recs[0].Athlete, Day(4)))},
-		func(*devsync.Record) error { return devsync.Invalid("record.athlete", "is not in this camp") })
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(6, NewGen(15, "dev-a").Checkin(a, Day(4)))},
+		func(stored, _ *devsync.Record) error {
+			if stored != nil {
+				t.Error("allow saw a stored version of a new record")
+			}
+			return devsync.Invalid("record.athlete", "is not in this camp")
+		})
 	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeValidation || res.Rejected[0].Field != "record.athlete" {
 		t.Fatalf("field error from allow: %+v", res.Rejected)
 	}
@@ -630,6 +680,22 @@ func testRange(t *testing.T, db *storage.DB) {
 	db.Range(b, "checkin", Day(9), Day(9), func(devsync.Record) error { nb++; return nil })
 	if nb != 1 {
 		t.Fatalf("record moved to athlete b: listed %d times under b", nb)
+	}
+	// Records without a day (bouts, settings) belong to every range, first.
+	bout := devsync.Record{ID: g.ID(), Kind: "bout", Athlete: a, Device: "dev-a", Stamp: g.Stamp(), Body: []byte(`{"bout_day":"2026-04-18"}`)}
+	dated := g.Checkin(a, Day(2))
+	dated.Kind = "bout"
+	push(t, db, "dev-a", Mutations(300, bout, dated)...)
+	for _, bounds := range [][2]string{{"", ""}, {Day(1), Day(3)}, {"0000-01-01", "9999-12-31"}, {Day(5), Day(6)}} {
+		var got []string
+		db.Range(a, "bout", bounds[0], bounds[1], func(r devsync.Record) error { got = append(got, r.ID); return nil })
+		want := []string{bout.ID}
+		if bounds[0] <= Day(2) && (bounds[1] == "" || bounds[1] >= Day(2)) {
+			want = append(want, dated.ID)
+		}
+		if !slices.Equal(got, want) {
+			t.Fatalf("bouts in %v: %v, want %v (the day-less bout in every range)", bounds, got, want)
+		}
 	}
 	// An error from fn stops the walk.
 	stop := errors.New("stop")
