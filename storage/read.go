@@ -218,3 +218,24 @@ func (db *DB) All(includeDeleted bool, fn func(devsync.Record) error) error {
 		return nil
 	})
 }
+
+// Conflicts returns the versions of one record that arrived after a
+// greater version was already stored and so lost (the audit kept by
+// Push), in arrival order. Exact re-deliveries of the stored version are
+// not conflicts. Empty for a record that never lost a version.
+func (db *DB) Conflicts(id string) ([]devsync.Record, error) {
+	var out []devsync.Record
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		prefix := append([]byte(id), '|')
+		c := tx.Bucket(BucketConflicts).Cursor()
+		for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+			r, err := decode(v)
+			if err != nil {
+				return fmt.Errorf("conflict %x: %w", k, err)
+			}
+			out = append(out, r)
+		}
+		return nil
+	})
+	return out, err
+}

@@ -202,14 +202,13 @@ func testLowerStamp(t *testing.T, db *storage.DB) {
 	if h := history(t, db, v1.ID); len(h) != 1 {
 		t.Fatalf("a losing version entered the history: %d versions", len(h))
 	}
-	// The losers are kept for audit.
-	n := 0
-	db.Bolt().View(func(tx *bolt.Tx) error {
-		return tx.Bucket(storage.BucketConflicts).ForEach(func(k, v []byte) error { n++; return nil })
-	})
-	if n != 2 {
-		t.Fatalf("conflicts audit holds %d losing versions, want 2", n)
+	// The losers are kept for audit, in arrival order.
+	losers, err := db.Conflicts(v1.ID)
+	if err != nil || len(losers) != 2 {
+		t.Fatalf("conflicts audit holds %d losing versions (err %v), want 2", len(losers), err)
 	}
+	sameRecord(t, "first loser", losers[0], v1)
+	sameRecord(t, "second loser", losers[1], other)
 }
 
 func testStickyDelete(t *testing.T, db *storage.DB) {
