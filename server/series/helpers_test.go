@@ -19,14 +19,14 @@ func d(off int) string { return (day.MustParse("2026-03-02") + day.Number(off)).
 
 // camp builds one athlete's validated records.
 type camp struct {
-	t       *testing.T
+	t       testing.TB
 	athlete devsync.Record
 	bout    *devsync.Record
 	recs    []devsync.Record
 	n       int
 }
 
-func newCamp(t *testing.T, units string) *camp {
+func newCamp(t testing.TB, units string) *camp {
 	c := &camp{t: t}
 	c.athlete = c.record(records.KindAthlete, "", "07:00", records.Athlete{Name: "Test Fighter", Units: units})
 	return c
