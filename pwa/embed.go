@@ -214,8 +214,9 @@ func (b *bundle) handler() http.Handler {
 			b.serve(w, r, a)
 			return
 		}
-		// An app navigation: any path without a file extension.
-		if path.Ext(p) == "" {
+		// An app navigation: any path without a file extension (vendor
+		// paths are files, e.g. the licences).
+		if path.Ext(p) == "" && !strings.HasPrefix(p, "/vendor/") {
 			b.serve(w, r, b.assets["/index.html"])
 			return
 		}

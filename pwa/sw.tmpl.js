@@ -35,7 +35,9 @@ self.addEventListener('fetch', (event) => {
   const url = new URL(req.url);
   if (url.origin !== self.location.origin) return;
   if (url.pathname === '/api' || url.pathname.startsWith('/api/')) return; // data lives in IndexedDB
-  if (req.mode === 'navigate') {
+  // App routes (no file extension) get the shell; a file opened directly
+  // (a licence, an icon) is served as itself, like the hub does.
+  if (req.mode === 'navigate' && !/\.[A-Za-z0-9]+$/.test(url.pathname) && !url.pathname.startsWith('/vendor/')) {
     event.respondWith((async () => {
       const hit = await caches.match('/index.html', { cacheName: CACHE });
       return hit || fetch(req);
