@@ -162,6 +162,13 @@ func TestDefaultWeeks_FollowsThresholds(t *testing.T) {
 	}
 	cut, _ := plan.TaperCut(ws, th)
 	near(t, "taper cut", cut, 55, 1e-9)
+	// The level fractions are off_plan's (common practice, no source).
+	if f, ok := plan.Fraction("medium_heavy", th); !ok || f != 0.85 {
+		t.Fatalf("medium_heavy fraction %v %v", f, ok)
+	}
+	if _, ok := plan.Fraction("extreme", th); ok {
+		t.Fatal("an unknown level has a fraction")
+	}
 	if plan.SparCap("rest", th) != 0 {
 		t.Fatal("a rest week allows sparring")
 	}

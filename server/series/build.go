@@ -460,7 +460,7 @@ func (b *builder) load(s *Series) {
 }
 
 func (b *builder) spar(s *Series) {
-	p := &s.Spar
+	p := &s.Sparring
 	window := int(b.param(records.RuleSparDensity, "window_days"))
 	hi := int(b.param(records.RuleSparDensity, "hard_intensity"))
 	capDefault := int(b.param(records.RuleSparDensity, "cap_rounds"))
@@ -526,7 +526,7 @@ func wellnessTotal(dd *dayData) (float64, bool) {
 }
 
 func (b *builder) wellness(s *Series) {
-	w := &s.Well
+	w := &s.Wellness
 	window := int(b.param(records.RuleWellnessDrop, "window_days"))
 	minN := int(b.param(records.RuleWellnessDrop, "min_checkins"))
 	watchZ, alertZ := b.param(records.RuleWellnessDrop, "watch_z"), b.param(records.RuleWellnessDrop, "alert_z")

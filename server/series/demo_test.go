@@ -127,16 +127,16 @@ func TestBuild_AgreesWithFlagEngine(t *testing.T) {
 					trend := f.Details["trend_kg"]
 					same(t, what+" trend", &trend, s.Mass.TrendKg[i])
 				case f.Rule == flags.RuleSparDensity && f.Status == flags.StatusFlag && f.Unit == "rounds":
-					same(t, what+" rounds", f.Value, fp(s.Spar.RollingRounds[i]))
-					same(t, what+" cap", f.Reference, fp(s.Spar.CapRounds[i]))
+					same(t, what+" rounds", f.Value, fp(s.Sparring.RollingRounds[i]))
+					same(t, what+" cap", f.Reference, fp(s.Sparring.CapRounds[i]))
 				case f.Rule == flags.RuleSparDensity && f.Status == flags.StatusFlag:
-					same(t, what+" hard rounds", f.Value, fp(s.Spar.RollingHard[i]))
+					same(t, what+" hard rounds", f.Value, fp(s.Sparring.RollingHard[i]))
 				case f.Rule == flags.RuleWellnessDrop && f.Status == flags.StatusFlag && f.Reference != nil:
-					same(t, what+" total", f.Value, s.Well.Total[i])
-					same(t, what+" mean", f.Reference, s.Well.Mean[i])
-					thr := s.Well.WatchBelow[i]
+					same(t, what+" total", f.Value, s.Wellness.Total[i])
+					same(t, what+" mean", f.Reference, s.Wellness.Mean[i])
+					thr := s.Wellness.WatchBelow[i]
 					if f.Level == flags.LevelAlert {
-						thr = s.Well.AlertBelow[i]
+						thr = s.Wellness.AlertBelow[i]
 					}
 					same(t, what+" threshold", f.Threshold, thr)
 				default:

@@ -45,16 +45,16 @@ const (
 
 // Series is the chart data of one athlete over Days.
 type Series struct {
-	Athlete string   `json:"athlete"`
-	From    string   `json:"from"`
-	To      string   `json:"to"`
-	Units   string   `json:"units"` // "kg" or "lb": how the screen shows masses; values here are kg
-	Days    []string `json:"days"`  // every calendar day from..to, the shared x axis
-	Mass    Mass     `json:"mass"`
-	Jump    Jump     `json:"jump"`
-	Load    Load     `json:"load"`
-	Spar    Spar     `json:"sparring"`
-	Well    Wellness `json:"wellness"`
+	Athlete  string   `json:"athlete"`
+	From     string   `json:"from"`
+	To       string   `json:"to"`
+	Units    string   `json:"units"` // "kg" or "lb": how the screen shows masses; values here are kg
+	Days     []string `json:"days"`  // every calendar day from..to, the shared x axis
+	Mass     Mass     `json:"mass"`
+	Jump     Jump     `json:"jump"`
+	Load     Load     `json:"load"`
+	Sparring Sparring `json:"sparring"`
+	Wellness Wellness `json:"wellness"`
 }
 
 // Mass is morning body mass against the plan, in kg.
@@ -121,8 +121,8 @@ type Load struct {
 	Caution   string     `json:"caution"`
 }
 
-// Spar is sparring rounds per day against the caps.
-type Spar struct {
+// Sparring is sparring rounds per day against the caps.
+type Sparring struct {
 	Rounds     []int `json:"rounds"`      // sparring rounds of the day
 	HardRounds []int `json:"hard_rounds"` // at intensity ≥ hard_intensity (3)
 	// RollingRounds and RollingHard are the totals of the window_days (7)
@@ -214,8 +214,8 @@ func (s *Series) alloc(n int) {
 	s.Mass = Mass{MorningKg: ptrs(), TrendKg: ptrs(), PathKg: ptrs(), LossPctWeek: ptrs(), Projections: []Projection{}, Caution: flags.CautionMass}
 	s.Jump = Jump{MeanCm: ptrs(), BestCm: ptrs(), BaselineCm: ptrs(), NoisePct: ptrs(), BandLowCm: ptrs(), BandHighCm: ptrs(), TestDays: ints()}
 	s.Load = Load{DailyAU: ptrs(), AcuteAU: ptrs(), ChronicAU: ptrs(), Ratio: ptrs(), Caution: flags.CautionLoad}
-	s.Spar = Spar{Rounds: ints(), HardRounds: ints(), RollingRounds: ints(), RollingHard: ints(), CapRounds: ints()}
-	s.Well = Wellness{Total: ptrs(), Mean: ptrs(), WatchBelow: ptrs(), AlertBelow: ptrs()}
+	s.Sparring = Sparring{Rounds: ints(), HardRounds: ints(), RollingRounds: ints(), RollingHard: ints(), CapRounds: ints()}
+	s.Wellness = Wellness{Total: ptrs(), Mean: ptrs(), WatchBelow: ptrs(), AlertBelow: ptrs()}
 }
 
 func f64(v float64) *float64 {

@@ -22,7 +22,7 @@ func TestBuild_EveryDayPresent(t *testing.T) {
 	if strings.Join(s.Days, " ") != strings.Join(want, " ") || s.Units != "kg" || s.Athlete != athleteID {
 		t.Fatalf("days %v units %q athlete %q", s.Days, s.Units, s.Athlete)
 	}
-	for _, col := range [][]*float64{s.Mass.MorningKg, s.Mass.TrendKg, s.Mass.PathKg, s.Jump.MeanCm, s.Load.DailyAU, s.Load.Ratio, s.Well.Total} {
+	for _, col := range [][]*float64{s.Mass.MorningKg, s.Mass.TrendKg, s.Mass.PathKg, s.Jump.MeanCm, s.Load.DailyAU, s.Load.Ratio, s.Wellness.Total} {
 		if len(col) != 4 {
 			t.Fatalf("a column of %d values for 4 days", len(col))
 		}
@@ -30,8 +30,8 @@ func TestBuild_EveryDayPresent(t *testing.T) {
 			isNull(t, "value with no records", v)
 		}
 	}
-	if len(s.Spar.CapRounds) != 4 || s.Spar.CapRounds[0] != 30 {
-		t.Fatalf("caps %v, want the spar_density default of 30", s.Spar.CapRounds)
+	if len(s.Sparring.CapRounds) != 4 || s.Sparring.CapRounds[0] != 30 {
+		t.Fatalf("caps %v, want the spar_density default of 30", s.Sparring.CapRounds)
 	}
 }
 
@@ -275,7 +275,7 @@ func TestBuild_Sparring(t *testing.T) {
 	c.rounds(d(3), "spar", 6, 3)
 	c.rounds(d(8), "spar", 4, 1)
 	s := series.Build(c.input(nil), d(-1), d(8))
-	p := s.Spar
+	p := s.Sparring
 	check := func(what string, got []int, want []int) {
 		t.Helper()
 		for i := range want {
@@ -310,7 +310,7 @@ func TestBuild_Wellness(t *testing.T) {
 	c.wellness(d(7), "09:00", 22)
 	c.wellness(d(7), "07:00", 15) // the earliest complete check-in
 	s := series.Build(c.input(nil), d(0), d(7))
-	w := s.Well
+	w := s.Wellness
 	near(t, "total d(7)", w.Total[7], 15, 0)
 	isNull(t, "threshold with 6 check-ins", w.WatchBelow[6])
 	near(t, "mean", w.Mean[7], 19, 1e-9)
