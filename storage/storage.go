@@ -18,7 +18,7 @@
 //	index      athlete "|" kind "|" day "|" id → empty (live records only)
 //	changes    u64be seq → id (one entry per record, at its latest change)
 //	devices    device id → {"lastN","lastPush","pushes"}
-//	conflicts  id "|" u64be n → losing record JSON (audit, never read by sync)
+//	conflicts  id "|" u64be n → losing record JSON (audit: Conflicts; sync never reads it)
 //
 // Ids, athlete ids, kinds and days are validated before they reach a key,
 // so none of them contains the "|" separator.

@@ -245,3 +245,37 @@ func TestFirstOpenCreatesOneWholeFile(t *testing.T) {
 		t.Fatalf("store file mode %v, want 0600 (it holds athletes' health data)", st.Mode().Perm())
 	}
 }
+
+// A device that may see almost nothing (an athlete's phone in a big camp)
+// still gets short pages: each page looks at a bounded number of change
+// entries, and the cursor moves past the hidden ones.
+func TestPullBoundsHiddenScan(t *testing.T) {
+	db := storagetest.MustOpen(t)
+	n := 4*devsync.MaxPullLimit + 100
+	recs := storagetest.Records(7, 50, n/50)
+	if _, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, recs...)}, nil); err != nil {
+		t.Fatal(err)
+	}
+	mine := recs[len(recs)-1]
+	visible := func(r *devsync.Record) bool { return r.ID == mine.ID }
+	var got []devsync.Record
+	since, pages := uint64(0), 0
+	for {
+		page, next, more, _, err := db.Pull(since, 10, visible)
+		if err != nil {
+			t.Fatal(err)
+		}
+		pages++
+		if next-since > uint64(4*devsync.MaxPullLimit) {
+			t.Fatalf("one page looked at %d entries", next-since)
+		}
+		got = append(got, page...)
+		since = next
+		if !more {
+			break
+		}
+	}
+	if len(got) != 1 || got[0].ID != mine.ID || since != uint64(len(recs)) || pages < 2 {
+		t.Fatalf("%d pages, %d records, cursor %d of %d", pages, len(got), since, len(recs))
+	}
+}
