@@ -390,6 +390,7 @@ func (b *builder) jump(s *Series) {
 	j := &s.Jump
 	window := int(b.param(records.RuleJumpDrop, "window_days"))
 	minDays := int(b.param(records.RuleJumpDrop, "min_days"))
+	j.MinTestDays = minDays
 	floor := b.param(records.RuleJumpDrop, "cv_floor_pct")
 	// The method in force: that of the latest test day up to the day.
 	method := ""
@@ -433,6 +434,23 @@ func (b *builder) load(s *Series) {
 	acuteN, chronicN := b.param(records.RuleLoadSpike, "acute_n"), b.param(records.RuleLoadSpike, "chronic_n")
 	minDays := int(b.param(records.RuleLoadSpike, "min_days"))
 	l.WatchAt, l.LowAt = b.param(records.RuleLoadSpike, "watch_ratio"), b.param(records.RuleLoadSpike, "low_ratio")
+	l.RatioMinDays = minDays
+	if bt := b.bout; bt != nil && b.hasCamp {
+		for i := range s.Days {
+			d := b.from + day.Number(i)
+			if d < b.campStart {
+				continue
+			}
+			w, ok := b.weeks[int(d-b.campStart)/7+1]
+			if !ok || w.Level == "" {
+				continue
+			}
+			l.WeekLevel[i] = w.Level
+			if frac := b.param(records.RuleOffPlan, "level_"+w.Level); frac > 0 && bt.ReferenceLoadAU > 0 {
+				l.PlannedWeekAU[i] = f64(frac * bt.ReferenceLoadAU)
+			}
+		}
+	}
 	if !b.hasFirst {
 		return
 	}
@@ -529,6 +547,7 @@ func (b *builder) wellness(s *Series) {
 	w := &s.Wellness
 	window := int(b.param(records.RuleWellnessDrop, "window_days"))
 	minN := int(b.param(records.RuleWellnessDrop, "min_checkins"))
+	w.MinCheckins = minN
 	watchZ, alertZ := b.param(records.RuleWellnessDrop, "watch_z"), b.param(records.RuleWellnessDrop, "alert_z")
 	sdFloor := b.param(records.RuleWellnessDrop, "sd_floor")
 	base := make([]float64, 0, window)
@@ -543,6 +562,7 @@ func (b *builder) wellness(s *Series) {
 				base = append(base, t)
 			}
 		}
+		w.Checkins[i] = len(base)
 		if len(base) < minN || len(base) < 2 {
 			continue
 		}

@@ -65,7 +65,8 @@ func same(t *testing.T, what string, engine *float64, series *float64) {
 // the mass trend and planned path in mass_above_path's Value and
 // Reference, the rate of loss in mass_loss_fast's Value, the trend in
 // cut_at_risk's details, the rolling sparring count and cap in
-// spar_density, and the wellness mean and threshold in wellness_drop.
+// spar_density, the wellness mean and threshold in wellness_drop, and the
+// planned week load in off_plan's Reference.
 func TestBuild_AgreesWithFlagEngine(t *testing.T) {
 	athletes, camp := demoCamp(t)
 	from := demoToday.AddDate(0, 0, -demo.HistoryDays+1).Format(time.DateOnly)
@@ -139,6 +140,8 @@ func TestBuild_AgreesWithFlagEngine(t *testing.T) {
 						thr = s.Wellness.AlertBelow[i]
 					}
 					same(t, what+" threshold", f.Threshold, thr)
+				case f.Rule == flags.RuleOffPlan && f.Reference != nil:
+					same(t, what+" planned week", f.Reference, s.Load.PlannedWeekAU[i])
 				default:
 					continue
 				}
@@ -148,7 +151,7 @@ func TestBuild_AgreesWithFlagEngine(t *testing.T) {
 	}
 	for _, k := range []string{
 		"jump_drop flag", "jump_drop forming", "load_spike flag", "load_spike forming", "mass_above_path flag",
-		"mass_loss_fast flag", "cut_at_risk flag", "spar_density flag", "wellness_drop flag",
+		"mass_loss_fast flag", "cut_at_risk flag", "spar_density flag", "wellness_drop flag", "off_plan forming",
 	} {
 		if checked[k] == 0 {
 			t.Errorf("the demo camp never gave a %s to compare with", k)

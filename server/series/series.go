@@ -96,11 +96,12 @@ type Jump struct {
 	BestCm []*float64 `json:"best_cm"`
 	// BaselineCm is the mean of the daily values over the window_days
 	// before the day (at least min_days test days).
-	BaselineCm []*float64 `json:"baseline_cm"`
-	NoisePct   []*float64 `json:"noise_pct"` // max(CV of those daily values, cv_floor_pct)
-	BandLowCm  []*float64 `json:"band_low_cm"`
-	BandHighCm []*float64 `json:"band_high_cm"` // baseline × (1 ± noise)
-	TestDays   []int      `json:"baseline_test_days"`
+	BaselineCm  []*float64 `json:"baseline_cm"`
+	NoisePct    []*float64 `json:"noise_pct"` // max(CV of those daily values, cv_floor_pct)
+	BandLowCm   []*float64 `json:"band_low_cm"`
+	BandHighCm  []*float64 `json:"band_high_cm"`       // baseline × (1 ± noise)
+	TestDays    []int      `json:"baseline_test_days"` // test days in the window before the day
+	MinTestDays int        `json:"min_test_days"`      // jump_drop.min_days: fewer and the baseline is forming
 }
 
 // Load is the daily session load in AU.
@@ -113,12 +114,18 @@ type Load struct {
 	// acute_n and chronic_n, both seeded with the first day's load;
 	// Williams et al. 2017). Ratio is null until min_days days are on
 	// record, as in the load_spike rule.
-	AcuteAU   []*float64 `json:"acute_au"`
-	ChronicAU []*float64 `json:"chronic_au"`
-	Ratio     []*float64 `json:"ratio"`
-	WatchAt   float64    `json:"watch_ratio"`
-	LowAt     float64    `json:"low_ratio"`
-	Caution   string     `json:"caution"`
+	AcuteAU      []*float64 `json:"acute_au"`
+	ChronicAU    []*float64 `json:"chronic_au"`
+	Ratio        []*float64 `json:"ratio"`
+	WatchAt      float64    `json:"watch_ratio"`
+	LowAt        float64    `json:"low_ratio"`
+	RatioMinDays int        `json:"ratio_min_days"` // load_spike.min_days
+	// WeekLevel is the planned level of the day's camp week ("" outside
+	// the plan) and PlannedWeekAU its planned weekly load, level fraction ×
+	// reference_load_au: what off_plan compares the week's load with.
+	WeekLevel     []string   `json:"week_level"`
+	PlannedWeekAU []*float64 `json:"planned_week_au"`
+	Caution       string     `json:"caution"`
 }
 
 // Sparring is sparring rounds per day against the caps.
@@ -145,9 +152,11 @@ type Wellness struct {
 	// with at least min_checkins; WatchBelow and AlertBelow are mean +
 	// watch_z (alert_z) × max(SD, sd_floor): the totals at or below which
 	// wellness_drop raises a watch (alert).
-	Mean       []*float64 `json:"baseline_mean"`
-	WatchBelow []*float64 `json:"watch_threshold"`
-	AlertBelow []*float64 `json:"alert_threshold"`
+	Mean        []*float64 `json:"baseline_mean"`
+	WatchBelow  []*float64 `json:"watch_threshold"`
+	AlertBelow  []*float64 `json:"alert_threshold"`
+	Checkins    []int      `json:"baseline_checkins"` // complete check-ins in the window before the day
+	MinCheckins int        `json:"min_checkins"`      // wellness_drop.min_checkins
 }
 
 // CheckRange reports whether from..to is a range Build draws: two calendar
@@ -213,9 +222,9 @@ func (s *Series) alloc(n int) {
 	s.Days = make([]string, n)
 	s.Mass = Mass{MorningKg: ptrs(), TrendKg: ptrs(), PathKg: ptrs(), LossPctWeek: ptrs(), Projections: []Projection{}, Caution: flags.CautionMass}
 	s.Jump = Jump{MeanCm: ptrs(), BestCm: ptrs(), BaselineCm: ptrs(), NoisePct: ptrs(), BandLowCm: ptrs(), BandHighCm: ptrs(), TestDays: ints()}
-	s.Load = Load{DailyAU: ptrs(), AcuteAU: ptrs(), ChronicAU: ptrs(), Ratio: ptrs(), Caution: flags.CautionLoad}
+	s.Load = Load{DailyAU: ptrs(), AcuteAU: ptrs(), ChronicAU: ptrs(), Ratio: ptrs(), WeekLevel: make([]string, n), PlannedWeekAU: ptrs(), Caution: flags.CautionLoad}
 	s.Sparring = Sparring{Rounds: ints(), HardRounds: ints(), RollingRounds: ints(), RollingHard: ints(), CapRounds: ints()}
-	s.Wellness = Wellness{Total: ptrs(), Mean: ptrs(), WatchBelow: ptrs(), AlertBelow: ptrs()}
+	s.Wellness = Wellness{Total: ptrs(), Mean: ptrs(), WatchBelow: ptrs(), AlertBelow: ptrs(), Checkins: ints()}
 }
 
 func f64(v float64) *float64 {

@@ -83,10 +83,10 @@ func TestBuild_JSONShape(t *testing.T) {
 	}
 	want := map[string]string{
 		"mass":     "caution,limit_kg,loss_pct_week,morning_kg,path_kg,projections,trend_kg",
-		"jump":     "band_high_cm,band_low_cm,baseline_cm,baseline_test_days,best_cm,mean_cm,noise_pct",
-		"load":     "acute_au,caution,chronic_au,daily_au,low_ratio,ratio,watch_ratio",
+		"jump":     "band_high_cm,band_low_cm,baseline_cm,baseline_test_days,best_cm,mean_cm,min_test_days,noise_pct",
+		"load":     "acute_au,caution,chronic_au,daily_au,low_ratio,planned_week_au,ratio,ratio_min_days,watch_ratio,week_level",
 		"sparring": "alert_factor,cap_rounds,hard_cap_rounds,hard_rounds,rolling_hard_rounds,rolling_rounds,rounds,window_days",
-		"wellness": "alert_threshold,baseline_mean,total,watch_threshold",
+		"wellness": "alert_threshold,baseline_checkins,baseline_mean,min_checkins,total,watch_threshold",
 	}
 	for k, w := range want {
 		var m map[string]json.RawMessage
@@ -267,7 +267,7 @@ func TestBuild_JumpBaselineAndBand(t *testing.T) {
 func TestBuild_Sparring(t *testing.T) {
 	c := newCamp(t, "kg")
 	c.setBout(records.Bout{CampStart: d(0), WeighIn: d(40) + "T10:00:00+01:00", WeighInType: "day_before", BoutDay: d(41),
-		WeightClass: records.ClassCustom, LimitKg: 66, StartMassKg: 70,
+		WeightClass: records.ClassCustom, LimitKg: 66, StartMassKg: 70, ReferenceLoadAU: 2500,
 		Weeks: []records.Week{{Week: 1, Level: "medium", SparCapRounds: ip(20)}, {Week: 2, Level: "heavy"}}})
 	c.rounds(d(0), "spar", 3, 3)
 	c.rounds(d(0), "spar", 2, 2)
@@ -293,6 +293,15 @@ func TestBuild_Sparring(t *testing.T) {
 	if p.HardCap != 15 || p.AlertFactor != 1.25 || p.WindowDays != 7 {
 		t.Fatalf("caps %+v", p)
 	}
+	// The planned week load off_plan compares with: level fraction ×
+	// reference week (medium 0.7, heavy 1.0 × 2500 AU; common practice).
+	l := s.Load
+	if l.WeekLevel[0] != "" || l.WeekLevel[1] != "medium" || l.WeekLevel[8] != "heavy" {
+		t.Fatalf("week levels %q", l.WeekLevel)
+	}
+	isNull(t, "planned load before the camp", l.PlannedWeekAU[0])
+	near(t, "planned medium week", l.PlannedWeekAU[1], 1750, 1e-9)
+	near(t, "planned heavy week", l.PlannedWeekAU[8], 2500, 1e-9)
 }
 
 // Wellness: total of the five items of the day's earliest complete
@@ -312,6 +321,9 @@ func TestBuild_Wellness(t *testing.T) {
 	s := series.Build(c.input(nil), d(0), d(7))
 	w := s.Wellness
 	near(t, "total d(7)", w.Total[7], 15, 0)
+	if w.Checkins[6] != 6 || w.Checkins[7] != 7 || w.MinCheckins != 7 {
+		t.Fatalf("check-ins %v, min %d", w.Checkins, w.MinCheckins)
+	}
 	isNull(t, "threshold with 6 check-ins", w.WatchBelow[6])
 	near(t, "mean", w.Mean[7], 19, 1e-9)
 	near(t, "watch threshold", w.WatchBelow[7], 17.063508, 0.000001)
