@@ -63,7 +63,8 @@ type Mass struct {
 	// TrendKg is the exponentially weighted mean of the morning masses
 	// (λ = 2/(N+1), N = mass_above_path.ewma_n, seeded with the first mass
 	// of the camp or of the 42 days before, whichever is later), as the
-	// mass_above_path rule computes it.
+	// mass_above_path rule computes it; null before the camp starts (with
+	// a bout) and on days with no mass in that window.
 	TrendKg []*float64 `json:"trend_kg"`
 	// PathKg is the planned path (the coach's knots or the default path),
 	// from camp start to the weigh-in day.
@@ -107,8 +108,9 @@ type Jump struct {
 // Load is the daily session load in AU.
 type Load struct {
 	// DailyAU is the sum of the day's sessions (rpe × minutes, Foster et
-	// al. 2001); 0 on a day without sessions from the athlete's first
-	// record on, null before it.
+	// al. 2001, or the stored load_au); 0 on a day without sessions from
+	// the athlete's first record on, null before it. Intervals records are
+	// not added: their RPE is the same session's sRPE, as in the engine.
 	DailyAU []*float64 `json:"daily_au"`
 	// AcuteAU and ChronicAU are the exponentially weighted averages (N =
 	// acute_n and chronic_n, both seeded with the first day's load;
