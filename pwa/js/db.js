@@ -10,7 +10,7 @@
 // committed to disk. Used by the pages and by the service worker.
 import { openDB } from '/vendor/idb/index.js';
 import { Clock } from './hlc.js';
-import { hubWins, rfc3339 } from './record.js';
+import { hubWins, localDay, rfc3339, setClockOffset } from './record.js';
 import { uuidv7 } from './uuid.js';
 
 export const DB_NAME = 'cornerbook';
@@ -100,6 +100,7 @@ export async function deviceId() {
 async function stampIn(meta) {
   const clock = new Clock(await meta.get('hlc'));
   const offset = (await meta.get('offset')) || 0;
+  setClockOffset(offset);
   const s = clock.now(Date.now() + offset);
   await meta.put(clock.last, 'hlc');
   return s;
@@ -127,13 +128,14 @@ async function write(id, change, op) {
   const meta = tx.objectStore('meta');
   const old = id ? await records.get(id) : undefined;
   const fields = change(old);
+  const stamp = await stampIn(meta); // also loads the current clock offset
   const rec = {
     ...(old || {}),
     ...fields,
     id: (old && old.id) || fields.id || uuidv7(),
     device: me,
     at: rfc3339(),
-    stamp: await stampIn(meta),
+    stamp,
   };
   if (!rec.athlete) delete rec.athlete;
   if (!rec.gen) delete rec.gen;
@@ -234,6 +236,7 @@ async function clockIn(meta, serverHLC, serverTime, sentAt, gotAt) {
     const sample = serverTime - (sentAt + gotAt) / 2;
     offset = Math.abs(sample - offset) > 5000 ? sample : offset * 0.7 + sample * 0.3;
     await meta.put(Math.round(offset), 'offset');
+    setClockOffset(offset);
   }
   if (serverHLC && typeof serverHLC.l === 'number') {
     const clock = new Clock(await meta.get('hlc'));
@@ -328,7 +331,19 @@ export async function restamp(serverTime, sentAt, gotAt) {
   const tx = db.transaction(['records', 'outbox', 'meta'], 'readwrite', STRICT);
   const meta = tx.objectStore('meta');
   const offset = Math.round(serverTime - (sentAt + gotAt) / 2);
+  const correction = offset - ((await meta.get('offset')) || 0);
   await meta.put(offset, 'offset');
+  setClockOffset(offset);
+  // The entry's time (and its day, when the day came from that time) was
+  // read off the wrong clock too: shift it by the correction.
+  const retime = (rec) => {
+    const t = Date.parse(rec.at);
+    if (!Number.isFinite(t)) return rec;
+    const fixed = new Date(t + correction);
+    const out = { ...rec, at: rfc3339(fixed) };
+    if (rec.day && rec.day === localDay(new Date(t))) out.day = localDay(fixed);
+    return out;
+  };
   const clock = new Clock();
   const pt = Date.now() + offset;
   clock.now(pt);
@@ -338,7 +353,7 @@ export async function restamp(serverTime, sentAt, gotAt) {
   while (cur) {
     const row = cur.value;
     const old = row.record.stamp;
-    row.record = { ...row.record, stamp: clock.now(pt) };
+    row.record = { ...retime(row.record), stamp: clock.now(pt) };
     await cur.update(row);
     const local = await records.get(row.record.id);
     if (local && local.stamp.l === old.l && local.stamp.c === old.c && local.device === row.record.device) {

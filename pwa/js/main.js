@@ -2,7 +2,8 @@
 import { html, render } from '/vendor/htm/standalone.module.js';
 import { useState, useEffect, useRoute, Link, navigate, plural } from './ui.js';
 import { onStatus, startSync } from './sync.js';
-import { deviceId } from './db.js';
+import { deviceId, getMeta } from './db.js';
+import { setClockOffset } from './record.js';
 import { Home, Checkin, Session, Incident, Clearance } from './screens.js';
 import { Jumps, Rounds, Intervals } from './ring.js';
 import { Today } from './today.js';
@@ -63,6 +64,14 @@ function ago(ms) {
   return `${Math.round(h / 24)} days ago`;
 }
 
+// clockWords: "2 h 5 min fast" for an offset of hub − phone = −2 h 5 min.
+function clockWords(offset) {
+  const m = Math.round(Math.abs(offset) / 60000);
+  const d = Math.floor(m / 1440), h = Math.floor((m % 1440) / 60), mm = m % 60;
+  const parts = [d && `${d} d`, h && `${h} h`, (mm || !(d || h)) && `${mm} min`].filter(Boolean);
+  return `${parts.join(' ')} ${offset < 0 ? 'fast' : 'slow'}`;
+}
+
 function StatusBar() {
   const [s, setS] = useState(null);
   const [u, setU] = useState({ waiting: null });
@@ -82,6 +91,7 @@ function StatusBar() {
     ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
     ${s.waiting === 0 && !s.lastSync && s.reachable === null && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
     ${s.reachable === true && s.error && html`<span class="pill warn" data-testid="status-error">Sync stopped: ${s.error}</span>`}
+    ${Math.abs(s.offset || 0) > 120000 && html`<span class="pill warn" data-testid="status-clock">This phone's clock is ${clockWords(s.offset)} — entries use the hub's time; please correct the phone's date and time</span>`}
     ${s.rejected > 0 && html`<button class="pill warn" type="button" data-testid="status-rejected" onClick=${() => navigate('/settings#rejected')}>${plural(s.rejected, 'entry', 'entries')} rejected — tap to see why</button>`}
   </div>`;
 }
@@ -105,7 +115,8 @@ function NotFound() {
   return html`<section><h1>Not here</h1><p><${Link} to="/">Back to the start</${Link}></p></section>`;
 }
 
-deviceId().then(() => {
+deviceId().then(() => getMeta('offset')).then((offset) => {
+  setClockOffset(offset || 0);
   const root = document.getElementById('app-root');
   root.textContent = '';
   render(html`<${App} />`, root);

@@ -43,14 +43,21 @@ export function hubWins(incoming, local) {
 
 const pad = (n, w = 2) => String(n).padStart(w, '0');
 
+// clockOffset is hub time minus this device's time (ms), learnt from the
+// hub's answers: a phone whose clock is wrong still files entries under
+// the right day and time.
+let clockOffset = 0;
+export function setClockOffset(ms) { clockOffset = Number.isFinite(ms) ? ms : 0; }
+export function correctedNow() { return new Date(Date.now() + clockOffset); }
+
 // localDay is the device's calendar day, from local date parts (never
 // toISOString, which is UTC).
-export function localDay(d = new Date()) {
+export function localDay(d = correctedNow()) {
   return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}`;
 }
 
 // rfc3339 formats a time in local time with its UTC offset.
-export function rfc3339(d = new Date()) {
+export function rfc3339(d = correctedNow()) {
   const off = -d.getTimezoneOffset();
   const sign = off >= 0 ? '+' : '-';
   const a = Math.abs(off);

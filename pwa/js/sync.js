@@ -164,6 +164,7 @@ export async function refreshCounts() {
   status.waiting = await outboxCount();
   status.rejected = (await rejectedList()).length;
   status.lastSync = (await getMeta('lastSync')) || 0;
+  status.offset = (await getMeta('offset')) || 0;
   publish();
 }
 
