@@ -58,7 +58,7 @@ func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 	}
 	var res PushResult
 	err := db.bolt.Update(func(tx *bolt.Tx) error {
-		res = PushResult{} // a retried closure starts clean
+		res = PushResult{Rejected: []devsync.Rejection{}} // [] rather than null in JSON
 		p := pusher{tx: tx, db: db, changed: map[string]int{}}
 		p.open()
 		dev, err := p.device(req.Device)
@@ -103,6 +103,8 @@ func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 // Allow decides whether the pushing device may write incoming over stored
 // (the current winner, tombstones included; nil for a new id). Both are
 // copies: changes to stored are ignored, changes to incoming are kept.
+// Allow and Options.Prepare run inside the push's write transaction: they
+// may read other state but must not write to this store.
 type Allow func(stored, incoming *devsync.Record) error
 
 // checkRequest refuses a request as a whole.
