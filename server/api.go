@@ -80,6 +80,9 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 		Applied: res.Applied, Superseded: res.Superseded, Duplicates: res.Duplicates,
 		ServerTime: s.now().UnixMilli(), ServerHLC: hlc, MaxSeq: res.MaxSeq, Epoch: epoch,
 	})
+	if s.cfg.Auth != nil && who.DeviceID != "" {
+		s.cfg.Auth.ReportSync(who.DeviceID, s.now(), req.Waiting)
+	}
 	if res.Applied > 0 {
 		s.flags.Changed(res.Changed)
 		s.hub.Poke(res.MaxSeq)

@@ -5,6 +5,8 @@ import (
 	"errors"
 	"log"
 	"net/http"
+	"strconv"
+	"time"
 
 	devsync "cornerbook/sync"
 )
@@ -19,6 +21,8 @@ type Error struct {
 	Reason string
 	// ServerTime is set for CLOCK_SKEW so the device can correct its offset.
 	ServerTime int64
+	// RetryAfter is set for THROTTLED.
+	RetryAfter time.Duration
 }
 
 func (e *Error) Error() string { return e.Code + ": " + e.Reason }
@@ -35,6 +39,8 @@ var statusOf = map[string]int{
 	CodeThrottled:          http.StatusTooManyRequests,
 	CodeUnavailable:        http.StatusServiceUnavailable,
 	CodeInternal:           http.StatusInternalServerError,
+	CodeGone:               http.StatusGone,
+	CodeConflict:           http.StatusConflict,
 }
 
 // Codes used only at the HTTP edge.
@@ -45,6 +51,8 @@ const (
 	CodeThrottled    = "THROTTLED"
 	CodeUnavailable  = "UNAVAILABLE"
 	CodeInternal     = "INTERNAL"
+	CodeGone         = "GONE"     // a used or expired join code
+	CodeConflict     = "CONFLICT" // e.g. the passphrase is already set
 )
 
 // Errorf builds a user-facing error.
@@ -82,6 +90,9 @@ func (s *Server) serve(h handlerFunc) http.HandlerFunc {
 				s.logf("internal error on %s %s: %v", r.Method, r.URL.Path, err)
 				ue = userError(CodeInternal, "", "the hub hit an internal error; nothing was changed")
 			}
+		}
+		if ue.RetryAfter > 0 {
+			w.Header().Set("Retry-After", strconv.Itoa(int(ue.RetryAfter.Seconds()+0.999)))
 		}
 		writeJSON(w, ue.Status, devsync.ErrorBody{Code: ue.Code, Field: ue.Field, Reason: ue.Reason, ServerTime: ue.ServerTime})
 	}

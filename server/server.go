@@ -18,6 +18,8 @@ import (
 	"github.com/gorilla/mux"
 
 	"cornerbook/pwa"
+	"cornerbook/server/auth"
+	"cornerbook/server/certs"
 	"cornerbook/server/records"
 	"cornerbook/storage"
 	devsync "cornerbook/sync"
@@ -39,6 +41,17 @@ type Config struct {
 	// Location is the camp's time zone for "the day" when a setting does
 	// not say otherwise; nil means the machine's local zone.
 	Location *time.Location
+	// Auth holds the passphrase, join codes and paired devices. Nil means
+	// an open hub where every caller is the coach: for tests of the sync
+	// path only; the command line always sets it.
+	Auth *auth.Store
+	// Certs is the camp authority and the LAN certificate; nil means the
+	// hub serves plain HTTP only (loopback tests).
+	Certs *certs.Bundle
+	// AppURL is the HTTPS address devices open (shown in QR codes).
+	AppURL string
+	// DataDir is where daily snapshots go; "" disables them.
+	DataDir string
 }
 
 // Server is one running hub.
@@ -111,11 +124,13 @@ func (s *Server) Handler() http.Handler {
 	api.HandleFunc("/status", s.serve(s.handleStatus)).Methods(http.MethodGet)
 	api.HandleFunc("/flags", s.serve(s.handleFlags)).Methods(http.MethodGet)
 	api.HandleFunc("/records/{id}/history", s.serve(s.handleHistory)).Methods(http.MethodGet)
+	s.routeAccounts(api)
+	s.routeAthletes(api)
 	api.PathPrefix("/").HandlerFunc(s.serve(func(w http.ResponseWriter, r *http.Request) error {
 		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
 	}))
 	r.PathPrefix("/").Handler(pwa.Handler())
-	return s.killSwitch(r)
+	return s.killSwitch(auth.SecurityHeaders(r))
 }
 
 // killSwitch drops connections while the hub is marked down, so tests see

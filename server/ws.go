@@ -9,6 +9,8 @@ import (
 	"time"
 
 	"github.com/gorilla/websocket"
+
+	"cornerbook/server/auth"
 )
 
 // Websocket timing, after the gorilla chat example's reasoning.
@@ -126,7 +128,7 @@ type wsMessage struct {
 
 // upgrader keeps gorilla's default origin check: a browser Origin must
 // match the Host (no cross-site websocket hijacking).
-var upgrader = websocket.Upgrader{ReadBufferSize: 1024, WriteBufferSize: 1024}
+var upgrader = websocket.Upgrader{ReadBufferSize: 1024, WriteBufferSize: 1024, Subprotocols: []string{auth.WSProtocol}}
 
 func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) error {
 	if _, err := s.authorize(r, accessRead); err != nil {

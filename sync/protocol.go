@@ -40,6 +40,9 @@ type PushRequest struct {
 	Device    string     `json:"device"`
 	Epoch     string     `json:"epoch,omitempty"`
 	Mutations []Mutation `json:"mutations"`
+	// Waiting is how many entries the device still holds unsynced beyond
+	// this push (shown on the coach's device list).
+	Waiting int `json:"waiting,omitempty"`
 }
 
 // Rejection says why one mutation was not applied. The batch's other

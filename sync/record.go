@@ -85,3 +85,13 @@ func (e *FieldError) Error() string {
 func Invalid(field, format string, args ...any) error {
 	return &FieldError{Field: field, Reason: fmt.Sprintf(format, args...)}
 }
+
+// RightsError is a refusal because of who is asking, not because of a bad
+// value: the device may not write this record. Storage reports it with
+// code FORBIDDEN and the field.
+type RightsError struct{ FieldError }
+
+// Forbidden builds a *RightsError.
+func Forbidden(field, format string, args ...any) error {
+	return &RightsError{FieldError{Field: field, Reason: fmt.Sprintf(format, args...)}}
+}

@@ -1,0 +1,157 @@
+package server
+
+import (
+	"encoding/json"
+	"fmt"
+	"net/http"
+	"time"
+
+	"github.com/gorilla/mux"
+
+	"cornerbook/server/plan"
+	"cornerbook/server/records"
+	"cornerbook/server/series"
+	devsync "cornerbook/sync"
+)
+
+func (s *Server) routeAthletes(api *mux.Router) {
+	api.HandleFunc("/athletes/{id}/series", s.serve(s.handleSeries)).Methods(http.MethodGet)
+	api.HandleFunc("/plan/default", s.serve(s.handleDefaultPlan)).Methods(http.MethodGet)
+	api.HandleFunc("/plan/check", s.serve(s.handleCheckPlan)).Methods(http.MethodPost)
+	api.HandleFunc("/tables", s.serve(s.handleTables)).Methods(http.MethodGet)
+}
+
+// handleSeries returns an athlete's chart data, computed by the same rules
+// as the flags (nothing is computed in the browser).
+func (s *Server) handleSeries(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	id := mux.Vars(r)["id"]
+	if who.Role == "athlete" && id != who.Athlete {
+		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's charts")
+	}
+	q := r.URL.Query()
+	to := q.Get("to")
+	if to == "" {
+		to = s.flags.Today()
+	}
+	from := q.Get("from")
+	if from == "" {
+		var err error
+		if from, err = addDays(to, -41); err != nil {
+			return err
+		}
+	}
+	if err := series.CheckRange(from, to); err != nil {
+		return fromField(err)
+	}
+	in, err := s.flags.input(id, to)
+	if err != nil {
+		return err
+	}
+	writeJSON(w, http.StatusOK, series.Build(in, from, to))
+	return nil
+}
+
+// handleDefaultPlan generates the step-loading plan for a camp.
+func (s *Server) handleDefaultPlan(w http.ResponseWriter, r *http.Request) error {
+	if _, err := s.authorize(r, accessRead); err != nil {
+		return err
+	}
+	q := r.URL.Query()
+	weeks, err := plan.DefaultWeeksFor(q.Get("camp_start"), q.Get("bout_day"), s.flags.settingsFor(q.Get("athlete")))
+	if err != nil {
+		if e := fromField(err); e != nil {
+			e.Field = trimBody(e.Field)
+			return e
+		}
+		return err
+	}
+	writeJSON(w, http.StatusOK, map[string]any{"weeks": weeks})
+	return nil
+}
+
+func trimBody(f string) string {
+	if len(f) > 5 && f[:5] == "body." {
+		return f[5:]
+	}
+	return f
+}
+
+// PlanCheck is the answer to a plan check: the issues in plain words, the
+// taper cut, and the planned path the flags will use.
+type PlanCheck struct {
+	Issues   []plan.Issue `json:"issues"`
+	TaperCut *float64     `json:"taper_cut_pct"`
+	Path     any          `json:"path"`
+	Valid    string       `json:"invalid,omitempty"` // the first validation error, if the bout would be refused
+	Field    string       `json:"field,omitempty"`
+}
+
+// handleCheckPlan explains a bout's plan before it is saved: the record
+// rules first, then the plan's own checks.
+func (s *Server) handleCheckPlan(w http.ResponseWriter, r *http.Request) error {
+	if _, err := s.authorize(r, accessRead); err != nil {
+		return err
+	}
+	var req struct {
+		Athlete string          `json:"athlete"`
+		Bout    json.RawMessage `json:"bout"`
+	}
+	if err := decodeStrict(w, r, 64<<10, &req); err != nil {
+		return err
+	}
+	var out PlanCheck
+	probe := devsync.Record{ID: "01000000-0000-7000-8000-000000000000", Kind: records.KindBout, Athlete: req.Athlete,
+		Day: s.flags.Today(), At: s.now().Format(time.RFC3339), Device: "plan-check", Body: req.Bout}
+	if probe.Athlete == "" {
+		probe.Athlete = "01000000-0000-7000-8000-000000000001"
+	}
+	if err := records.PrepareAt(s.now())(&probe); err != nil {
+		if e := fromField(err); e != nil {
+			out.Valid, out.Field = e.Reason, e.Field
+		} else {
+			return err
+		}
+	}
+	var b records.Bout
+	if err := json.Unmarshal(probe.Body, &b); err != nil {
+		return userError(devsync.CodeBadRequest, "bout", fmt.Sprintf("is not a bout: %v", err))
+	}
+	th := s.flags.settingsFor(req.Athlete)
+	if out.Valid == "" {
+		out.Issues = plan.Check(b, th)
+		if pct, ok := plan.TaperCut(b.Weeks, th); ok {
+			out.TaperCut = &pct
+		}
+		out.Path = plan.PathFor(b, th)
+	}
+	if out.Issues == nil {
+		out.Issues = []plan.Issue{}
+	}
+	writeJSON(w, http.StatusOK, out)
+	return nil
+}
+
+// handleTables serves the fixed tables screens pick from: weight classes,
+// the CR-10 anchors, interval templates, thresholds with their limits.
+func (s *Server) handleTables(w http.ResponseWriter, r *http.Request) error {
+	if _, err := s.authorize(r, accessRead); err != nil {
+		return err
+	}
+	type class struct {
+		records.Class
+		LimitKg float64 `json:"limit_kg"`
+	}
+	cls := make([]class, len(records.Classes))
+	for i, c := range records.Classes {
+		cls[i] = class{c, c.LimitKg()}
+	}
+	writeJSON(w, http.StatusOK, map[string]any{
+		"classes": cls, "cr10": records.CR10, "protocols": records.Protocols, "rules": records.Rules,
+		"levels": records.Levels,
+	})
+	return nil
+}
