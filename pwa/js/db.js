@@ -401,3 +401,38 @@ export async function rejectRows(rows, err) {
   await tx.done;
   notify({ type: 'changed', rejected: rows.length });
 }
+
+// adoptPairing stores what the hub issued at join: the token, and the
+// device id the hub now knows this device by. Entries made before joining
+// (still in the outbox, never accepted by a paired hub) are re-labelled
+// with the new id in the same transaction, so nothing made offline is lost.
+export async function adoptPairing(token, device) {
+  const db = await openStore();
+  const tx = db.transaction(['records', 'outbox', 'meta'], 'readwrite', STRICT);
+  const meta = tx.objectStore('meta');
+  const old = await meta.get('deviceId');
+  const id = device && device.id ? device.id : old;
+  if (old && id !== old) {
+    const records = tx.objectStore('records');
+    let cur = await tx.objectStore('outbox').openCursor();
+    while (cur) {
+      const row = cur.value;
+      if (row.record.device === old) {
+        row.record = { ...row.record, device: id };
+        await cur.update(row);
+        const local = await records.get(row.record.id);
+        if (local && local.device === old) await records.put({ ...local, device: id });
+      }
+      cur = await cur.continue();
+    }
+  }
+  await meta.put(id, 'deviceId');
+  await meta.put(token, 'token');
+  if (device) {
+    if (device.name) await meta.put(device.name, 'deviceName');
+    await meta.put(device.role || '', 'role');
+    await meta.put(device.athlete || '', 'athlete');
+  }
+  await tx.done;
+  notify({ type: 'changed', paired: true });
+}

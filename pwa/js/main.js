@@ -8,10 +8,11 @@ import { Home, Checkin, Session, Incident, Clearance } from './screens.js';
 import { Jumps, Rounds, Intervals } from './ring.js';
 import { Today } from './today.js';
 import { Settings } from './settings.js';
+import { Join } from './join.js';
 
 const ROUTES = {
   '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds, '/intervals': Intervals,
-  '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings,
+  '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings, '/join': Join,
 };
 
 // ---- service worker: register, detect a waiting update, reload once ----

@@ -50,7 +50,11 @@ export function Settings({ build }) {
       <p>Address: <strong data-testid="settings-hub">${location.origin}</strong></p>
       <p class="muted small">This app belongs to the hub at this address. Always open it the same way (same address and port), or this device's entries stay behind under the old address.</p>
       <p class="muted small">Epoch <span class="num">${meta.epoch || 'not synced yet'}</span>, pulled through <span class="num">${meta.cursor || 0}</span>, clock offset <span class="num">${Math.round((meta.offset || 0) / 1000)} s</span>.</p>
-      <button class="secondary" type="button" data-testid="settings-sync" onClick=${() => requestSync('manual')}>Sync now</button>
+      <p data-testid="settings-pairing">${meta.token ? html`Paired${meta.role ? ` as ${meta.role}` : ''}.` : 'Not paired: the hub accepts entries from this device only if it runs open (the coach\'s laptop) or after joining.'}</p>
+      <div class="row">
+        <button class="secondary" type="button" data-testid="settings-sync" onClick=${() => requestSync('manual')}>Sync now</button>
+        <button class="secondary" type="button" data-testid="settings-join" onClick=${() => navigate('/join')}>Join the camp with a code</button>
+      </div>
     </div>
     <div class="card" data-testid="settings-install">
       <h2>Install</h2>

@@ -4,7 +4,7 @@
 // push and pull. This module is also imported by the service worker, so it
 // touches no window or document at load time.
 import {
-  ack, applyPage, deviceId, getMeta, notify, outboxBatch, outboxCount, rejectRows,
+  ack, adoptPairing, applyPage, deviceId, getMeta, notify, outboxBatch, outboxCount, rejectRows,
   rejectedList, resetForEpoch, restamp, setMeta,
 } from './db.js';
 
@@ -59,10 +59,12 @@ async function pushAll() {
   for (;;) {
     const rows = await outboxBatch(PUSH_BATCH);
     if (!rows.length) return pushed;
+    const waiting = Math.max(0, (await outboxCount()) - rows.length);
     const body = {
       device: await deviceId(),
       epoch: (await getMeta('epoch')) || undefined,
       mutations: rows.map((r) => ({ n: r.n, op: r.op, record: r.record })),
+      waiting: waiting || undefined, // shown on the coach's device list
     };
     const sentAt = Date.now();
     let res;
@@ -115,6 +117,14 @@ async function pullAll() {
     cursor = page.next;
     if (!page.more) return;
   }
+}
+
+// join redeems a join code from the coach's screen: the hub answers with
+// this device's token and id, which are stored before anything else syncs.
+export async function join(code, name) {
+  const res = await api('POST', '/api/join', { code: code.trim(), name: name.trim() });
+  await withLock(() => adoptPairing(res.token, res.device));
+  return res;
 }
 
 // pushOnce pushes the whole outbox (the service worker's Background Sync).
@@ -199,7 +209,9 @@ export async function requestSync(reason) {
   } catch (e) {
     failures++;
     status.reachable = !(e instanceof TypeError || e.name === 'AbortError' || (e instanceof HubError && (e.status >= 500 || e.status === 404)));
-    status.error = e.message || String(e);
+    status.error = e instanceof HubError && e.status === 401
+      ? 'this device is not paired with the hub (or its pass was revoked): open Settings → Join'
+      : (e.message || String(e));
     const base = Math.min(60000, 2000 * 2 ** Math.min(failures - 1, 5));
     schedule(base / 2 + Math.random() * base / 2);
   } finally {
