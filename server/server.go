@@ -6,6 +6,7 @@ package server
 
 import (
 	"context"
+	"crypto/tls"
 	"errors"
 	"fmt"
 	"log"
@@ -56,12 +57,14 @@ type Config struct {
 
 // Server is one running hub.
 type Server struct {
-	cfg   Config
-	store *storage.DB
-	hub   *pokeHub
-	http  *http.Server
-	ln    net.Listener
-	flags *flagService
+	cfg    Config
+	store  *storage.DB
+	hub    *pokeHub
+	http   *http.Server
+	ln     net.Listener
+	boot   *http.Server // plain-HTTP bootstrap port, when serving HTTPS
+	bootLn net.Listener
+	flags  *flagService
 
 	clockMu sync.Mutex // guards clock
 	clock   devsync.Clock
@@ -171,21 +174,51 @@ func (s *Server) Open(addr string) error {
 	return s.Serve(ln)
 }
 
-// Serve serves on an existing listener in a goroutine.
+// Serve serves the app on an existing listener in a goroutine. With
+// Config.Certs set, the listener is wrapped in TLS with the camp's LAN
+// certificate.
 func (s *Server) Serve(ln net.Listener) error {
+	if s.cfg.Certs != nil {
+		ln = tls.NewListener(ln, s.cfg.Certs.TLSConfig())
+	}
 	s.ln = ln
-	s.http = &http.Server{
-		Handler:           s.Handler(),
+	s.http = s.httpServer(s.Handler())
+	go s.run(s.http, ln)
+	return nil
+}
+
+// ServeBootstrap serves the plain-HTTP port (BootstrapHandler) on ln.
+func (s *Server) ServeBootstrap(ln net.Listener) error {
+	if s.cfg.Certs == nil {
+		return errors.New("server: the bootstrap port needs Config.Certs")
+	}
+	s.bootLn = ln
+	s.boot = s.httpServer(s.BootstrapHandler(s.Handler()))
+	go s.run(s.boot, ln)
+	return nil
+}
+
+func (s *Server) httpServer(h http.Handler) *http.Server {
+	return &http.Server{
+		Handler:           h,
 		ReadHeaderTimeout: 10 * time.Second,
 		IdleTimeout:       120 * time.Second,
 		ErrorLog:          s.cfg.Log,
 	}
-	go func() {
-		if err := s.http.Serve(ln); err != nil && !errors.Is(err, http.ErrServerClosed) {
-			s.logf("serve: %v", err)
-		}
-	}()
-	return nil
+}
+
+func (s *Server) run(hs *http.Server, ln net.Listener) {
+	if err := hs.Serve(ln); err != nil && !errors.Is(err, http.ErrServerClosed) {
+		s.logf("serve: %v", err)
+	}
+}
+
+// BootstrapAddr is the plain-HTTP listening address ("" if none).
+func (s *Server) BootstrapAddr() string {
+	if s.bootLn == nil {
+		return ""
+	}
+	return s.bootLn.Addr().String()
 }
 
 // Addr is the listening address.
@@ -197,18 +230,26 @@ func (s *Server) Addr() string {
 }
 
 // URL is the base URL of the listening hub.
-func (s *Server) URL() string { return "http://" + s.Addr() }
+func (s *Server) URL() string {
+	if s.cfg.Certs != nil {
+		return "https://" + s.Addr()
+	}
+	return "http://" + s.Addr()
+}
 
 // Close stops accepting, drops websockets and waits for handlers up to
 // DefaultShutdownTimeout. It does not close the store.
 func (s *Server) Close() error {
 	s.hub.CloseAll(true)
-	if s.http == nil {
-		return nil
-	}
 	ctx, cancel := context.WithTimeout(context.Background(), DefaultShutdownTimeout)
 	defer cancel()
-	return s.http.Shutdown(ctx)
+	var errs []error
+	for _, hs := range []*http.Server{s.http, s.boot} {
+		if hs != nil {
+			errs = append(errs, hs.Shutdown(ctx))
+		}
+	}
+	return errors.Join(errs...)
 }
 
 // stampNow issues a hub timestamp.

@@ -3,8 +3,11 @@ package main
 import (
 	"bytes"
 	"context"
+	"crypto/tls"
+	"crypto/x509"
 	"encoding/json"
 	"io"
+	"log"
 	"net/http"
 	"os"
 	"path/filepath"
@@ -29,9 +32,11 @@ func mustRunMain(t *testing.T, demo bool) *Main {
 	t.Helper()
 	m := NewMain()
 	m.Config.Addr = "127.0.0.1:0"
+	m.Config.HTTPAddr = "127.0.0.1:0"
 	m.Config.DataDir = t.TempDir()
 	m.Config.Demo = demo
 	m.Stdout = io.Discard
+	m.Log = log.New(io.Discard, "", 0)
 	require.NoError(t, m.Run(context.Background()))
 	t.Cleanup(func() { m.Close() })
 	return m
@@ -41,7 +46,8 @@ func mustRunMain(t *testing.T, demo bool) *Main {
 // invented camp's athletes.
 func TestMain_DemoServesAppAndCamp(t *testing.T) {
 	m := mustRunMain(t, true)
-	base := m.Server.URL()
+	// The coach's own screen: plain HTTP on loopback serves the whole app.
+	base := "http://" + m.Server.BootstrapAddr()
 	resp, err := http.Get(base + "/")
 	require.NoError(t, err)
 	body, _ := io.ReadAll(resp.Body)
@@ -135,4 +141,56 @@ func TestCommands_Usage(t *testing.T) {
 	code, _, stderr = runCmd(t, "", "export", "--data", t.TempDir(), "--kind", "lunch")
 	assert.Equal(t, 1, code)
 	assert.Contains(t, stderr, "not a record kind")
+}
+
+// TestMain_HTTPSAndJoinPage: the app is served over HTTPS with a leaf the
+// camp authority signs; a phone on the plain-HTTP port gets the join page
+// with the authority's certificate and fingerprint; an unpaired phone is
+// refused by the API.
+func TestMain_HTTPSAndJoinPage(t *testing.T) {
+	m := mustRunMain(t, false)
+	pool := x509.NewCertPool()
+	pool.AddCert(m.Certs.CA())
+	client := &http.Client{Transport: &http.Transport{TLSClientConfig: &tls.Config{RootCAs: pool}}}
+	resp, err := client.Get(m.Server.URL() + "/manifest.webmanifest")
+	require.NoError(t, err, "the leaf verifies against the camp authority")
+	resp.Body.Close()
+	assert.Equal(t, 200, resp.StatusCode)
+
+	// A phone reaches the hub by its LAN name: without a device token it is refused.
+	phone := &http.Client{Transport: &http.Transport{TLSClientConfig: &tls.Config{RootCAs: pool, ServerName: "camp.local"}}}
+	req, _ := http.NewRequest("GET", m.Server.URL()+"/api/pull?since=0", nil)
+	req.Host = "camp.local"
+	resp, err = phone.Do(req)
+	require.NoError(t, err, "the leaf covers camp.local")
+	resp.Body.Close()
+	assert.Equal(t, 401, resp.StatusCode, "a phone without a device token is refused")
+
+	// A phone (not loopback by Host) on the plain port: the join page.
+	req, _ = http.NewRequest("GET", "http://"+m.Server.BootstrapAddr()+"/", nil)
+	req.Host = "192.0.2.10:8080"
+	resp, err = http.DefaultClient.Do(req)
+	require.NoError(t, err)
+	page, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	assert.Contains(t, string(page), m.Certs.Fingerprint())
+	assert.Contains(t, string(page), "/ca.crt")
+
+	req, _ = http.NewRequest("GET", "http://"+m.Server.BootstrapAddr()+"/ca.crt", nil)
+	req.Host = "192.0.2.10:8080"
+	resp, err = http.DefaultClient.Do(req)
+	require.NoError(t, err)
+	der, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	assert.Equal(t, "application/x-x509-ca-cert", resp.Header.Get("Content-Type"))
+	assert.Equal(t, m.Certs.CADER(), der)
+
+	// Anything else on the plain port goes to HTTPS.
+	req, _ = http.NewRequest("GET", "http://"+m.Server.BootstrapAddr()+"/checkin", nil)
+	req.Host = "192.0.2.10:8080"
+	resp, err = (&http.Client{CheckRedirect: func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse }}).Do(req)
+	require.NoError(t, err)
+	resp.Body.Close()
+	assert.Equal(t, http.StatusTemporaryRedirect, resp.StatusCode)
+	assert.True(t, strings.HasPrefix(resp.Header.Get("Location"), "https://192.0.2.10:"), resp.Header.Get("Location"))
 }

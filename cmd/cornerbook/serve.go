@@ -14,25 +14,33 @@ import (
 	"time"
 
 	"cornerbook/server"
+	"cornerbook/server/auth"
+	"cornerbook/server/certs"
 	"cornerbook/server/demo"
 	"cornerbook/storage"
 )
 
 // Defaults, in one place.
 const (
-	DefaultDataDir = "./cornerbook-data"
-	DemoDataDir    = "./cornerbook-demo"
-	DefaultAddr    = ":8080"
-	dbFile         = "cornerbook.db"
+	DefaultDataDir  = "./cornerbook-data"
+	DemoDataDir     = "./cornerbook-demo"
+	DefaultAddr     = ":8443" // HTTPS: the app on the camp Wi-Fi
+	DefaultHTTPAddr = ":8080" // plain HTTP: the join page for phones, the coach's screen on this laptop
+	dbFile          = "cornerbook.db"
+	tlsDir          = "tls"
+	snapshotDir     = "snapshots"
+	// SnapshotsKept is how many daily snapshots stay in the data folder.
+	SnapshotsKept = 14
 )
 
 var errUsage = errors.New("usage")
 
 // Config is the hub's configuration from the command line.
 type Config struct {
-	DataDir string // folder holding the database, certificates and snapshots
-	Addr    string // listen address of the app
-	Demo    bool   // serve the invented demo camp from DemoDataDir
+	DataDir  string // folder holding the database, certificates and snapshots
+	Addr     string // HTTPS listen address of the app
+	HTTPAddr string // plain-HTTP listen address: join page, and the app for this laptop's own browser
+	Demo     bool   // serve the invented demo camp from DemoDataDir
 }
 
 // Main is a running hub: tests start it on ":0" with a temp folder.
@@ -44,11 +52,14 @@ type Main struct {
 
 	Store  *storage.DB
 	Server *server.Server
+	Auth   *auth.Store
+	Certs  *certs.Bundle
+	stop   context.CancelFunc
 }
 
 // NewMain returns a Main with the defaults.
 func NewMain() *Main {
-	return &Main{Config: Config{DataDir: DefaultDataDir, Addr: DefaultAddr}, Stdout: os.Stdout}
+	return &Main{Config: Config{DataDir: DefaultDataDir, Addr: DefaultAddr, HTTPAddr: DefaultHTTPAddr}, Stdout: os.Stdout}
 }
 
 // ParseFlags reads the serve command line.
@@ -56,7 +67,8 @@ func (m *Main) ParseFlags(args []string, stderr io.Writer) error {
 	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	data := fs.String("data", "", "data folder (default "+DefaultDataDir+"; "+DemoDataDir+" with --demo)")
-	fs.StringVar(&m.Config.Addr, "addr", m.Config.Addr, "listen address")
+	fs.StringVar(&m.Config.Addr, "addr", m.Config.Addr, "HTTPS listen address of the app on the camp Wi-Fi")
+	fs.StringVar(&m.Config.HTTPAddr, "http-addr", m.Config.HTTPAddr, "plain-HTTP address: the join page for phones and the coach's screen on this laptop")
 	fs.BoolVar(&m.Config.Demo, "demo", false, "serve the invented demo camp from its own folder, creating it on first use")
 	if err := parseInterleaved(fs, args); err != nil {
 		return errUsage
@@ -97,33 +109,97 @@ func (m *Main) Run(ctx context.Context) error {
 			m.Log.Printf("demo camp created: %d records in %s", n, m.Config.DataDir)
 		}
 	}
-	srv, err := server.New(server.Config{Store: db, Now: m.Now, Log: m.Log})
+	accounts, err := auth.Open(db.Bolt(), auth.Options{Now: m.Now})
+	if err != nil {
+		return fmt.Errorf("open the device list: %w", err)
+	}
+	m.Auth = accounts
+	bundle, err := certs.Ensure(filepath.Join(m.Config.DataDir, tlsDir), certs.CurrentNames(), m.Now())
+	if err != nil {
+		return fmt.Errorf("camp certificate: %w", err)
+	}
+	m.Certs = bundle
+	httpsLn, err := net.Listen("tcp", m.Config.Addr)
+	if err != nil {
+		return fmt.Errorf("listen on %s: %w", m.Config.Addr, err)
+	}
+	httpLn, err := net.Listen("tcp", m.Config.HTTPAddr)
+	if err != nil {
+		httpsLn.Close()
+		return fmt.Errorf("listen on %s: %w", m.Config.HTTPAddr, err)
+	}
+	_, httpsPort, _ := net.SplitHostPort(httpsLn.Addr().String())
+	appURL := "https://" + net.JoinHostPort(primaryHost(), httpsPort) + "/"
+	srv, err := server.New(server.Config{Store: db, Now: m.Now, Log: m.Log, Auth: accounts, Certs: bundle,
+		AppURL: appURL, DataDir: m.Config.DataDir})
 	if err != nil {
 		return err
 	}
 	m.Server = srv
-	if err := srv.Open(m.Config.Addr); err != nil {
-		return err
-	}
-	m.printAddresses()
+	srv.Serve(httpsLn)
+	srv.ServeBootstrap(httpLn)
+	ctx, m.stop = context.WithCancel(ctx)
+	go bundle.Keep(ctx, 5*time.Minute, certs.CurrentNames, m.Now, func(reason string, err error) {
+		if err != nil {
+			m.Log.Printf("camp certificate: could not renew (%s): %v", reason, err)
+		} else {
+			m.Log.Printf("camp certificate renewed: %s", reason)
+		}
+	})
+	go m.snapshots(ctx)
+	m.printAddresses(appURL)
 	return nil
 }
 
-func (m *Main) printAddresses() {
-	_, port, _ := net.SplitHostPort(m.Server.Addr())
-	fmt.Fprintf(m.Stdout, "Cornerbook hub is running.\n  On this laptop:  http://localhost:%s/\n", port)
-	addrs, _ := net.InterfaceAddrs()
-	for _, a := range addrs {
-		if ipn, ok := a.(*net.IPNet); ok && ipn.IP.To4() != nil && !ipn.IP.IsLoopback() {
-			fmt.Fprintf(m.Stdout, "  On the camp Wi-Fi: http://%s:%s/\n", ipn.IP, port)
+// snapshots writes one daily snapshot into the data folder, now and then
+// every hour when the day changes, keeping SnapshotsKept.
+func (m *Main) snapshots(ctx context.Context) {
+	dir := filepath.Join(m.Config.DataDir, snapshotDir)
+	for {
+		if path, err := storage.Snapshot(m.Store, dir, m.Now().Format("2006-01-02"), SnapshotsKept); err != nil {
+			m.Log.Printf("daily snapshot: %v", err)
+		} else if path != "" {
+			m.Log.Printf("daily snapshot written: %s", path)
+		}
+		select {
+		case <-ctx.Done():
+			return
+		case <-time.After(time.Hour):
 		}
 	}
-	fmt.Fprintf(m.Stdout, "  Data folder: %s\nPress Ctrl+C to stop.\n", m.Config.DataDir)
+}
+
+// primaryHost is the address phones use: the first LAN IPv4 address, else localhost.
+func primaryHost() string {
+	names := certs.CurrentNames()
+	for _, ip := range names.IPs {
+		if ip.To4() != nil && !ip.IsLoopback() {
+			return ip.String()
+		}
+	}
+	return "localhost"
+}
+
+func (m *Main) printAddresses(appURL string) {
+	_, httpPort, _ := net.SplitHostPort(m.Server.BootstrapAddr())
+	w := m.Stdout
+	fmt.Fprintf(w, "Cornerbook hub is running (data folder %s).\n\n", m.Config.DataDir)
+	fmt.Fprintf(w, "  Coach, on this laptop:   http://localhost:%s/\n", httpPort)
+	fmt.Fprintf(w, "  Phones and tablets:      http://%s:%s/  (join page: trust the camp certificate once)\n", primaryHost(), httpPort)
+	fmt.Fprintf(w, "  The app on the camp Wi-Fi: %s\n\n", appURL)
+	fmt.Fprintf(w, "  Camp certificate fingerprint (SHA-256):\n    %s\n", m.Certs.Fingerprint())
+	if !m.Auth.HasPassphrase() {
+		fmt.Fprintf(w, "\n  No coach passphrase yet: set it on this laptop's screen, or elsewhere with the setup code %s\n", m.Auth.SetupCode())
+	}
+	fmt.Fprintf(w, "\nScan to open the join page:\n%s\nPress Ctrl+C to stop.\n", auth.QRTerminal(fmt.Sprintf("http://%s:%s/", primaryHost(), httpPort)))
 }
 
 // Close shuts the hub down and closes the store.
 func (m *Main) Close() error {
 	var errs []error
+	if m.stop != nil {
+		m.stop()
+	}
 	if m.Server != nil {
 		errs = append(errs, m.Server.Close())
 	}
