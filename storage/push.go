@@ -39,8 +39,9 @@ type PushResult struct {
 //  4. allow(stored, incoming) (nil = allow all), with the current winner
 //     (nil for a new record) so a rights check sees whose record it
 //     would overwrite: an error rejects the mutation with code FORBIDDEN
-//     (its field from a wrapped *devsync.FieldError, if any), or
-//     VALIDATION when the error is itself a *devsync.FieldError;
+//     (with the field of a *devsync.RightsError or of a wrapped
+//     *devsync.FieldError), or VALIDATION when the error is itself a
+//     *devsync.FieldError;
 //  5. Options.Prepare for non-deleted records (validation, derived fields);
 //  6. last-writer-wins against the stored winner (devsync.Compare, sticky
 //     deletes): a winner is written with its history, index and a new
@@ -181,10 +182,17 @@ func (p *pusher) putDevice(id string, st DeviceState) error {
 	return p.devices.Put([]byte(id), v)
 }
 
+// reject turns an error into a rejection with code, the field and reason
+// of a (wrapped) *devsync.FieldError if there is one. A
+// *devsync.RightsError is always FORBIDDEN, whichever hook returned it.
 func reject(m *devsync.Mutation, code string, err error) devsync.Rejection {
 	r := devsync.Rejection{N: m.N, ID: m.Record.ID, Code: code, Reason: err.Error()}
+	var re *devsync.RightsError
 	var fe *devsync.FieldError
-	if errors.As(err, &fe) {
+	switch {
+	case errors.As(err, &re):
+		r.Code, r.Field, r.Reason = devsync.CodeForbidden, re.Field, re.Reason
+	case errors.As(err, &fe):
 		r.Field, r.Reason = fe.Field, fe.Reason
 	}
 	return r

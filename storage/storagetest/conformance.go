@@ -504,8 +504,16 @@ func testAllow(t *testing.T, db *storage.DB) {
 	if err := db.Check(); err != nil {
 		t.Fatalf("after an allow that changed its copy of the stored record: %v", err)
 	}
+	// devsync.Forbidden (a *RightsError) is FORBIDDEN with its field.
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(7, NewGen(17, "dev-a").Checkin(a, Day(5)))},
+		func(_, _ *devsync.Record) error {
+			return devsync.Forbidden("record.kind", "an athlete's phone may not log rounds")
+		})
+	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeForbidden || res.Rejected[0].Field != "record.kind" || res.Rejected[0].Reason != "an athlete's phone may not log rounds" {
+		t.Fatalf("rights error from allow: %+v", res.Rejected)
+	}
 	// A *FieldError from allow is a validation rejection with its field.
-	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(6, NewGen(15, "dev-a").Checkin(a, Day(4)))},
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(8, NewGen(15, "dev-a").Checkin(a, Day(4)))},
 		func(stored, _ *devsync.Record) error {
 			if stored != nil {
 				t.Error("allow saw a stored version of a new record")
