@@ -52,6 +52,10 @@ type Options struct {
 	Log io.Writer
 	// BrowserOutput receives Chromium's own stdout and stderr.
 	BrowserOutput io.Writer
+	// Flags are extra command-line switches, e.g.
+	// {"host-resolver-rules": "MAP camp.test 127.0.0.1"} to reach the hub
+	// on loopback under a LAN-like name.
+	Flags map[string]any
 }
 
 // Browser is one running Chromium.
@@ -89,6 +93,9 @@ func Start(t testing.TB, opt Options) *Browser {
 		chromedp.NoFirstRun,
 		chromedp.WindowSize(412, 915), // a phone-sized window
 	)
+	for k, v := range opt.Flags {
+		flags = append(flags, chromedp.Flag(k, v))
+	}
 	if opt.BrowserOutput != nil {
 		flags = append(flags, chromedp.CombinedOutput(opt.BrowserOutput))
 	}
