@@ -56,6 +56,7 @@ func crashWriter(path string) {
 			var mine []devsync.Record
 			for day := 0; ; day++ {
 				batch := make([]devsync.Record, 0, 8)
+				var fresh []string // ids this batch creates
 				for range 1 + day%8 {
 					if len(mine) > 0 && day%3 == 0 {
 						// Edits of this run's records exercise the index and feed.
@@ -66,8 +67,13 @@ func crashWriter(path string) {
 					r := g.Checkin(athlete, storagetest.Day(day%300))
 					mine = append(mine, r)
 					batch = append(batch, r)
+					fresh = append(fresh, r.ID)
 				}
 				muts := storagetest.Mutations(n, batch...)
+				out.Lock()
+				fmt.Fprintf(w, "try %s %d %d %s\n", dev, muts[0].N, muts[len(muts)-1].N, strings.Join(append([]string{"-"}, fresh...), ","))
+				w.Flush()
+				out.Unlock()
 				res, err := db.Push(devsync.PushRequest{Device: dev, Mutations: muts}, nil)
 				out.Lock()
 				if err != nil {
@@ -111,24 +117,27 @@ func TestCrashKeepsAcknowledgedPushes(t *testing.T) {
 	rnd := rand.New(rand.NewPCG(7, 7))
 	acked := map[string]ack{} // record id → its latest acknowledgement
 	lastN := map[string]uint64{}
+	inFlight := 0
 	deadline := time.Now().Add(40 * time.Second) // only a badly overloaded machine hits this
 	for run := 0; run < kills && time.Now().Before(deadline); run++ {
-		runAcks := killWriterOnce(t, exe, path, run, rnd, func(device string, n uint64, id string) {
+		runAcks, open := killWriterOnce(t, exe, path, run, rnd, func(device string, n uint64, id string) {
 			acked[id] = ack{device: device, n: n}
 			lastN[device] = max(lastN[device], n)
 		})
-		stored := verifyAfterCrash(t, path, run, acked, lastN)
-		t.Logf("kill %d: %d acknowledged this run, %d records acknowledged in all, %d stored", run, runAcks, len(acked), stored)
+		stored := verifyAfterCrash(t, path, run, acked, lastN, open)
+		t.Logf("kill %d: %d acknowledged this run, %d records acknowledged in all, %d stored; %d pushes in flight at the kill", run, runAcks, len(acked), stored, len(open))
+		inFlight += len(open)
 	}
-	if len(acked) == 0 {
-		t.Fatal("the writer never acknowledged a push")
+	if len(acked) == 0 || inFlight == 0 {
+		t.Fatalf("the writers acknowledged %d records and were killed with %d pushes in flight: the test saw too little", len(acked), inFlight)
 	}
 }
 
 // killWriterOnce starts the writer, kills it after a random delay or right
 // after a random number of acknowledgements (while other writers are
-// mid-transaction), and reports every acknowledgement it printed.
-func killWriterOnce(t *testing.T, exe, path string, run int, rnd *rand.Rand, onAck func(device string, n uint64, id string)) int {
+// mid-transaction), and reports every acknowledgement it printed and the
+// pushes it started but never acknowledged.
+func killWriterOnce(t *testing.T, exe, path string, run int, rnd *rand.Rand, onAck func(device string, n uint64, id string)) (int, []try) {
 	t.Helper()
 	cmd := exec.Command(exe, "-test.run=^$")
 	cmd.Env = append(os.Environ(), crashWriterEnv+"="+path, fmt.Sprintf("CORNERBOOK_CRASH_RUN=%d", run+1))
@@ -155,14 +164,23 @@ func killWriterOnce(t *testing.T, exe, path string, run int, rnd *rand.Rand, onA
 		t.Fatalf("writer run %d: %q", run, l)
 	}
 	acks := 0
+	var tries []try
+	acked := map[string]bool{} // "device n"
 	record := func(l string) {
 		f := strings.Fields(l)
+		if len(f) == 5 && f[0] == "try" {
+			first, _ := strconv.ParseUint(f[2], 10, 64)
+			last, _ := strconv.ParseUint(f[3], 10, 64)
+			tries = append(tries, try{device: f[1], first: first, last: last, ids: strings.Split(f[4], ",")[1:]})
+			return
+		}
 		if len(f) != 5 || f[0] != "ack" {
 			cmd.Process.Kill()
 			t.Fatalf("writer run %d said %q", run, l)
 		}
 		n, _ := strconv.ParseUint(f[2], 10, 64)
 		onAck(f[1], n, f[3])
+		acked[f[1]+" "+f[2]] = true
 		acks++
 	}
 	if run < 3 {
@@ -191,11 +209,24 @@ func killWriterOnce(t *testing.T, exe, path string, run int, rnd *rand.Rand, onA
 	for l := range lines {
 		record(l)
 	}
-	return acks
+	var open []try
+	for _, tr := range tries {
+		if !acked[fmt.Sprintf("%s %d", tr.device, tr.first)] {
+			open = append(open, tr)
+		}
+	}
+	return acks, open
+}
+
+// try is a push the writer started: counters first..last, creating ids.
+type try struct {
+	device      string
+	first, last uint64
+	ids         []string
 }
 
 // verifyAfterCrash reopens the killed writer's file and checks it.
-func verifyAfterCrash(t *testing.T, path string, run int, acked map[string]ack, lastN map[string]uint64) int {
+func verifyAfterCrash(t *testing.T, path string, run int, acked map[string]ack, lastN map[string]uint64, open []try) int {
 	t.Helper()
 	db, err := storage.Open(path, storage.Options{Timeout: 5 * time.Second})
 	if err != nil {
@@ -214,6 +245,22 @@ func verifyAfterCrash(t *testing.T, path string, run int, acked map[string]ack, 
 		st, err := db.Device(dev)
 		if err != nil || st.LastN < n {
 			t.Fatalf("after kill %d: %s counter %d (err %v) is below acknowledged n %d", run, dev, st.LastN, err, n)
+		}
+	}
+	// A push the writer never acknowledged is on disk whole or not at all.
+	for _, tr := range open {
+		present := 0
+		for _, id := range tr.ids {
+			if _, err := db.Get(id); err == nil {
+				present++
+			}
+		}
+		st, _ := db.Device(tr.device)
+		committed := st.LastN >= tr.last
+		if present != 0 && present != len(tr.ids) || committed != (st.LastN >= tr.first) ||
+			len(tr.ids) > 0 && committed != (present == len(tr.ids)) {
+			t.Fatalf("after kill %d: unacknowledged push %s n %d–%d half applied: %d of %d new records, counter %d",
+				run, tr.device, tr.first, tr.last, present, len(tr.ids), st.LastN)
 		}
 	}
 	seen := map[string]bool{}
