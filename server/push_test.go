@@ -92,7 +92,8 @@ func manyMutations(r devsync.Record, n int) []devsync.Mutation {
 func TestPush_BadRecords(t *testing.T) {
 	h, a := seeded(t)
 	stored := h.rec("checkin", a.ID, "2026-11-18", map[string]any{"mass_kg": 70.5})
-	require.Equal(t, 1, h.push("phone-1", 3, stored).Applied)
+	other := h.athlete("Other Fighter", "lb")
+	require.Equal(t, 2, h.push("phone-1", 3, stored, other).Applied)
 	n := uint64(100)
 
 	type mod func(r *devsync.Record, m *devsync.Mutation)
@@ -132,6 +133,11 @@ func TestPush_BadRecords(t *testing.T) {
 		{"upsert carrying a tombstone", "checkin", func(r *devsync.Record, m *devsync.Mutation) { r.Deleted = true }, "op"},
 		{"unknown operation", "checkin", func(r *devsync.Record, m *devsync.Mutation) { m.Op = "merge" }, "op"},
 		{"record from another device", "checkin", func(r *devsync.Record, _ *devsync.Mutation) { r.Device = "phone-9" }, "device"},
+		{"record moved to another athlete", "checkin", func(r *devsync.Record, _ *devsync.Mutation) {
+			r.ID = stored.ID
+			r.Athlete = other.ID
+			r.Stamp.L = stored.Stamp.L + 10
+		}, "athlete"},
 		{"kind changed under a stored id", "checkin", func(r *devsync.Record, _ *devsync.Mutation) {
 			r.ID = stored.ID
 			r.Kind = "note"

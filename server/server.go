@@ -79,9 +79,10 @@ func OpenStore(path string, now func() time.Time) (*storage.DB, error) {
 		now = time.Now
 	}
 	return storage.Open(path, storage.Options{
-		Timeout: DefaultLockTimeout,
-		Now:     now,
-		Prepare: func(r *devsync.Record) error { return records.PrepareAt(now())(r) },
+		Timeout:       DefaultLockTimeout,
+		Now:           now,
+		Prepare:       func(r *devsync.Record) error { return records.PrepareAt(now())(r) },
+		CampIntegrity: true,
 	})
 }
 

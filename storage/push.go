@@ -231,6 +231,15 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 			return rejected, reject(m, devsync.CodeValidation,
 				devsync.Invalid("record.kind", "this id already belongs to a %s record", s.Kind)), nil
 		}
+		// A record never moves to another athlete: a device filtered by
+		// athlete would never learn that it left. Delete and log it again.
+		if p.db.campIntegrity && s.Athlete != rec.Athlete {
+			return rejected, reject(m, devsync.CodeValidation,
+				devsync.Invalid("record.athlete", "a record cannot move to another athlete; delete it and log it again for the right one")), nil
+		}
+	}
+	if err := p.checkAthlete(&rec); err != nil {
+		return rejected, reject(m, devsync.CodeValidation, err), nil
 	}
 	if allow != nil {
 		var view *devsync.Record
@@ -417,3 +426,31 @@ func CheckDay(d string) error {
 	}
 	return nil
 }
+
+// checkAthlete: a per-athlete record names an athlete the camp holds (an
+// athlete record stored earlier, or earlier in this same push). The
+// athlete record itself names its own id; tombstones are not checked, so
+// a bad record can always be removed.
+func (p *pusher) checkAthlete(rec *devsync.Record) error {
+	if !p.db.campIntegrity || rec.Athlete == "" || rec.Deleted || rec.Kind == athleteKind {
+		return nil
+	}
+	v := p.records.Get([]byte(rec.Athlete))
+	if v == nil {
+		return devsync.Invalid("record.athlete", "no athlete with id %q in this camp; add the athlete first", rec.Athlete)
+	}
+	a, err := decode(v)
+	if err != nil {
+		return err
+	}
+	switch {
+	case a.Kind != athleteKind:
+		return devsync.Invalid("record.athlete", "%q is a %s record, not an athlete", rec.Athlete, a.Kind)
+	case a.Deleted:
+		return devsync.Invalid("record.athlete", "athlete %q was deleted; restore the athlete first", rec.Athlete)
+	}
+	return nil
+}
+
+// athleteKind is the record kind whose id other records name in "athlete".
+const athleteKind = "athlete"

@@ -103,6 +103,13 @@ type Options struct {
 	// fields. It returns a *devsync.FieldError for bad input. Nil accepts
 	// every record.
 	Prepare func(*devsync.Record) error
+	// CampIntegrity turns on the hub's two rules about athletes: a
+	// per-athlete record must name a live athlete record of the store (or
+	// one stored earlier in the same push), and a record never moves to
+	// another athlete, since a device that sees only one athlete would
+	// never learn that a record left. The hub sets it; the storage
+	// conformance suite works with free athlete ids.
+	CampIntegrity bool
 }
 
 // DB is the hub's store. It is safe for concurrent use.
@@ -110,6 +117,8 @@ type DB struct {
 	bolt    *bolt.DB
 	now     func() time.Time
 	prepare func(*devsync.Record) error
+
+	campIntegrity bool
 }
 
 // DeviceState is what the hub knows about one device's pushes.
@@ -138,7 +147,7 @@ func Open(path string, opt Options) (*DB, error) {
 		}
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
-	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare}
+	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare, campIntegrity: opt.CampIntegrity}
 	err = b.Update(initBuckets)
 	if err != nil {
 		b.Close()
