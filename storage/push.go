@@ -35,7 +35,10 @@ type PushResult struct {
 //  1. n ≤ the device's counter → duplicate, skipped;
 //  2. the mutation's own checks and the record's shape (id, kind,
 //     athlete, day);
-//  3. the kind may not change under an existing id;
+//  3. the kind may not change under an existing id; with
+//     Options.CampIntegrity, a record may not move to another athlete
+//     and a live per-athlete record must name a live athlete record
+//     (stored before, or earlier in the same push);
 //  4. allow(stored, incoming) (nil = allow all), with the current winner
 //     (nil for a new record) so a rights check sees whose record it
 //     would overwrite: an error rejects the mutation with code FORBIDDEN
@@ -233,7 +236,7 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 		}
 		// A record never moves to another athlete: a device filtered by
 		// athlete would never learn that it left. Delete and log it again.
-		if p.db.campIntegrity && s.Athlete != rec.Athlete {
+		if p.db.campIntegrity && s.Athlete != rec.Athlete && rec.Kind != athleteKind {
 			return rejected, reject(m, devsync.CodeValidation,
 				devsync.Invalid("record.athlete", "a record cannot move to another athlete; delete it and log it again for the right one")), nil
 		}

@@ -279,3 +279,59 @@ func TestPullBoundsHiddenScan(t *testing.T) {
 		t.Fatalf("%d pages, %d records, cursor %d of %d", pages, len(got), since, len(recs))
 	}
 }
+
+func TestCampIntegrity(t *testing.T) {
+	db := storagetest.MustOpen(t, storage.Options{CampIntegrity: true})
+	g := storagetest.NewGen(8, "dev-coach")
+	athlete := devsync.Record{ID: g.ID(), Kind: "athlete", Device: "dev-coach", Stamp: g.Stamp(), Body: []byte(`{"name":"Tavi Orrin","units":"kg"}`)}
+	other := devsync.Record{ID: g.ID(), Kind: "athlete", Device: "dev-coach", Stamp: g.Stamp(), Body: []byte(`{"name":"Mira Castell","units":"kg"}`)}
+	checkin := g.Checkin(athlete.ID, storagetest.Day(0))
+	stranger := g.Checkin(g.ID(), storagetest.Day(0))
+	notAthlete := g.Checkin(checkin.ID, storagetest.Day(0)) // names a check-in, not an athlete
+	camp := devsync.Record{ID: g.ID(), Kind: "settings", Device: "dev-coach", Stamp: g.Stamp(), Body: []byte(`{"gym_name":"Quayside Boxing Club"}`)}
+	ghostDelete := g.Delete(g.Checkin(g.ID(), storagetest.Day(1))) // a tombstone may name anyone
+
+	// The athlete earlier in the same push counts.
+	res, err := db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: storagetest.Mutations(1, athlete, other, checkin, stranger, notAthlete, camp, ghostDelete)}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Applied != 5 || len(res.Rejected) != 2 {
+		t.Fatalf("push: %+v", res)
+	}
+	for i, want := range []string{"no athlete with id", "not an athlete"} {
+		if rj := res.Rejected[i]; rj.Field != "record.athlete" || !strings.Contains(rj.Reason, want) {
+			t.Errorf("rejection %d: %+v, want record.athlete: %q", i, rj, want)
+		}
+	}
+
+	// A record never moves to another athlete (a phone that sees only
+	// the first athlete would keep it forever).
+	moved := g.Edit(checkin)
+	moved.Athlete = other.ID
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: storagetest.Mutations(10, moved)}, nil)
+	if len(res.Rejected) != 1 || res.Rejected[0].Field != "record.athlete" || !strings.Contains(res.Rejected[0].Reason, "cannot move to another athlete") {
+		t.Fatalf("move: %+v", res.Rejected)
+	}
+	// An athlete record may name itself or nothing, version to version.
+	self := g.Edit(athlete)
+	self.Athlete = athlete.ID
+	if res, _ := db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: storagetest.Mutations(11, self)}, nil); res.Applied != 1 {
+		t.Fatalf("athlete record naming itself: %+v", res)
+	}
+
+	// Once the athlete is deleted, new records for them are refused, but
+	// their records can still be deleted; restoring the athlete lifts it.
+	gone := g.Delete(self)
+	late := g.Checkin(athlete.ID, storagetest.Day(2))
+	delCheckin := g.Delete(checkin)
+	res, _ = db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: storagetest.Mutations(20, gone, late, delCheckin)}, nil)
+	if res.Applied != 2 || len(res.Rejected) != 1 || !strings.Contains(res.Rejected[0].Reason, "was deleted") {
+		t.Fatalf("deleted athlete: %+v", res)
+	}
+	back := g.Restore(gone)
+	late2 := g.Checkin(athlete.ID, storagetest.Day(2))
+	if res, _ := db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: storagetest.Mutations(30, back, late2)}, nil); res.Applied != 2 {
+		t.Fatalf("after restoring the athlete: %+v", res)
+	}
+}
