@@ -1,0 +1,186 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"math/rand/v2"
+	"path/filepath"
+	"slices"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"cornerbook/server"
+	devsync "cornerbook/sync"
+)
+
+var faultKills = flag.Int("fault.kills", 20, "SIGKILLs of the hub in TestFaultHubKilledMidSync (more for the documented long run)")
+
+// ledger is what the devices were told: every acknowledged record, and
+// every batch (one push, one hub transaction) ever sent.
+type ledger struct {
+	mu      sync.Mutex
+	acked   map[string]devsync.Record
+	batches [][]devsync.Record
+	devices map[string]bool
+}
+
+func newLedger() *ledger {
+	return &ledger{acked: map[string]devsync.Record{}, devices: map[string]bool{}}
+}
+
+func (l *ledger) ack(recs []devsync.Record) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	for _, r := range recs {
+		l.acked[r.ID] = r
+		l.devices[r.Device] = true
+	}
+}
+
+func (l *ledger) addBatches(device string, bs [][]devsync.Record) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	l.batches = append(l.batches, bs...)
+	l.devices[device] = true
+}
+
+func (l *ledger) snapshot() (map[string]devsync.Record, map[string]bool) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	a := make(map[string]devsync.Record, len(l.acked))
+	for k, v := range l.acked {
+		a[k] = v
+	}
+	d := make(map[string]bool, len(l.devices))
+	for k := range l.devices {
+		d[k] = true
+	}
+	return a, d
+}
+
+// TestFaultHubKilledMidSync runs the load against `cornerbook serve` as a
+// subprocess and SIGKILLs the hub at random moments — mid-push, mid-pull,
+// mid-join, mid-start — then starts it again on the same ports and data
+// folder (ENGINEERING.md §3.8 "server crash after/before commit", §9.2).
+// After every restart, every mutation acknowledged before the kill (a 200
+// answer, n ≤ ackedThrough, not rejected) must be stored exactly once,
+// as sent. At the end the hub is killed one last time mid-run and the
+// store is opened directly: its invariants hold, every record has one
+// version, and every batch is stored whole or not at all.
+//
+//	go test ./cmd/cornerbook-load -run FaultHubKilled -fault.kills=200 -v
+func TestFaultHubKilledMidSync(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts and kills a hub subprocess 20 times")
+	}
+	kills := *faultKills
+	data := t.TempDir()
+	h := newProcHub(t, data)
+	first := h.start()
+	ca := h.caPEM()
+	led := newLedger()
+	rng := rand.New(rand.NewPCG(uint64(time.Now().UnixNano()), 1))
+
+	ctx, cancel := context.WithTimeout(context.Background(), time.Duration(30+kills*3)*time.Second)
+	defer cancel()
+	loadCtx, stopLoad := context.WithCancel(ctx)
+	var rounds []Report
+	var roundErrs []error
+	loadDone := make(chan struct{})
+	go func() {
+		defer close(loadDone)
+		for round := 1; loadCtx.Err() == nil; round++ {
+			rep, err := Run(loadCtx, Config{URL: h.URL(), CAPEM: ca, Devices: 10, Days: 14, Batch: 12,
+				Timeout: time.Minute, DeviceHost: DefaultDeviceHost, Seed: int64(round), Retry: true,
+				OnAck: led.ack, OnBatches: led.addBatches})
+			if loadCtx.Err() != nil {
+				return // the final kill interrupted this round on purpose
+			}
+			rounds, roundErrs = append(rounds, rep), append(roundErrs, err)
+		}
+	}()
+
+	verifier := h.client()
+	var restarts []time.Duration
+	for i := 1; i <= kills; i++ {
+		time.Sleep(time.Duration(20+rng.IntN(280)) * time.Millisecond)
+		h.kill()
+		acked, devs := led.snapshot()
+		if i == kills {
+			break // the last kill is not followed by a restart: the store is examined directly
+		}
+		restarts = append(restarts, h.start())
+		pulled, _, err := verifier.pullAll(ctx, coach)
+		require.NoError(t, err, "pull after restart %d", i)
+		c := compare(pulled, acked, devs)
+		// Records stored but not yet acknowledged are fine (the answer was
+		// lost in the kill; the device resends and gets its ack).
+		assert.Zero(t, c.Missing, "restart %d: acknowledged records missing: %v", i, c.Samples)
+		assert.Zero(t, c.Duplicates, "restart %d: records stored twice: %v", i, c.Samples)
+		assert.Zero(t, c.Mismatched, "restart %d: acknowledged records changed: %v", i, c.Samples)
+		if t.Failed() {
+			t.Fatalf("after restart %d of %d (hub output):\n%s", i, kills, h.out)
+		}
+	}
+	stopLoad()
+	<-loadDone
+	acked, _ := led.snapshot()
+
+	// Every round that finished between kills ended clean.
+	for i, rep := range rounds {
+		require.NoError(t, roundErrs[i], "round %d", i+1)
+		assert.True(t, rep.Check.OK(), "round %d check: %+v", i+1, rep.Check)
+		assert.Zero(t, rep.Errors, "round %d errors: %v", i+1, rep.ErrorSamples)
+		assert.Equal(t, rep.Records, rep.Acked, "round %d: every record acknowledged in the end", i+1)
+	}
+
+	// The store itself, opened directly with the hub dead.
+	db, err := server.OpenStore(filepath.Join(data, "cornerbook.db"), nil)
+	require.NoError(t, err)
+	defer db.Close()
+	require.NoError(t, db.Check(), "store invariants after %d kills", kills)
+	stored := map[string]devsync.Record{}
+	require.NoError(t, db.All(true, func(r devsync.Record) error { stored[r.ID] = r; return nil }))
+	for id, want := range acked {
+		got, ok := stored[id]
+		if assert.True(t, ok, "acknowledged record %s missing", id) {
+			assert.True(t, sameVersion(got, want), "acknowledged record %s changed:\n got %s\nwant %s", id, brief(got), brief(want))
+		}
+		hist, err := db.History(id)
+		require.NoError(t, err)
+		assert.Len(t, hist, 1, "record %s stored once, one version", id)
+	}
+	whole, none := 0, 0
+	for _, b := range led.batches {
+		n := 0
+		for _, r := range b {
+			if _, ok := stored[r.ID]; ok {
+				n++
+			}
+		}
+		switch n {
+		case len(b):
+			whole++
+		case 0:
+			none++
+		default:
+			t.Errorf("a batch of %d was stored in part: %d records (first %s)", len(b), n, b[0].ID)
+		}
+	}
+	t.Logf("%d kills; %d finished rounds of 10 devices × 14 days; %d acknowledged records; %d batches whole, %d not stored; first start %s, restarts median %s max %s",
+		kills, len(rounds), len(acked), whole, none, first.Round(time.Millisecond), median(restarts).Round(time.Millisecond), slices.Max(append(restarts, 0)).Round(time.Millisecond))
+	assert.GreaterOrEqual(t, len(acked), 100, "the load made progress between kills")
+}
+
+func median(ds []time.Duration) time.Duration {
+	if len(ds) == 0 {
+		return 0
+	}
+	s := slices.Clone(ds)
+	slices.Sort(s)
+	return s[len(s)/2]
+}
