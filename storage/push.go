@@ -37,8 +37,8 @@ type PushResult struct {
 //     athlete, day);
 //  3. the kind may not change under an existing id; with
 //     Options.CampIntegrity, a record may not move to another athlete
-//     and a live per-athlete record must name a live athlete record
-//     (stored before, or earlier in the same push);
+//     and a live per-athlete record must name an athlete record (stored
+//     before, or earlier in the same push; deleted athletes count);
 //  4. allow(stored, incoming) (nil = allow all), with the current winner
 //     (nil for a new record) so a rights check sees whose record it
 //     would overwrite: an error rejects the mutation with code FORBIDDEN
@@ -446,11 +446,11 @@ func (p *pusher) checkAthlete(rec *devsync.Record) error {
 	if err != nil {
 		return err
 	}
-	switch {
-	case a.Kind != athleteKind:
+	// A deleted athlete still counts: the store holds their records from
+	// before the deletion, and its own export must import again (and
+	// devices re-push after a restore) whatever the athlete's state.
+	if a.Kind != athleteKind {
 		return devsync.Invalid("record.athlete", "%q is a %s record, not an athlete", rec.Athlete, a.Kind)
-	case a.Deleted:
-		return devsync.Invalid("record.athlete", "athlete %q was deleted; restore the athlete first", rec.Athlete)
 	}
 	return nil
 }

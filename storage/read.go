@@ -3,6 +3,7 @@ package storage
 import (
 	"bytes"
 	"encoding/binary"
+	"encoding/json"
 	"fmt"
 
 	bolt "go.etcd.io/bbolt"
@@ -193,26 +194,40 @@ func emit(records *bolt.Bucket, id []byte, fn func(devsync.Record) error) error 
 	return fn(r)
 }
 
-// All calls fn for every current record in change-sequence order (the
-// order an export replays cleanly), with tombstones if includeDeleted.
+// All calls fn for every current record, with tombstones if
+// includeDeleted: first the athlete records, then every other record,
+// each group in change-sequence order. Athletes come first because other
+// records name them: an export in this order replays into a store with
+// Options.CampIntegrity whatever order the records were edited in.
 func (db *DB) All(includeDeleted bool, fn func(devsync.Record) error) error {
 	return db.bolt.View(func(tx *bolt.Tx) error {
 		records := tx.Bucket(BucketRecords)
-		c := tx.Bucket(BucketChanges).Cursor()
-		for k, id := c.First(); k != nil; k, id = c.Next() {
-			v := records.Get(id)
-			if v == nil {
-				return fmt.Errorf("change %d names record %q, which is missing", binary.BigEndian.Uint64(k), id)
-			}
-			r, err := decode(v)
-			if err != nil {
-				return fmt.Errorf("record %q: %w", id, err)
-			}
-			if r.Deleted && !includeDeleted {
-				continue
-			}
-			if err := fn(r); err != nil {
-				return err
+		for pass := 0; pass < 2; pass++ {
+			c := tx.Bucket(BucketChanges).Cursor()
+			for k, id := c.First(); k != nil; k, id = c.Next() {
+				v := records.Get(id)
+				if v == nil {
+					return fmt.Errorf("change %d names record %q, which is missing", binary.BigEndian.Uint64(k), id)
+				}
+				var head struct {
+					Kind string `json:"kind"`
+				}
+				if err := json.Unmarshal(v, &head); err != nil {
+					return fmt.Errorf("record %q: %w", id, err)
+				}
+				if (head.Kind == athleteKind) != (pass == 0) {
+					continue
+				}
+				r, err := decode(v)
+				if err != nil {
+					return fmt.Errorf("record %q: %w", id, err)
+				}
+				if r.Deleted && !includeDeleted {
+					continue
+				}
+				if err := fn(r); err != nil {
+					return err
+				}
 			}
 		}
 		return nil

@@ -104,8 +104,9 @@ type Options struct {
 	// every record.
 	Prepare func(*devsync.Record) error
 	// CampIntegrity turns on the hub's two rules about athletes: a
-	// per-athlete record must name a live athlete record of the store (or
-	// one stored earlier in the same push), and a record never moves to
+	// per-athlete record must name an athlete record of the store (one
+	// stored earlier in the same push counts; so does a deleted athlete,
+	// whose earlier records the store keeps), and a record never moves to
 	// another athlete, since a device that sees only one athlete would
 	// never learn that a record left. The hub sets it; the storage
 	// conformance suite works with free athlete ids.
