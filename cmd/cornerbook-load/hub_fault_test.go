@@ -76,7 +76,7 @@ type procHub struct {
 	https     int
 	http      int
 	cmd       *exec.Cmd
-	out       *bytes.Buffer
+	out       *syncBuffer
 	starts    int
 }
 
@@ -100,7 +100,7 @@ func (h *procHub) HTTPURL() string { return "http://127.0.0.1:" + strconv.Itoa(h
 // returns how long that took.
 func (h *procHub) start() time.Duration {
 	h.t.Helper()
-	h.out = &bytes.Buffer{}
+	h.out = &syncBuffer{}
 	h.cmd = exec.Command(h.bin, "serve", "--data", h.data,
 		"--addr", "127.0.0.1:"+strconv.Itoa(h.https), "--http-addr", "127.0.0.1:"+strconv.Itoa(h.http))
 	h.cmd.Stdout, h.cmd.Stderr = h.out, h.out
@@ -164,4 +164,23 @@ func (h *procHub) caPEM() []byte {
 	b, err := os.ReadFile(filepath.Join(h.data, "tls", "ca.crt"))
 	require.NoError(h.t, err)
 	return b
+}
+
+// syncBuffer is the hub's output, written by exec's copying goroutine and
+// read by the test.
+type syncBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (s *syncBuffer) Write(p []byte) (int, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.Write(p)
+}
+
+func (s *syncBuffer) String() string {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.String()
 }
