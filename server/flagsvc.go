@@ -4,7 +4,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
+	"slices"
 	"sort"
+	"strings"
 	"sync"
 	"time"
 
@@ -18,7 +20,10 @@ import (
 // 28-day baseline plus the 28-day chronic load, and residual gaps look
 // back up to ~40 days; incidents and clearances are read in full because a
 // stand-down can outlast any window.
-const flagWindowDays = 120
+const flagWindowDays = FlagWindowDays
+
+// FlagWindowDays is exported for benchmarks that read the same records.
+const FlagWindowDays = 120
 
 // flagService computes the day's flags from the store and keeps them
 // current: a push invalidates only the athletes it touched, and the
@@ -26,12 +31,112 @@ const flagWindowDays = 120
 type flagService struct {
 	s *Server
 
-	mu    sync.Mutex // guards cache
+	mu    sync.Mutex // guards cache and recs
 	cache map[string][]flags.Flag
+	// recs holds each athlete's records of the rule kinds, decoded, from
+	// a window start on: a push patches them in place, so recomputing an
+	// athlete after one new record costs the rules, not a re-read.
+	recs map[string]*athleteRecs
+	// athletes is the sorted athlete list; nil until read or after a change.
+	athletes []devsync.Record
 }
 
+// athleteRecs is one athlete's decoded records: windowed kinds from
+// `from` on, and every incident and clearance.
+type athleteRecs struct {
+	from   string
+	byKind map[string][]devsync.Record // each ordered by day, then id
+}
+
+// windowedKinds are read over the rules' window; standDownKinds in full.
+var (
+	windowedKinds  = []string{records.KindCheckin, records.KindJump, records.KindRound, records.KindSession, records.KindIntervals, records.KindDecision}
+	standDownKinds = []string{records.KindIncident, records.KindClearance}
+)
+
 func newFlagService(s *Server) *flagService {
-	return &flagService{s: s, cache: map[string][]flags.Flag{}}
+	return &flagService{s: s, cache: map[string][]flags.Flag{}, recs: map[string]*athleteRecs{}}
+}
+
+// history returns an athlete's records for the rules on day: windowed
+// kinds in [from, day], incidents and clearances up to day. Recent days
+// are served from the decoded cache; older ones read the store.
+func (f *flagService) history(id, from, day string) ([]devsync.Record, error) {
+	f.mu.Lock()
+	c := f.recs[id]
+	f.mu.Unlock()
+	if c == nil || c.from > from {
+		start := from
+		if recent, err := addDays(f.Today(), -flagWindowDays); err == nil && recent < start {
+			start = recent
+		}
+		loaded := &athleteRecs{from: start, byKind: map[string][]devsync.Record{}}
+		for _, kind := range windowedKinds {
+			if err := f.s.store.Range(id, kind, start, "9999-12-31", func(r devsync.Record) error {
+				loaded.byKind[kind] = append(loaded.byKind[kind], r)
+				return nil
+			}); err != nil {
+				return nil, err
+			}
+		}
+		for _, kind := range standDownKinds {
+			if err := f.s.store.Range(id, kind, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
+				loaded.byKind[kind] = append(loaded.byKind[kind], r)
+				return nil
+			}); err != nil {
+				return nil, err
+			}
+		}
+		c = loaded
+		f.mu.Lock()
+		if cur := f.recs[id]; cur == nil || cur.from > c.from {
+			f.recs[id] = c
+		} else {
+			c = cur
+		}
+		f.mu.Unlock()
+	}
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	var out []devsync.Record
+	for _, kind := range windowedKinds {
+		for _, r := range c.byKind[kind] {
+			if r.Day >= from && r.Day <= day {
+				out = append(out, r)
+			}
+		}
+	}
+	for _, kind := range standDownKinds {
+		for _, r := range c.byKind[kind] {
+			if r.Day <= day {
+				out = append(out, r)
+			}
+		}
+	}
+	return out, nil
+}
+
+// patch applies written versions to the decoded cache. f.mu must be held.
+func (f *flagService) patch(r devsync.Record) {
+	c := f.recs[r.Athlete]
+	if c == nil {
+		return
+	}
+	list, ok := c.byKind[r.Kind]
+	if !ok && !slices.Contains(windowedKinds, r.Kind) && !slices.Contains(standDownKinds, r.Kind) {
+		return
+	}
+	list = slices.DeleteFunc(list, func(x devsync.Record) bool { return x.ID == r.ID })
+	if !r.Deleted && (r.Day >= c.from || slices.Contains(standDownKinds, r.Kind)) {
+		i, _ := slices.BinarySearchFunc(list, r, func(a, b devsync.Record) int {
+			if a.Day != b.Day {
+				return strings.Compare(a.Day, b.Day)
+			}
+			return strings.Compare(a.ID, b.ID)
+		})
+		list = slices.Insert(list, i, r)
+	}
+	c.byKind[r.Kind] = list
 }
 
 func cacheKey(athlete, day string) string { return athlete + "|" + day }
@@ -65,15 +170,28 @@ func (f *flagService) campSettings() records.Settings {
 // Today is the camp's current local day.
 func (f *flagService) Today() string { return f.s.now().In(f.location()).Format("2006-01-02") }
 
-// Athletes lists the camp's live athlete records, by name.
+// Athletes lists the camp's live athlete records, by name. The list is
+// kept until an athlete record changes.
 func (f *flagService) Athletes() ([]devsync.Record, error) {
-	var out []devsync.Record
+	f.mu.Lock()
+	cached := f.athletes
+	f.mu.Unlock()
+	if cached != nil {
+		return cached, nil
+	}
+	out := []devsync.Record{}
 	err := f.s.store.Kind(records.KindAthlete, func(r devsync.Record) error {
 		out = append(out, r)
 		return nil
 	})
+	if err != nil {
+		return nil, err
+	}
 	sort.Slice(out, func(i, j int) bool { return athleteName(out[i]) < athleteName(out[j]) })
-	return out, err
+	f.mu.Lock()
+	f.athletes = out
+	f.mu.Unlock()
+	return out, nil
 }
 
 func athleteName(r devsync.Record) string {
@@ -138,24 +256,11 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 		return flags.Input{}, err
 	}
 	in := flags.Input{Day: day, Now: f.s.now(), Location: f.location(), Athlete: ath}
-	windowed := []string{records.KindCheckin, records.KindJump, records.KindRound, records.KindSession,
-		records.KindIntervals, records.KindDecision}
-	for _, kind := range windowed {
-		if err := f.s.store.Range(id, kind, from, day, func(r devsync.Record) error {
-			in.Records = append(in.Records, r)
-			return nil
-		}); err != nil {
-			return in, err
-		}
+	recs, err := f.history(id, from, day)
+	if err != nil {
+		return in, err
 	}
-	for _, kind := range []string{records.KindIncident, records.KindClearance} {
-		if err := f.s.store.Range(id, kind, "0000-01-01", day, func(r devsync.Record) error {
-			in.Records = append(in.Records, r)
-			return nil
-		}); err != nil {
-			return in, err
-		}
-	}
+	in.Records = recs
 	// The bout: the one whose bout day is the nearest on or after the day;
 	// else the latest before it.
 	var best *devsync.Record
@@ -204,27 +309,63 @@ func (f *flagService) settingsFor(id string) map[string]map[string]float64 {
 func (f *flagService) Changed(recs []devsync.Record) {
 	all := false
 	touched := map[string]bool{}
+	today := f.Today()
+	otherDay := false
 	for _, r := range recs {
+		if r.Day != today {
+			otherDay = true
+		}
 		if r.Athlete == "" {
 			all = true
 			continue
 		}
 		touched[r.Athlete] = true
 	}
+	prev := map[string][]flags.Flag{}
 	f.mu.Lock()
+	for _, r := range recs {
+		f.patch(r)
+		if r.Kind == records.KindAthlete {
+			f.athletes = nil
+		}
+	}
+	for a := range touched {
+		if fl, ok := f.cache[cacheKey(a, today)]; ok {
+			prev[a] = fl
+		}
+	}
 	if all {
 		f.cache = map[string][]flags.Flag{}
 	} else {
 		for k := range f.cache {
-			for a := range touched {
-				if len(k) > len(a) && k[:len(a)] == a && k[len(a)] == '|' {
-					delete(f.cache, k)
-				}
+			if i := strings.IndexByte(k, '|'); i > 0 && touched[k[:i]] {
+				delete(f.cache, k)
 			}
 		}
 	}
 	f.mu.Unlock()
-	f.s.hub.FlagsChanged()
+	if all || otherDay {
+		f.s.hub.FlagsChanged()
+		return
+	}
+	// Recompute today's flags of the touched athletes off the request
+	// path, and poke dashboards only if they changed.
+	go func() {
+		for a := range touched {
+			old, had := prev[a]
+			now, err := f.forAthlete(a, today)
+			if err != nil || !had || !sameFlags(old, now) {
+				f.s.hub.FlagsChanged()
+				return
+			}
+		}
+	}()
+}
+
+func sameFlags(a, b []flags.Flag) bool {
+	ja, err1 := json.Marshal(a)
+	jb, err2 := json.Marshal(b)
+	return err1 == nil && err2 == nil && string(ja) == string(jb)
 }
 
 func (s *Server) handleFlags(w http.ResponseWriter, r *http.Request) error {
@@ -304,3 +445,16 @@ func (s *Server) AthleteNames() map[string]string {
 	}
 	return out
 }
+
+// DropFlagCache empties the flag cache (benchmarks of the cold path).
+func (s *Server) DropFlagCache() {
+	s.flags.mu.Lock()
+	s.flags.cache = map[string][]flags.Flag{}
+	s.flags.recs = map[string]*athleteRecs{}
+	s.flags.athletes = nil
+	s.flags.mu.Unlock()
+}
+
+// RecordsChanged tells the flag service which records a push (or an
+// import outside the HTTP path) wrote.
+func (s *Server) RecordsChanged(recs []devsync.Record) { s.flags.Changed(recs) }

@@ -1,0 +1,122 @@
+package server_test
+
+import (
+	"encoding/json"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/gorilla/websocket"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"cornerbook/server/flags"
+)
+
+func flagRules(t *testing.T, h *hub, day, athlete string) map[string]flags.Flag {
+	var out struct{ Flags []flags.Flag }
+	require.Equal(t, 200, h.get("/api/flags?day="+day+"&athlete="+athlete, &out))
+	m := map[string]flags.Flag{}
+	for _, f := range out.Flags {
+		if f.Status == flags.StatusFlag {
+			m[f.Rule] = f
+		}
+	}
+	return m
+}
+
+// TestFlags_FollowPushes: flags follow what devices push — a new reading
+// raises a flag, an edit changes its numbers, a delete removes it — with
+// the hub's cached records patched rather than re-read.
+func TestFlags_FollowPushes(t *testing.T) {
+	h, a := seeded(t)
+	day := "2026-11-20"
+	assert.NotContains(t, flagRules(t, h, day, a.ID), "hydration")
+
+	// USG 1.032 is above 1.030: an alert (PRODUCT.md hydration rule;
+	// Hew-Butler et al. 2018 on urine markers).
+	c := h.rec("checkin", a.ID, day, map[string]any{"usg": 1.032})
+	h.push("phone-1", 10, c)
+	f := flagRules(t, h, day, a.ID)["hydration"]
+	assert.Equal(t, "alert", f.Level)
+	assert.Contains(t, f.Inputs, c.ID)
+
+	// Corrected to 1.022 (≥ 1.020): watch.
+	c.Body = json.RawMessage(`{"usg":1.022}`)
+	c.Stamp.L += 1000
+	h.push("phone-1", 11, c)
+	assert.Equal(t, "watch", flagRules(t, h, day, a.ID)["hydration"].Level)
+
+	// Deleted: no hydration flag.
+	c.Deleted = true
+	c.Stamp.L += 1000
+	h.push("phone-1", 12, c)
+	assert.NotContains(t, flagRules(t, h, day, a.ID), "hydration")
+
+	// A fresh hub over the same store agrees (nothing lives only in the cache).
+	h.srv.DropFlagCache()
+	assert.NotContains(t, flagRules(t, h, day, a.ID), "hydration")
+}
+
+// TestFlags_PokeWhenChanged: every winning push pokes with the new
+// sequence; the flags counter moves only when the day's flags changed.
+func TestFlags_PokeWhenChanged(t *testing.T) {
+	h, a := seeded(t)
+	day := "2026-11-20"
+	flagRules(t, h, day, a.ID) // cache today's flags
+	conn, _, err := websocket.DefaultDialer.Dial("ws"+strings.TrimPrefix(h.http.URL, "http")+"/api/ws", nil)
+	require.NoError(t, err)
+	defer conn.Close()
+	type msg struct {
+		T     string
+		Seq   uint64
+		Flags uint64
+	}
+	var hello msg
+	require.NoError(t, conn.ReadJSON(&hello))
+	require.Equal(t, "hello", hello.T)
+	msgs := make(chan msg, 64)
+	go func() {
+		for {
+			var m msg
+			if conn.ReadJSON(&m) != nil {
+				close(msgs)
+				return
+			}
+			msgs <- m
+		}
+	}()
+	// waitSeq reads pokes until one carries at least seq, then lets the
+	// flag recomputation settle and returns the latest counters.
+	waitSeq := func(seq uint64) msg {
+		var last msg
+		deadline := time.After(5 * time.Second)
+		for {
+			select {
+			case m, ok := <-msgs:
+				if !ok {
+					t.Fatal("websocket closed")
+				}
+				last = m
+			case <-time.After(300 * time.Millisecond):
+				if last.Seq >= seq {
+					return last
+				}
+			case <-deadline:
+				t.Fatalf("no poke reached seq %d (last %+v)", seq, last)
+			}
+		}
+	}
+	// A note changes no flag: the sequence moves, the flags counter does not.
+	resp := h.push("phone-1", 20, h.rec("note", a.ID, day, map[string]any{"text": "felt sharp"}))
+	m := waitSeq(resp.MaxSeq)
+	assert.Equal(t, hello.Flags, m.Flags, "a note does not change the day's flags")
+	// A concentrated urine reading raises a flag: the counter moves.
+	resp = h.push("phone-1", 21, h.rec("checkin", a.ID, day, map[string]any{"usg": 1.034}))
+	m = waitSeq(resp.MaxSeq)
+	for i := 0; i < 20 && m.Flags == hello.Flags; i++ {
+		m = waitSeq(resp.MaxSeq)
+	}
+	assert.Greater(t, m.Flags, hello.Flags, "a new hydration flag pokes dashboards")
+}
