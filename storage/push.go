@@ -150,7 +150,8 @@ type pusher struct {
 	tx                                                     *bolt.Tx
 	db                                                     *DB
 	records, seqs, versions, index, changes, devices, conf *bolt.Bucket
-	changed                                                map[string]int // id → index in res.Changed
+	changed                                                map[string]int  // id → index in res.Changed
+	athletes                                               map[string]bool // athlete ids already checked in this push
 }
 
 func (p *pusher) open() {
@@ -438,6 +439,9 @@ func (p *pusher) checkAthlete(rec *devsync.Record) error {
 	if !p.db.campIntegrity || rec.Athlete == "" || rec.Deleted || rec.Kind == athleteKind {
 		return nil
 	}
+	if p.athletes[rec.Athlete] {
+		return nil // kinds never change, so a checked athlete stays one
+	}
 	v := p.records.Get([]byte(rec.Athlete))
 	if v == nil {
 		return devsync.Invalid("record.athlete", "no athlete with id %q in this camp; add the athlete first", rec.Athlete)
@@ -452,6 +456,10 @@ func (p *pusher) checkAthlete(rec *devsync.Record) error {
 	if a.Kind != athleteKind {
 		return devsync.Invalid("record.athlete", "%q is a %s record, not an athlete", rec.Athlete, a.Kind)
 	}
+	if p.athletes == nil {
+		p.athletes = map[string]bool{}
+	}
+	p.athletes[rec.Athlete] = true
 	return nil
 }
 
