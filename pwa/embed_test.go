@@ -68,6 +68,9 @@ func TestNavigationsGetIndexAndAPIIsNotServed(t *testing.T) {
 	rec := httptest.NewRecorder()
 	h.ServeHTTP(rec, httptest.NewRequest(http.MethodPost, "/index.html", nil))
 	assert.Equal(t, http.StatusMethodNotAllowed, rec.Code)
+	rec = httptest.NewRecorder()
+	h.ServeHTTP(rec, httptest.NewRequest(http.MethodPost, "/api/push", nil))
+	assert.Equal(t, http.StatusNotFound, rec.Code, "an API route the hub lacks is a 404 for any method")
 }
 
 func TestServiceWorkerListsShellAndNoAPI(t *testing.T) {

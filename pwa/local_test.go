@@ -103,7 +103,12 @@ func TestCheckinSavedOnThePhoneWithItsOutboxRow(t *testing.T) {
 	assert.Equal(t, c.Stamp, hlc, "the clock is persisted with the write")
 
 	require.NoError(t, pwatest.WaitText(ctx, "status-waiting", "1 entry waiting to sync"))
-	require.NoError(t, pwatest.WaitText(ctx, "status-unreachable", "Hub unreachable — your entries are safe on this phone"))
+	if err := pwatest.WaitText(ctx, "status-unreachable", "Hub unreachable — your entries are safe on this phone"); err != nil {
+		st, _ := pwatest.Text(ctx, "status")
+		var attrs map[string]string
+		pwatest.Eval(ctx, `Object.assign({}, document.querySelector('[data-testid=status]').dataset)`, &attrs)
+		t.Fatalf("%v; status %q %v", err, st, attrs)
+	}
 
 	// A jump grid for two athletes: mean and best as typed, one record each.
 	require.NoError(t, pwatest.Route(ctx, "/jumps"))

@@ -82,9 +82,16 @@ export async function allMeta() {
   return out;
 }
 
+// RELAXED is for commits whose loss is harmless: a lost pull page takes its
+// cursor with it and is pulled again; a lost acknowledgement re-sends rows
+// the hub skips as duplicates.
+const RELAXED = { durability: 'relaxed' };
+
 // deviceId returns this device's id, creating it on first use.
 export async function deviceId() {
   const db = await openStore();
+  const known = await db.get('meta', 'deviceId');
+  if (known) return known;
   const tx = db.transaction('meta', 'readwrite', STRICT);
   let id = await tx.store.get('deviceId');
   if (!id) {
@@ -249,7 +256,9 @@ async function clockIn(meta, serverHLC, serverTime, sentAt, gotAt) {
 // in one transaction. Rows above ackedThrough stay queued.
 export async function ack(res, sentAt, gotAt) {
   const db = await openStore();
-  const tx = db.transaction(['outbox', 'rejected', 'meta'], 'readwrite', STRICT);
+  // With rejections the commit must be durable: the hub will not send them again.
+  const durable = res.rejected && res.rejected.length ? STRICT : RELAXED;
+  const tx = db.transaction(['outbox', 'rejected', 'meta'], 'readwrite', durable);
   const outbox = tx.objectStore('outbox');
   const rej = tx.objectStore('rejected');
   const byN = new Map((res.rejected || []).map((r) => [r.n, r]));
@@ -278,7 +287,7 @@ export async function ack(res, sentAt, gotAt) {
 // transaction: a crash mid-pull resumes from the last committed page.
 export async function applyPage(page, sentAt, gotAt) {
   const db = await openStore();
-  const tx = db.transaction(['records', 'meta'], 'readwrite', STRICT);
+  const tx = db.transaction(['records', 'meta'], 'readwrite', RELAXED);
   const records = tx.objectStore('records');
   let changed = 0;
   for (const r of page.records || []) {
@@ -435,4 +444,22 @@ export async function adoptPairing(token, device) {
   }
   await tx.done;
   notify({ type: 'changed', paired: true });
+}
+
+// pushBatch reads, in one transaction, what a push needs: the first rows
+// of the outbox, how many there are in all, the device id, the epoch and
+// the token.
+export async function pushBatch(limit) {
+  const db = await openStore();
+  const tx = db.transaction(['outbox', 'meta']);
+  const rows = [];
+  let cur = await tx.objectStore('outbox').openCursor();
+  while (cur && rows.length < limit) {
+    rows.push(cur.value);
+    cur = await cur.continue();
+  }
+  const total = rows.length < limit ? rows.length : await tx.objectStore('outbox').count();
+  const meta = tx.objectStore('meta');
+  const [device, epoch, token] = [await meta.get('deviceId'), await meta.get('epoch'), await meta.get('token')];
+  return { rows, total, device, epoch, token };
 }

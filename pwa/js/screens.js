@@ -1,6 +1,6 @@
 // Home, morning check-in, session RPE, incident and clearance.
 import {
-  html, useState, useEffect, Link, navigate, useAthletes, useAthlete, AthleteSelect, NoAthletes,
+  html, useState, useEffect, useRef, Link, navigate, useAthletes, useAthlete, AthleteSelect, NoAthletes,
   Choice, SaveLine, savedState, useAsync, useVersion, getPicked, setPicked, fmt,
 } from './ui.js';
 import { save, getRecord, byKind } from './db.js';
@@ -69,8 +69,11 @@ export function Checkin() {
   const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
   const units = athlete ? athlete.units : 'kg';
 
+  const prefilled = useRef('');
   useEffect(() => {
-    if (!editing || !list) return;
+    // Prefill once per edited record: later syncs must not overwrite typing.
+    if (!editing || !list || prefilled.current === editing.id) return;
+    prefilled.current = editing.id;
     const b = editing.body || {};
     const a = list.find((x) => x.id === editing.athlete);
     const u = a ? a.units : 'kg';

@@ -4,11 +4,17 @@
 // push and pull. This module is also imported by the service worker, so it
 // touches no window or document at load time.
 import {
-  ack, adoptPairing, applyPage, deviceId, getMeta, notify, outboxBatch, outboxCount, rejectRows,
+  ack, adoptPairing, applyPage, deviceId, getMeta, notify, outboxCount, pushBatch, rejectRows,
   rejectedList, resetForEpoch, restamp, setMeta,
 } from './db.js';
 
 const PUSH_BATCH = 200;
+
+// trace records sync milestones when a test or benchmark asks for them
+// (globalThis.__cbTrace = []); it costs nothing otherwise.
+function trace(what) {
+  if (globalThis.__cbTrace) globalThis.__cbTrace.push([what, Date.now()]);
+}
 const PULL_LIMIT = 500;
 const TIMEOUT_MS = 10000;
 
@@ -20,8 +26,8 @@ export class HubError extends Error {
   }
 }
 
-async function api(method, url, body) {
-  const token = await getMeta('token');
+async function api(method, url, body, knownToken) {
+  const token = knownToken !== undefined ? knownToken : await getMeta('token');
   const headers = { Accept: 'application/json' };
   if (token) headers.Authorization = `Bearer ${token}`;
   if (body !== undefined) headers['Content-Type'] = 'application/json';
@@ -57,19 +63,21 @@ async function pushAll() {
   let skewRetries = 0;
   let pushed = 0;
   for (;;) {
-    const rows = await outboxBatch(PUSH_BATCH);
+    const { rows, total, device, epoch, token } = await pushBatch(PUSH_BATCH);
     if (!rows.length) return pushed;
-    const waiting = Math.max(0, (await outboxCount()) - rows.length);
+    const waiting = total - rows.length;
     const body = {
-      device: await deviceId(),
-      epoch: (await getMeta('epoch')) || undefined,
+      device: device || await deviceId(),
+      epoch: epoch || undefined,
       mutations: rows.map((r) => ({ n: r.n, op: r.op, record: r.record })),
       waiting: waiting || undefined, // shown on the coach's device list
     };
     const sentAt = Date.now();
     let res;
+    trace('push-sent');
     try {
-      res = await api('POST', '/api/push', body);
+      res = await api('POST', '/api/push', body, token || null);
+      trace('push-answered');
     } catch (e) {
       const gotAt = Date.now();
       if (e instanceof HubError && e.status === 409 && e.body.code === 'CLOCK_SKEW' && e.body.serverTime && skewRetries < 2) {
@@ -87,7 +95,6 @@ async function pushAll() {
     const gotAt = Date.now();
     await ack(res, sentAt, gotAt);
     pushed += rows.length;
-    const epoch = await getMeta('epoch');
     if (res.epoch && epoch && res.epoch !== epoch) {
       await resetForEpoch(res.epoch);
       continue;
@@ -103,7 +110,9 @@ async function pullAll() {
   let cursor = (await getMeta('cursor')) || 0;
   for (;;) {
     const sentAt = Date.now();
+    trace('pull-sent');
     const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}`);
+    trace('pull-answered');
     const gotAt = Date.now();
     const epoch = await getMeta('epoch');
     if (resets < 1 && ((epoch && page.epoch && page.epoch !== epoch) || (page.maxSeq < cursor))) {
@@ -114,6 +123,7 @@ async function pullAll() {
       continue;
     }
     await applyPage(page, sentAt, gotAt);
+    trace('page-applied');
     cursor = page.next;
     if (!page.more) return;
   }
@@ -191,6 +201,7 @@ function schedule(ms) {
 
 // requestSync coalesces triggers: one run at a time, one more if asked meanwhile.
 export async function requestSync(reason) {
+  trace('request:' + reason);
   if (running) { again = true; return; }
   running = true;
   status.syncing = true;
@@ -200,7 +211,9 @@ export async function requestSync(reason) {
   try {
     do {
       again = false;
+      trace('sync-start');
       await syncOnce(reason);
+      trace('sync-done');
     } while (again);
     failures = 0;
     status.reachable = true;
@@ -208,7 +221,10 @@ export async function requestSync(reason) {
     schedule(30000);
   } catch (e) {
     failures++;
-    status.reachable = !(e instanceof TypeError || e.name === 'AbortError' || (e instanceof HubError && (e.status >= 500 || e.status === 404)));
+    // Unreachable: no connection, a timeout, a hub error, or an answer that
+    // is not the hub's JSON (something else at this address).
+    status.reachable = !(e instanceof TypeError || e.name === 'AbortError' ||
+      (e instanceof HubError && (e.status >= 500 || !e.body || !e.body.code)));
     status.error = e instanceof HubError && e.status === 401
       ? 'this device is not paired with the hub (or its pass was revoked): open Settings → Join'
       : (e.message || String(e));
@@ -221,9 +237,19 @@ export async function requestSync(reason) {
   }
 }
 
+// syncSoon runs after a local write: at once for the first write, then
+// at most once per 300 ms while writes keep coming (a burst of taps ringside
+// becomes one push).
+let lastWriteSync = 0;
 export function syncSoon() {
   clearTimeout(debounce);
-  debounce = setTimeout(() => requestSync('write'), 300);
+  const now = Date.now();
+  if (now - lastWriteSync >= 300) {
+    lastWriteSync = now;
+    requestSync('write');
+    return;
+  }
+  debounce = setTimeout(() => { lastWriteSync = Date.now(); requestSync('write'); }, 300 - (now - lastWriteSync));
 }
 
 async function registerBackgroundSync() {
