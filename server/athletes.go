@@ -8,6 +8,7 @@ import (
 
 	"github.com/gorilla/mux"
 
+	"cornerbook/server/flags"
 	"cornerbook/server/plan"
 	"cornerbook/server/records"
 	"cornerbook/server/series"
@@ -19,6 +20,7 @@ func (s *Server) routeAthletes(api *mux.Router) {
 	api.HandleFunc("/plan/default", s.serve(s.handleDefaultPlan)).Methods(http.MethodGet)
 	api.HandleFunc("/plan/check", s.serve(s.handleCheckPlan)).Methods(http.MethodPost)
 	api.HandleFunc("/tables", s.serve(s.handleTables)).Methods(http.MethodGet)
+	api.HandleFunc("/baselines", s.serve(s.handleBaselines)).Methods(http.MethodGet)
 }
 
 // handleSeries returns an athlete's chart data, computed by the same rules
@@ -153,5 +155,83 @@ func (s *Server) handleTables(w http.ResponseWriter, r *http.Request) error {
 		"classes": cls, "cr10": records.CR10, "protocols": records.Protocols, "rules": records.Rules,
 		"levels": records.Levels,
 	})
+	return nil
+}
+
+// Baseline is one athlete's reference numbers for a day, for screens that
+// show them beside an entry (the jump grid, ringside).
+type Baseline struct {
+	Athlete      string   `json:"athlete"`
+	Name         string   `json:"name"`
+	CMJBaseline  *float64 `json:"cmj_baseline_cm"` // 28-day mean of daily CMJ values before the day
+	CMJNoisePct  *float64 `json:"cmj_noise_pct"`   // their day-to-day CV (floor 2 %)
+	CMJTestDays  int      `json:"cmj_test_days"`   // test days in that window
+	CMJLast      *float64 `json:"cmj_last_cm"`     // the latest daily mean before the day
+	SparRounds7d int      `json:"spar_rounds_7d"`  // sparring rounds in the 7 days ending the day
+	SparCap      int      `json:"spar_cap_rounds"` // the week's cap
+	OnHold       bool     `json:"spar_on_hold"`    // a stand-down runs today
+	HoldReason   string   `json:"spar_hold_reason,omitempty"`
+}
+
+func (s *Server) handleBaselines(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	day := r.URL.Query().Get("day")
+	if day == "" {
+		day = s.flags.Today()
+	}
+	from, err := addDays(day, -27)
+	if err != nil {
+		return err
+	}
+	ath, err := s.flags.Athletes()
+	if err != nil {
+		return err
+	}
+	out := []Baseline{}
+	for _, a := range ath {
+		if who.Role == "athlete" && a.ID != who.Athlete {
+			continue
+		}
+		in, err := s.flags.input(a.ID, day)
+		if err != nil {
+			return err
+		}
+		ser := series.Build(in, from, day)
+		b := Baseline{Athlete: a.ID, Name: athleteName(a)}
+		if n := len(ser.Days); n > 0 {
+			last := n - 1
+			b.CMJBaseline, b.CMJNoisePct = ser.Jump.BaselineCm[last], ser.Jump.NoisePct[last]
+			if len(ser.Jump.TestDays) > last {
+				b.CMJTestDays = ser.Jump.TestDays[last]
+			}
+			for i := last - 1; i >= 0; i-- {
+				if ser.Jump.MeanCm[i] != nil {
+					b.CMJLast = ser.Jump.MeanCm[i]
+					break
+				}
+			}
+			if len(ser.Sparring.RollingRounds) > last {
+				b.SparRounds7d = ser.Sparring.RollingRounds[last]
+			}
+			if len(ser.Sparring.CapRounds) > last {
+				b.SparCap = ser.Sparring.CapRounds[last]
+			}
+		}
+		fl, err := s.flags.forAthlete(a.ID, day)
+		if err != nil {
+			return err
+		}
+		for _, f := range fl {
+			if f.Rule == flags.RuleSparOnHold && f.Status == flags.StatusFlag {
+				b.OnHold, b.HoldReason = true, f.Reason
+				break
+			}
+		}
+		out = append(out, b)
+	}
+	writeJSON(w, http.StatusOK, map[string]any{"day": day, "athletes": out})
 	return nil
 }

@@ -3,6 +3,8 @@ package server_test
 import (
 	"encoding/json"
 	"flag"
+	"net/http"
+	"net/http/httptest"
 	"os"
 	"path/filepath"
 	"testing"
@@ -77,4 +79,37 @@ func TestDemoCamp_Reproducible(t *testing.T) {
 	for i := range a {
 		require.Equal(t, a[i], b[i])
 	}
+}
+
+// TestBaselines_Demo: the numbers shown beside the jump grid and ringside
+// are the flag rules' own: Kofi's CMJ baseline equals jump_drop's
+// reference, and Mateo's stand-down shows as a hold.
+func TestBaselines_Demo(t *testing.T) {
+	srv := demoHub(t)
+	ts := httptest.NewServer(srv.Handler())
+	defer ts.Close()
+	resp, err := http.Get(ts.URL + "/api/baselines?day=2026-12-01")
+	require.NoError(t, err)
+	defer resp.Body.Close()
+	var out struct{ Athletes []server.Baseline }
+	require.NoError(t, json.NewDecoder(resp.Body).Decode(&out))
+	require.Len(t, out.Athletes, 4)
+	fl, err := srv.Flags("2026-12-01", "")
+	require.NoError(t, err)
+	byName := map[string]server.Baseline{}
+	for _, b := range out.Athletes {
+		byName[b.Name] = b
+	}
+	kofi := byName["Kofi Brandt"]
+	require.NotNil(t, kofi.CMJBaseline)
+	for _, f := range fl {
+		if f.Athlete == kofi.Athlete && f.Rule == flags.RuleJumpDrop && f.Status == flags.StatusFlag {
+			require.NotNil(t, f.Reference)
+			assert.InDelta(t, *f.Reference, *kofi.CMJBaseline, 1e-9, "the grid's baseline is jump_drop's reference")
+		}
+	}
+	assert.GreaterOrEqual(t, kofi.CMJTestDays, 5)
+	assert.True(t, byName["Mateo Lindqvist"].OnHold, "a head knock without clearance is a sparring hold")
+	assert.False(t, byName["Ines Halloran"].OnHold)
+	assert.Greater(t, kofi.SparRounds7d, 21, "the hard streak's rounds are counted")
 }
