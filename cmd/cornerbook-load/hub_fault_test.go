@@ -38,7 +38,7 @@ func TestMain(m *testing.M) {
 }
 
 // cornerbookBin builds ./cmd/cornerbook (go build) and returns its path.
-func cornerbookBin(t *testing.T) string {
+func cornerbookBin(t testing.TB) string {
 	t.Helper()
 	binOnce.Do(func() {
 		goTool, err := exec.LookPath("go")
@@ -60,7 +60,7 @@ func cornerbookBin(t *testing.T) string {
 }
 
 // freePort returns a port on 127.0.0.1 that was free a moment ago.
-func freePort(t *testing.T) int {
+func freePort(t testing.TB) int {
 	t.Helper()
 	ln, err := net.Listen("tcp", "127.0.0.1:0")
 	require.NoError(t, err)

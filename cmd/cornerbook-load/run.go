@@ -3,15 +3,20 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
 	"reflect"
 	"slices"
 	"sync"
 	"time"
+
+	bolt "go.etcd.io/bbolt"
 
 	devsync "cornerbook/sync"
 )
@@ -84,6 +89,13 @@ type Report struct {
 	// athlete's records; PhoneViewErrors those that did not.
 	PhoneViews      int `json:"phoneViews"`
 	PhoneViewErrors int `json:"phoneViewErrors"`
+
+	// RawBoltRecordsPerSec is the baseline measured after the run on the
+	// same machine: the same records' JSON put into a fresh bbolt file,
+	// one put each, one transaction per batch of the same size, from one
+	// goroutine. LoadVsRaw is RecordsPerSec over it.
+	RawBoltRecordsPerSec float64 `json:"rawBoltRecordsPerSec"`
+	LoadVsRaw            float64 `json:"loadVsRaw"`
 }
 
 // OK reports a clean run: no errors, nothing missing, doubled or changed.
@@ -96,6 +108,9 @@ func (r Report) WriteText(w io.Writer) {
 	fmt.Fprintf(w, "hub %s: %d devices (%d athletes) × %d days, batches of %d\n", r.URL, r.Devices, r.Athletes, r.Days, r.Batch)
 	fmt.Fprintf(w, "  setup (athletes, join codes, joins): %.2f s\n", r.SetupSeconds)
 	fmt.Fprintf(w, "  pushed %d records in %d pushes in %.2f s: %.0f records/s\n", r.Records, r.Pushes, r.PushSeconds, r.RecordsPerSec)
+	if r.RawBoltRecordsPerSec > 0 {
+		fmt.Fprintf(w, "  baseline: raw bbolt, same records and batches, one goroutine: %.0f records/s; load/raw %.2f\n", r.RawBoltRecordsPerSec, r.LoadVsRaw)
+	}
 	fmt.Fprintf(w, "  push latency p50 %.1f ms, p95 %.1f ms, p99 %.1f ms, max %.1f ms\n", r.PushP50Ms, r.PushP95Ms, r.PushP99Ms, r.PushMaxMs)
 	fmt.Fprintf(w, "  acknowledged %d, rejected %d, errors %d, interrupted %d\n", r.Acked, r.Rejected, r.Errors, r.Interrupted)
 	for _, s := range r.ErrorSamples {
@@ -315,6 +330,11 @@ func Run(ctx context.Context, cfg Config) (rep Report, err error) {
 			rep.PhoneViews++
 		}
 	}
+	raw, err := rawBaseline(batches, want)
+	if err != nil {
+		return rep, fmt.Errorf("raw bbolt baseline: %w", err)
+	}
+	rep.RawBoltRecordsPerSec, rep.LoadVsRaw = raw, rep.RecordsPerSec/raw
 	logf("athlete phones pulled their own records: %d of %d as expected", rep.PhoneViews, rep.PhoneViews+rep.PhoneViewErrors)
 	return rep, nil
 }
@@ -528,4 +548,51 @@ func phoneView(mine []devsync.Record, want map[string]devsync.Record, athlete st
 		}
 	}
 	return ""
+}
+
+// rawBaseline stores the records' JSON in a fresh bbolt file in the
+// system's temporary folder, one put per record and one transaction per
+// batch, and returns records per second.
+func rawBaseline(batches [][]devsync.Mutation, want map[string]devsync.Record) (float64, error) {
+	dir, err := os.MkdirTemp("", "cornerbook-load-raw-")
+	if err != nil {
+		return 0, err
+	}
+	defer os.RemoveAll(dir)
+	db, err := bolt.Open(filepath.Join(dir, "raw.db"), 0o600, &bolt.Options{Timeout: time.Second})
+	if err != nil {
+		return 0, err
+	}
+	defer db.Close()
+	enc := make([][][2][]byte, len(batches))
+	n := 0
+	for i, b := range batches {
+		for _, m := range b {
+			v, err := json.Marshal(want[m.Record.ID])
+			if err != nil {
+				return 0, err
+			}
+			enc[i] = append(enc[i], [2][]byte{[]byte(m.Record.ID), v})
+			n++
+		}
+	}
+	t0 := time.Now()
+	for _, b := range enc {
+		err := db.Update(func(tx *bolt.Tx) error {
+			bk, err := tx.CreateBucketIfNotExists([]byte("records"))
+			if err != nil {
+				return err
+			}
+			for _, kv := range b {
+				if err := bk.Put(kv[0], kv[1]); err != nil {
+					return err
+				}
+			}
+			return nil
+		})
+		if err != nil {
+			return 0, err
+		}
+	}
+	return float64(n) / time.Since(t0).Seconds(), nil
 }
