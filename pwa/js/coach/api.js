@@ -1,0 +1,89 @@
+// The hub's read API for the coach's screens: JSON over the same origin,
+// with this device's pass when it has one. Flags, chart series and plan
+// checks are computed by the hub; these screens only draw them.
+import { getMeta, getRecord, onChange } from '../db.js';
+
+export class HubReadError extends Error {
+  constructor(status, body, offline) {
+    super(offline ? 'the hub cannot be reached' : ((body && body.reason) ? `${body.field ? body.field + ' ' : ''}${body.reason}` : `the hub answered ${status}`));
+    this.status = status;
+    this.body = body || {};
+    this.offline = !!offline;
+  }
+}
+
+async function call(method, url, body) {
+  const token = await getMeta('token');
+  const headers = { Accept: 'application/json' };
+  if (token) headers.Authorization = `Bearer ${token}`;
+  if (body !== undefined) headers['Content-Type'] = 'application/json';
+  const ctl = new AbortController();
+  const timer = setTimeout(() => ctl.abort(), 10000);
+  let res;
+  try {
+    res = await fetch(url, { method, headers, cache: 'no-store', signal: ctl.signal, body: body === undefined ? undefined : JSON.stringify(body) });
+  } catch (e) {
+    throw new HubReadError(0, null, true);
+  } finally {
+    clearTimeout(timer);
+  }
+  let data = null;
+  if ((res.headers.get('Content-Type') || '').includes('json')) {
+    try { data = await res.json(); } catch (_) { data = null; }
+  }
+  if (!res.ok || !data) throw new HubReadError(res.status, data, res.status >= 500 && !data);
+  return data;
+}
+
+export const hubGet = (url) => call('GET', url);
+export const hubPost = (url, body) => call('POST', url, body);
+
+// Cached answers, so a screen opened offline shows the last copy it had,
+// saying when that was.
+export function remember(key, data) {
+  try { localStorage.setItem('cb.coach.' + key, JSON.stringify({ at: Date.now(), data })); } catch (_) { /* full: not kept */ }
+}
+export function recall(key) {
+  try { return JSON.parse(localStorage.getItem('cb.coach.' + key) || 'null'); } catch (_) { return null; }
+}
+
+let tables = null;
+// getTables: weight classes, CR-10, protocols, rule thresholds, levels.
+export function getTables() {
+  if (!tables) {
+    tables = hubGet('/api/tables').then((t) => { remember('tables', t); return t; }, (e) => {
+      tables = null;
+      const c = recall('tables');
+      if (c) return c.data;
+      throw e;
+    });
+  }
+  return tables;
+}
+
+// readRecord: the record from this device's store (where pulled records
+// live), else its latest version from the hub's history.
+export async function readRecord(id) {
+  const local = await getRecord(id);
+  if (local) return { rec: local, from: 'device' };
+  try {
+    const h = await hubGet(`/api/records/${encodeURIComponent(id)}/history`);
+    const v = h.versions || [];
+    return v.length ? { rec: v[v.length - 1], from: 'hub' } : null;
+  } catch (_) {
+    return null;
+  }
+}
+
+// onData calls fn (debounced) whenever records arrive or a sync finishes:
+// the moment the hub's flags may have moved.
+export function onData(fn, ms = 250) {
+  let t = null;
+  const off = onChange((m) => {
+    if (m.type === 'synced' || (m.type === 'changed' && (m.pulled || m.acked || m.local))) {
+      clearTimeout(t);
+      t = setTimeout(fn, ms);
+    }
+  });
+  return () => { clearTimeout(t); off(); };
+}

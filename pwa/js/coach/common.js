@@ -1,0 +1,129 @@
+// Words, units and small helpers shared by the coach's screens.
+import { html } from '../ui.js';
+import { KG_PER_LB, localDay } from '../record.js';
+
+// Plain-words names of the hub's flag rules (rule ids are fixed).
+export const RULE_NAMES = {
+  jump_drop: 'Jump height under baseline',
+  mass_above_path: 'Mass above the planned path',
+  mass_loss_fast: 'Mass coming off quickly',
+  cut_at_risk: 'Large cut left for the final week',
+  spar_density: 'Sparring volume over the cap',
+  spar_spacing: 'Hard sparring close together',
+  spar_on_hold: 'Sparring stand-down',
+  load_spike: 'Load rising fast (acute:chronic)',
+  monotony: 'Little day-to-day variation in load',
+  wellness_drop: 'Wellness under usual',
+  hydration: 'Concentrated urine (USG)',
+  missing_checkin: 'No morning check-in',
+  off_plan: 'Week away from the planned load',
+  residual_gap: 'Quality not trained lately',
+};
+export const ruleName = (id) => RULE_NAMES[id] || id;
+
+// The four states a card can be in, most serious first.
+export const LEVELS = [
+  ['alert', 'Act today'],
+  ['watch', 'Keep an eye on'],
+  ['info', 'Worth knowing'],
+  ['forming', 'Not enough data yet'],
+];
+export const levelOf = (f) => (f.status === 'forming' ? 'forming' : f.level);
+export const levelWord = (l) => (LEVELS.find((x) => x[0] === l) || [l, l])[1];
+export const levelRank = (l) => { const i = LEVELS.findIndex((x) => x[0] === l); return i < 0 ? 9 : i; };
+
+// Level marker: a shape as well as a colour, so it reads in grey print too.
+export function LevelMark({ level }) {
+  return html`<span class=${`lv lv-${level}`} aria-hidden="true"></span>`;
+}
+
+// ---- numbers with units ----
+export const LB_PER_KG = 1 / KG_PER_LB;
+
+// mass shows a kg value in the athlete's units (0.45359237 kg per lb, exact).
+export function mass(kg, units, d = 1) {
+  if (kg === null || kg === undefined || !Number.isFinite(kg)) return '–';
+  return `${(units === 'lb' ? kg / KG_PER_LB : kg).toFixed(d)} ${units === 'lb' ? 'lb' : 'kg'}`;
+}
+export function massNum(kg, units) {
+  if (kg === null || kg === undefined || !Number.isFinite(kg)) return null;
+  return units === 'lb' ? kg / KG_PER_LB : kg;
+}
+
+// decimals for a unit as the flag reasons use them
+const DEC = { cm: 1, kg: 1, '%': 1, '%/week': 2, ratio: 2, USG: 3, points: 1, AU: 0, days: 0, rounds: 0, 'hard rounds': 0, h: 0, z: 1 };
+
+// num formats a flag number with its unit; masses follow the athlete's units.
+export function num(v, unit, units) {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '–';
+  if (unit === 'kg') return mass(v, units);
+  const d = DEC[unit] !== undefined ? DEC[unit] : 2;
+  const s = v.toFixed(d);
+  if (!unit || unit === 'ratio') return s;
+  if (unit === 'USG') return s;
+  if (unit === '%' || unit === '%/week') return `${s} ${unit}`;
+  return `${s} ${unit}`;
+}
+
+export function fmtN(x, d = 1) { return Number.isFinite(x) ? x.toFixed(d) : '–'; }
+
+// ---- calendar days (YYYY-MM-DD strings, counted in UTC so no zone shifts) ----
+export function addDays(day, n) {
+  const t = Date.UTC(+day.slice(0, 4), +day.slice(5, 7) - 1, +day.slice(8, 10)) + n * 86400000;
+  return new Date(t).toISOString().slice(0, 10);
+}
+export function dayDiff(a, b) {
+  const p = (d) => Date.UTC(+d.slice(0, 4), +d.slice(5, 7) - 1, +d.slice(8, 10));
+  return Math.round((p(b) - p(a)) / 86400000);
+}
+export const isDay = (s) => typeof s === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(s);
+export function today() { return localDay(); }
+
+const WD = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
+const MO = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+export function longDay(day) {
+  const d = new Date(Date.UTC(+day.slice(0, 4), +day.slice(5, 7) - 1, +day.slice(8, 10)));
+  return `${WD[d.getUTCDay()]} ${d.getUTCDate()} ${MO[d.getUTCMonth()]} ${d.getUTCFullYear()}`;
+}
+export function shortDay(day) {
+  const d = new Date(Date.UTC(+day.slice(0, 4), +day.slice(5, 7) - 1, +day.slice(8, 10)));
+  return `${WD[d.getUTCDay()].slice(0, 3)} ${d.getUTCDate()} ${MO[d.getUTCMonth()].slice(0, 3)}`;
+}
+
+// query builds a path with search parameters, leaving out empty ones.
+export function query(path, params) {
+  const q = new URLSearchParams();
+  for (const [k, v] of Object.entries(params)) if (v !== undefined && v !== null && v !== '') q.set(k, v);
+  const s = q.toString();
+  return s ? `${path}?${s}` : path;
+}
+
+// recordSummary describes a record in a line, for a flag's inputs.
+export function recordSummary(r, units) {
+  const b = r.body || {};
+  const list = (xs, u) => (Array.isArray(xs) ? xs.map((x) => fmtN(x, 1)).join(', ') + ' ' + u : '');
+  switch (r.kind) {
+    case 'checkin': {
+      const parts = [];
+      if (b.mass_kg != null) parts.push(`mass ${mass(b.mass_kg, units)}`);
+      const w = ['sleep', 'fatigue', 'soreness', 'stress', 'mood'].filter((k) => b[k] != null);
+      if (w.length) parts.push('wellness ' + w.map((k) => `${k} ${b[k]}`).join(', '));
+      if (b.sleep_h != null) parts.push(`slept ${b.sleep_h} h`);
+      if (b.rhr_bpm != null) parts.push(`resting HR ${b.rhr_bpm} bpm`);
+      if (b.usg != null) parts.push(`USG ${Number(b.usg).toFixed(3)}`);
+      return 'Check-in: ' + (parts.join('; ') || 'note only');
+    }
+    case 'jump': return `CMJ: ${b.heights_cm ? list(b.heights_cm, 'cm') : list(b.flight_ms, 'ms flight')}${b.best_cm ? `; best ${fmtN(b.best_cm)} cm, mean ${fmtN(b.mean_cm)} cm` : ''}`;
+    case 'round': return `Round: ${b.activity || ''}, intensity ${b.intensity || '–'} of 3, ${Math.round((b.seconds || 0) / 60)} min${b.partner ? `, with ${b.partner}` : ''}`;
+    case 'session': return `Session: ${b.type || ''}${b.focus ? ` (${b.focus.replace('_', ' ')})` : ''}, ${b.minutes} min at RPE ${b.rpe} = ${Math.round((b.rpe || 0) * (b.minutes || 0))} AU`;
+    case 'intervals': return `Intervals: ${b.modality || ''} ${b.reps || ''}×${b.work_s || ''} s / ${b.rest_s || ''} s${b.rpe != null ? `, RPE ${b.rpe}` : ''}`;
+    case 'incident': return `Incident: ${(b.type || '').replace('_', ' ')}${b.note ? ` — ${b.note}` : ''}`;
+    case 'clearance': return `Clearance${b.by ? ` by ${b.by}` : ''}${b.note ? ` — ${b.note}` : ''}`;
+    case 'bout': return `Bout plan: camp ${b.camp_start}, bout ${b.bout_day}, limit ${mass(b.limit_kg, units)}`;
+    case 'decision': return `Decision: ${b.note}`;
+    default: return r.kind;
+  }
+}
+
+// The mass caution, shown wherever the plan or the charts speak of mass.
+export const MASS_CAUTION = 'Acute weight loss is supervised by a sports dietitian or physician and follows the sanctioning body\'s rules and local law. These numbers are prompts for the coach\'s judgement, never a reason to cut faster.';

@@ -1,0 +1,303 @@
+// Camp plan: one fighter's bout set-up, the week-by-week load levels and
+// sparring caps, and the planned mass path. The hub generates the default
+// plan and checks it in plain words; the bout is saved as a record through
+// the device's store like every other entry.
+import { html, useState, useEffect, useRef, useAthletes, useVersion, useAsync, Link, SaveLine, savedState, Choice } from '../ui.js';
+import { save, byKind } from '../db.js';
+import { toKg, roundTo, parseNum } from '../record.js';
+import { hubGet, hubPost, getTables } from './api.js';
+import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
+
+const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium-heavy', heavy: 'Heavy', taper: 'Taper' };
+const dayOfNumber = (n) => new Date(n * 86400000).toISOString().slice(0, 10);
+
+// zoneOffset is the UTC offset (minutes) of an IANA zone at a wall-clock
+// time there, found with the browser's own time-zone data.
+export function zoneOffset(zone, date, time) {
+  const [y, mo, d] = date.split('-').map(Number);
+  const [hh, mm] = time.split(':').map(Number);
+  const wall = Date.UTC(y, mo - 1, d, hh, mm);
+  const fmt = new Intl.DateTimeFormat('en-US', { timeZone: zone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit' });
+  const at = (ms) => {
+    const p = Object.fromEntries(fmt.formatToParts(new Date(ms)).map((x) => [x.type, x.value]));
+    return (Date.UTC(+p.year, +p.month - 1, +p.day, +p.hour % 24, +p.minute) - ms) / 60000;
+  };
+  let off = at(wall);
+  off = at(wall - off * 60000);
+  return off;
+}
+
+export function weighInRFC3339(zone, date, time) {
+  const off = zoneOffset(zone, date, time);
+  const a = Math.abs(off);
+  const pad = (n) => String(n).padStart(2, '0');
+  return `${date}T${time}:00${off >= 0 ? '+' : '-'}${pad(Math.floor(a / 60))}:${pad(a % 60)}`;
+}
+
+const deviceZone = () => { try { return Intl.DateTimeFormat().resolvedOptions().timeZone || 'UTC'; } catch (_) { return 'UTC'; } };
+const zones = () => { try { return Intl.supportedValuesOf('timeZone'); } catch (_) { return ['UTC']; } };
+
+// formFromBout fills the form from a stored bout record.
+function formFromBout(b, units) {
+  const wi = b.weigh_in || '';
+  return {
+    name: b.name || '', camp_start: b.camp_start || '', bout_day: b.bout_day || '',
+    wi_date: wi.slice(0, 10), wi_time: wi.slice(11, 16) || '09:00', zone: b.weigh_in_zone || deviceZone(),
+    weigh_in_type: b.weigh_in_type || 'day_before', weight_class: b.weight_class || (b.limit_kg ? 'custom' : ''),
+    limit: b.weight_class === 'custom' || !b.weight_class ? (b.limit_kg ? fmtN(massNum(b.limit_kg, units), 1) : '') : '',
+    start_mass: b.start_mass_kg ? fmtN(massNum(b.start_mass_kg, units), 1) : '', ref_load: b.reference_load_au ? String(b.reference_load_au) : '',
+    weeks: b.weeks || [], knots: (b.path || []).map((k) => ({ day: k.day, mass: fmtN(massNum(k.mass_kg, units), 1) })),
+  };
+}
+
+function blank() {
+  const start = addDays(today(), 7);
+  return { name: '', camp_start: start, bout_day: '', wi_date: '', wi_time: '09:00', zone: deviceZone(), weigh_in_type: 'day_before', weight_class: '', limit: '', start_mass: '', ref_load: '', weeks: [], knots: [] };
+}
+
+// bodyFromForm builds the bout body, or lists what is missing.
+function bodyFromForm(f, units) {
+  const errs = [];
+  const b = {};
+  if (f.name.trim()) b.name = f.name.trim();
+  if (!isDay(f.camp_start)) errs.push('Camp start: pick the first day of the camp.'); else b.camp_start = f.camp_start;
+  if (!isDay(f.bout_day)) errs.push('Bout day: pick the day of the bout.'); else b.bout_day = f.bout_day;
+  if (!isDay(f.wi_date) || !/^\d{2}:\d{2}$/.test(f.wi_time)) errs.push('Weigh-in: pick its date and time.');
+  else {
+    try { b.weigh_in = weighInRFC3339(f.zone, f.wi_date, f.wi_time); b.weigh_in_zone = f.zone; } catch (_) { errs.push(`Weigh-in time zone: "${f.zone}" is not a time zone this device knows (e.g. Europe/Lisbon).`); }
+  }
+  b.weigh_in_type = f.weigh_in_type;
+  if (!f.weight_class) errs.push('Weight class: pick a class or "custom limit".');
+  else if (f.weight_class === 'custom') {
+    const v = parseNum(f.limit);
+    if (!Number.isFinite(v)) errs.push(`Custom limit: type the weigh-in limit in ${units}.`);
+    else { b.weight_class = 'custom'; b.limit_kg = roundTo(toKg(v, units), 3); }
+  } else b.weight_class = f.weight_class;
+  const sm = parseNum(f.start_mass);
+  if (!Number.isFinite(sm)) errs.push(`Start mass: type the morning mass at camp start in ${units}.`); else b.start_mass_kg = roundTo(toKg(sm, units), 3);
+  if (f.ref_load !== '') {
+    const r = parseNum(f.ref_load);
+    if (!Number.isFinite(r) || r < 0) errs.push('Reference weekly load: a number of AU per week (session RPE × minutes, summed over a usual heavy week).');
+    else b.reference_load_au = r;
+  }
+  if (f.weeks.length) b.weeks = f.weeks.map((w, i) => ({ week: i + 1, level: w.level, ...(w.spar_cap_rounds !== undefined && w.spar_cap_rounds !== '' ? { spar_cap_rounds: Number(w.spar_cap_rounds) } : {}) }));
+  if (f.knots.length) {
+    const ks = [];
+    f.knots.forEach((k, i) => {
+      const v = parseNum(k.mass);
+      if (!isDay(k.day) || !Number.isFinite(v)) errs.push(`Path point ${i + 1}: needs a day and a mass in ${units}.`);
+      else ks.push({ day: k.day, mass_kg: roundTo(toKg(v, units), 3) });
+    });
+    b.path = ks;
+  }
+  return { body: b, errs };
+}
+
+function useBouts(athlete) {
+  const v = useVersion();
+  return useAsync(async () => {
+    if (!athlete) return [];
+    return (await byKind('bout')).filter((r) => r.athlete === athlete && !r.deleted).sort((a, b) => (b.body.bout_day || '').localeCompare(a.body.bout_day || ''));
+  }, [athlete, v], null);
+}
+
+export function Plan() {
+  const p = new URLSearchParams(location.search);
+  const list = useAthletes();
+  const [aid, setAid] = useState(p.get('athlete') || '');
+  const a = (list || []).find((x) => x.id === aid);
+  const units = a ? a.units : 'kg';
+  const bouts = useBouts(aid);
+  const [boutId, setBoutId] = useState(p.get('bout') || '');
+  const [f, setF] = useState(blank);
+  const [loadedFor, setLoadedFor] = useState('');
+  const tables = useAsync(() => getTables().catch(() => null), [], null);
+  const [check, setCheck] = useState(null);
+  const [state, setState] = useState(null);
+  const [gen, setGen] = useState(null);
+
+  useEffect(() => { history.replaceState(null, '', query('/plan', { athlete: aid, bout: boutId })); }, [aid, boutId]);
+  // Open the fighter's current bout (or the one asked for) once it is known.
+  useEffect(() => {
+    if (!bouts || !a || loadedFor === aid + '|' + boutId) return;
+    const r = boutId === 'new' ? null : (bouts.find((x) => x.id === boutId) || bouts[0]);
+    setF(r ? formFromBout(r.body, units) : blank());
+    if (r && boutId !== r.id) setBoutId(r.id);
+    setLoadedFor(aid + '|' + (r ? r.id : boutId));
+    setState(null);
+  }, [bouts, a, aid, boutId]);
+
+  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  const { body, errs } = bodyFromForm(f, units);
+
+  // Ask the hub to check the plan as it is edited.
+  const timer = useRef(null);
+  useEffect(() => {
+    clearTimeout(timer.current);
+    if (errs.length) { setCheck(null); return; }
+    timer.current = setTimeout(() => {
+      hubPost('/api/plan/check', { athlete: aid, bout: body }).then((c) => setCheck({ ...c, for: JSON.stringify(body) }), (e) => setCheck({ error: e.message }));
+    }, 300);
+  }, [JSON.stringify(body), aid]);
+
+  const generate = async () => {
+    if (!isDay(f.camp_start) || !isDay(f.bout_day)) return setGen({ error: 'Pick the camp start and the bout day first.' });
+    setGen({ busy: true });
+    try {
+      const d = await hubGet(query('/api/plan/default', { camp_start: f.camp_start, bout_day: f.bout_day, athlete: aid }));
+      setF((o) => ({ ...o, weeks: d.weeks.map((w) => ({ level: w.level, spar_cap_rounds: w.spar_cap_rounds })) }));
+      setGen({ done: true });
+    } catch (e) { setGen({ error: e.message }); }
+  };
+
+  const submit = async (e) => {
+    e.preventDefault();
+    if (!a) return setState({ error: 'Choose the athlete first.' });
+    if (errs.length) return setState({ error: errs.join(' ') });
+    if (check && check.invalid) return setState({ error: `The hub would refuse this bout: ${check.field ? check.field.replace('body.', '') + ' ' : ''}${check.invalid}` });
+    setState({ saving: true });
+    try {
+      const rec = await save({ id: boutId && boutId !== 'new' ? boutId : undefined, kind: 'bout', athlete: a.id, body });
+      setBoutId(rec.id);
+      setLoadedFor(aid + '|' + rec.id);
+      setState(savedState('Plan saved on this device; it syncs to the hub by itself'));
+    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+  };
+
+  const classes = tables ? tables.classes : [];
+  const groups = groupClasses(classes);
+  const fractions = levelFractions(tables);
+  const ref = parseNum(f.ref_load);
+  const cls = classes.find((c) => c.id === f.weight_class);
+  const weekStart = (i) => (isDay(f.camp_start) ? addDays(f.camp_start, 7 * i) : '');
+
+  return html`<form class="coach" data-testid="screen-plan" onSubmit=${submit} novalidate>
+    <h1>Camp plan</h1>
+    <div class="filters">
+      <div class="field"><label for="plan-athlete">Fighter</label>
+        <select id="plan-athlete" data-testid="plan-athlete" value=${aid} onChange=${(e) => { setAid(e.target.value); setBoutId(''); setLoadedFor(''); }}>
+          <option value="">Choose…</option>${(list || []).map((x) => html`<option value=${x.id}>${x.name}</option>`)}
+        </select></div>
+      ${a && html`<div class="field"><label for="plan-bout">Bout</label>
+        <select id="plan-bout" data-testid="plan-bout" value=${boutId || 'new'} onChange=${(e) => { setBoutId(e.target.value); setLoadedFor(''); }}>
+          ${(bouts || []).map((r) => html`<option value=${r.id}>${r.body.name || 'Bout'} — ${r.body.bout_day}</option>`)}
+          <option value="new">Set up a new bout…</option>
+        </select></div>`}
+    </div>
+    ${!a && html`<p class="muted">Choose the fighter whose camp you are planning.</p>`}
+    ${a && html`
+    <h2>The bout</h2>
+    <div class="plan-grid">
+      <div><label for="plan-name">Name (optional)</label><input id="plan-name" data-testid="plan-name" value=${f.name} placeholder="e.g. Town hall card, 6 rounds" onInput=${(e) => set('name', e.target.value)} /></div>
+      <div><label for="plan-camp-start">Camp start</label><input id="plan-camp-start" type="date" data-testid="plan-camp-start" value=${f.camp_start} onInput=${(e) => set('camp_start', e.target.value)} /></div>
+      <div><label for="plan-bout-day">Bout day</label><input id="plan-bout-day" type="date" data-testid="plan-bout-day" value=${f.bout_day} onInput=${(e) => set('bout_day', e.target.value)} /></div>
+      <div><span class="label">Weigh-in</span><div class="row" role="group" aria-label="Weigh-in type">
+        <${Choice} value="day_before" current=${f.weigh_in_type} onPick=${(v) => set('weigh_in_type', v)} testid="plan-wi-day_before">Day before</${Choice}>
+        <${Choice} value="same_day" current=${f.weigh_in_type} onPick=${(v) => set('weigh_in_type', v)} testid="plan-wi-same_day">Same day</${Choice}>
+      </div></div>
+      <div><label for="plan-wi-date">Weigh-in date</label><input id="plan-wi-date" type="date" data-testid="plan-wi-date" value=${f.wi_date} onInput=${(e) => set('wi_date', e.target.value)} /></div>
+      <div><label for="plan-wi-time">Weigh-in time (venue clock)</label><input id="plan-wi-time" type="time" data-testid="plan-wi-time" value=${f.wi_time} onInput=${(e) => set('wi_time', e.target.value)} /></div>
+      <div><label for="plan-zone">Venue time zone</label><input id="plan-zone" data-testid="plan-zone" list="plan-zones" value=${f.zone} onInput=${(e) => set('zone', e.target.value.trim())} />
+        <datalist id="plan-zones">${zones().map((z) => html`<option value=${z} />`)}</datalist></div>
+      <div><label for="plan-class">Weight class</label>
+        <select id="plan-class" data-testid="plan-class" value=${f.weight_class} onChange=${(e) => set('weight_class', e.target.value)}>
+          <option value="">Choose…</option>
+          ${groups.map(([g, cs]) => html`<optgroup label=${g}>${cs.map((c) => html`<option value=${c.id}>${classLabel(c)}</option>`)}</optgroup>`)}
+          <option value="custom">Custom limit (catchweight)</option>
+        </select>
+        ${cls && html`<p class="small muted" data-testid="plan-class-limit">${cls.limit ? `Limit ${fmtN(cls.limit, cls.unit === 'lb' ? 0 : 0)} ${cls.unit} = ${mass(cls.limit_kg, units, 2)}${units === 'kg' ? '' : ` (${fmtN(cls.limit_kg, 2)} kg)`}` : 'No upper limit: the mass rules do not apply.'}${cls.recalled ? ' · limit recalled, check the sanctioning body\'s current table' : ''}</p>`}
+      </div>
+      ${f.weight_class === 'custom' && html`<div><label for="plan-limit">Custom limit</label><div class="unit-input"><input id="plan-limit" data-testid="plan-limit" inputmode="decimal" value=${f.limit} onInput=${(e) => set('limit', e.target.value)} /><span class="unit">${units}</span></div></div>`}
+      <div><label for="plan-start-mass">Start mass (morning, at camp start)</label><div class="unit-input"><input id="plan-start-mass" data-testid="plan-start-mass" inputmode="decimal" value=${f.start_mass} onInput=${(e) => set('start_mass', e.target.value)} /><span class="unit">${units}</span></div></div>
+      <div><label for="plan-ref-load">Reference weekly load</label><div class="unit-input"><input id="plan-ref-load" data-testid="plan-ref-load" inputmode="numeric" value=${f.ref_load} placeholder="e.g. 3400" onInput=${(e) => set('ref_load', e.target.value)} /><span class="unit">AU/week</span></div>
+        <p class="small muted">A usual heavy week: the sum of session RPE × minutes.</p></div>
+    </div>
+    <p class="caution" data-testid="plan-mass-caution">${MASS_CAUTION}</p>
+
+    <h2>Weeks</h2>
+    <div class="row">
+      <button type="button" class="secondary" data-testid="plan-generate" onClick=${generate} disabled=${gen && gen.busy}>${f.weeks.length ? 'Start again from the default plan' : 'Make the default plan'}</button>
+    </div>
+    ${gen && gen.error && html`<p class="error" data-testid="plan-generate-error">${gen.error}</p>`}
+    ${!f.weeks.length && html`<p class="muted small">The default plan steps the load up for three weeks, eases off in the fourth, and tapers in the final week. You can change every week after.</p>`}
+    ${f.weeks.length > 0 && html`<div class="weeks" data-testid="plan-weeks" role="table" aria-label="Planned weeks">
+      <div class="wrow whead" role="row"><span role="columnheader">Week</span><span role="columnheader">Load level</span><span role="columnheader">Sparring cap, rounds</span></div>
+      ${f.weeks.map((w, i) => html`<div class="wrow" role="row" data-testid=${`plan-week-${i + 1}`} data-level=${w.level}>
+        <span class="wk" role="cell"><strong>${i + 1}</strong><br /><span class="small muted">${weekStart(i) ? shortDay(weekStart(i)) : ''}</span></span>
+        <span role="cell"><select data-testid=${`plan-week-${i + 1}-level`} aria-label=${`Week ${i + 1} load level`} value=${w.level}
+          onChange=${(e) => set('weeks', f.weeks.map((x, j) => (j === i ? { ...x, level: e.target.value } : x)))}>
+          ${Object.entries(LEVEL_WORDS).map(([k, t]) => html`<option value=${k}>${t}</option>`)}</select>
+          ${fractions[w.level] !== undefined && html`<span class="au">${fmtN(fractions[w.level] * 100, 0)} % of reference${Number.isFinite(ref) && ref > 0 ? ` ≈ ${fmtN(fractions[w.level] * ref, 0)} AU` : ''}</span>`}</span>
+        <span role="cell"><input data-testid=${`plan-week-${i + 1}-cap`} aria-label=${`Week ${i + 1} sparring cap, rounds`} inputmode="numeric" value=${w.spar_cap_rounds ?? ''}
+          onInput=${(e) => set('weeks', f.weeks.map((x, j) => (j === i ? { ...x, spar_cap_rounds: e.target.value === '' ? '' : Number(e.target.value) } : x)))} /></span>
+      </div>`)}
+    </div>`}
+    ${check && check.taper_cut_pct != null && html`<p class="taper" data-testid="plan-taper-cut" data-pct=${check.taper_cut_pct}>Taper week: load cut by <strong>${fmtN(check.taper_cut_pct, 0)} %</strong> of the reference week (a 41–60 % cut is the range found to work best; Bosquet et al. 2007).</p>`}
+
+    <h2>Planned mass path</h2>
+    <${PathView} check=${check} units=${units} f=${f} set=${set} />
+
+    <h2>Checks</h2>
+    <${Checks} check=${check} errs=${errs} />
+
+    <button class="primary" type="submit" data-testid="plan-save" disabled=${state && state.saving}>${boutId && boutId !== 'new' ? 'Save the changes' : 'Save the plan'}</button>
+    <${SaveLine} state=${state} />
+    <p class="links"><${Link} to=${query('/athlete', { id: aid })} class="secondary linkbtn" data-testid="plan-to-charts">Charts of ${a.name}</${Link}></p>`}
+  </form>`;
+}
+
+function PathView({ check, units, f, set }) {
+  const path = check && Array.isArray(check.path) ? check.path.map((k) => ({ day: dayOfNumber(k.Day), mass_kg: k.MassKg })) : [];
+  const editing = f.knots.length > 0;
+  const startEdit = () => set('knots', path.map((k) => ({ day: k.day, mass: fmtN(massNum(k.mass_kg, units), 1) })));
+  return html`<div data-testid="plan-path">
+    ${!editing && html`<p class="small muted">${path.length ? 'The default path: a straight line from the start mass to the final-phase mass, then to the limit at the weigh-in.' : 'The path appears once the bout, limit and start mass are filled in.'}</p>`}
+    ${!editing && path.length > 0 && html`<ul class="issues">${path.map((k) => html`<li data-testid="plan-path-point"><span class="num">${longDay(k.day)}</span>: ${mass(k.mass_kg, units)}</li>`)}</ul>
+      <button type="button" class="secondary" data-testid="plan-path-edit" onClick=${startEdit}>Edit the path points</button>`}
+    ${editing && html`<div class="knots">
+      ${f.knots.map((k, i) => html`<div class="knot" data-testid=${`plan-knot-${i + 1}`}>
+        <div><label for=${`knot-d-${i}`}>Day</label><input id=${`knot-d-${i}`} type="date" data-testid=${`plan-knot-${i + 1}-day`} value=${k.day} onInput=${(e) => set('knots', f.knots.map((x, j) => (j === i ? { ...x, day: e.target.value } : x)))} /></div>
+        <div><label for=${`knot-m-${i}`}>Mass (${units})</label><input id=${`knot-m-${i}`} inputmode="decimal" data-testid=${`plan-knot-${i + 1}-mass`} value=${k.mass} onInput=${(e) => set('knots', f.knots.map((x, j) => (j === i ? { ...x, mass: e.target.value } : x)))} /></div>
+        <button type="button" class="secondary" aria-label=${`Remove path point ${i + 1}`} data-testid=${`plan-knot-${i + 1}-remove`} onClick=${() => set('knots', f.knots.filter((_, j) => j !== i))}>✕</button>
+      </div>`)}
+      <div class="row">
+        <button type="button" class="secondary" data-testid="plan-knot-add" onClick=${() => set('knots', [...f.knots, { day: f.knots.length ? f.knots[f.knots.length - 1].day : f.camp_start, mass: '' }])}>Add a point</button>
+        <button type="button" class="secondary" data-testid="plan-path-default" onClick=${() => set('knots', [])}>Back to the default path</button>
+      </div>
+    </div>`}
+  </div>`;
+}
+
+function Checks({ check, errs }) {
+  if (errs.length) return html`<ul class="issues" data-testid="plan-missing">${errs.map((e) => html`<li>${e}</li>`)}</ul>`;
+  if (!check) return html`<p class="muted small">Checking with the hub…</p>`;
+  if (check.error) return html`<p class="error" data-testid="plan-check-error">The plan cannot be checked: ${check.error}. It can still be saved; the hub checks it when it arrives.</p>`;
+  if (check.invalid) return html`<p class="error" data-testid="plan-invalid">The hub would refuse this bout — ${check.field ? html`<code>${check.field.replace('body.', '')}</code> ` : ''}${check.invalid}</p>`;
+  if (!check.issues.length) return html`<p class="okline" data-testid="plan-ok">Nothing to point out in this plan.</p>`;
+  return html`<ul class="issues" data-testid="plan-issues">${check.issues.map((i) => html`<li class=${i.level} data-testid="plan-issue" data-level=${i.level} data-field=${i.field}>
+    <span class="field">${i.level === 'watch' ? 'Look at this' : 'Worth knowing'} · ${i.field.replace('body.', '')}${i.threshold ? ` · ${i.threshold}` : ''}</span>
+    ${i.message}${i.caution ? html`<span class="small muted" style="display:block;margin-top:4px">${i.caution}</span>` : ''}</li>`)}</ul>`;
+}
+
+function classLabel(c) {
+  const lim = c.limit ? `${c.limit} ${c.unit}` : `over ${c.over} ${c.unit}`;
+  return `${c.label} — ${lim}`;
+}
+
+const PROGRAMS = { pro: 'Professional (lb)', olympic_2024: 'Olympic 2024 (kg)', world_boxing_2025: 'World Boxing 2025 (kg)' };
+function groupClasses(classes) {
+  const out = new Map();
+  for (const c of classes) {
+    const g = `${PROGRAMS[c.program] || c.program}${c.sex === 'f' ? ', women' : c.sex === 'm' ? ', men' : ''}`;
+    if (!out.has(g)) out.set(g, []);
+    out.get(g).push(c);
+  }
+  return [...out.entries()];
+}
+
+function levelFractions(tables) {
+  const out = {};
+  const r = tables && tables.rules && tables.rules.find((x) => x.id === 'off_plan');
+  if (r) for (const p of r.params) if (p.name.startsWith('level_')) out[p.name.slice(6)] = p.default;
+  return out;
+}

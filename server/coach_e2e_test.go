@@ -1,0 +1,520 @@
+// Browser tests of the coach's screens (day board, fighter charts, camp
+// plan, wall sheet) against the real hub on loopback holding the demo
+// camp, in headless Chromium through pwa/pwatest.
+package server_test
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"net/http"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/emulation"
+	"github.com/chromedp/chromedp"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"cornerbook/pwa/pwatest"
+	"cornerbook/server"
+	"cornerbook/server/demo"
+	"cornerbook/server/flags"
+	"cornerbook/storage"
+	devsync "cornerbook/sync"
+)
+
+// coachDay is the demo camp's last day (the golden demo day). The hub runs
+// on the real clock so the browsers' stamps are never refused as skewed;
+// the screens are opened on explicit days of the demo.
+var coachDay = demoToday.Format("2006-01-02")
+
+type coachHub struct {
+	t    testing.TB
+	db   *storage.DB
+	srv  *server.Server
+	addr string
+}
+
+func startCoachHub(t testing.TB) *coachHub {
+	t.Helper()
+	db, err := server.OpenStore(filepath.Join(t.TempDir(), "hub.db"), nil)
+	require.NoError(t, err)
+	n, err := demo.SeedIfEmpty(db, demoToday)
+	require.NoError(t, err)
+	require.Greater(t, n, 1000)
+	srv, err := server.New(server.Config{Store: db, Location: time.UTC})
+	require.NoError(t, err)
+	require.NoError(t, srv.Open("127.0.0.1:0"))
+	h := &coachHub{t: t, db: db, srv: srv, addr: srv.Addr()}
+	t.Cleanup(func() {
+		srv.Close()
+		require.NoError(t, db.Check())
+		db.Close()
+	})
+	return h
+}
+
+func (h *coachHub) url(p string) string { return "http://" + h.addr + p }
+
+// ids maps the demo athletes' names to their ids.
+func (h *coachHub) ids() map[string]string {
+	out := map[string]string{}
+	for id, name := range h.srv.AthleteNames() {
+		out[name] = id
+	}
+	return out
+}
+
+// coachBrowser opens the app in a fresh profile, at a laptop-sized
+// viewport, and waits for the first sync (the whole demo camp) to land.
+func coachBrowser(t testing.TB, h *coachHub, path string) context.Context {
+	t.Helper()
+	log := &e2eLogBuf{}
+	b := pwatest.Start(t, pwatest.Options{Log: log})
+	t.Cleanup(func() {
+		if t.Failed() {
+			t.Logf("page console:\n%s", log.String())
+		}
+	})
+	ctx, cancel := context.WithTimeout(b.Ctx(), 120*time.Second)
+	t.Cleanup(cancel)
+	require.NoError(t, chromedp.Do(ctx, chromedp.EmulateViewport(1280, 800)))
+	require.NoError(t, pwatest.Open(ctx, h.url(path)))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	return ctx
+}
+
+// e2eLogBuf collects a page's console.
+type e2eLogBuf struct{ strings.Builder }
+
+func (l *e2eLogBuf) Write(p []byte) (int, error) { return l.Builder.Write(p) }
+
+// coachSet sets a form control's value as a user's pick does (date and
+// time inputs, selects) and fires input and change.
+func coachSet(ctx context.Context, testid, value string) error {
+	sel := pwatest.Q(testid)
+	if err := pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector(%q)`, sel), 10*time.Second); err != nil {
+		return err
+	}
+	v, _ := json.Marshal(value)
+	return pwatest.Eval(ctx, fmt.Sprintf(`(() => { const e = document.querySelector(%q);
+		const proto = e.tagName === 'SELECT' ? HTMLSelectElement.prototype : e.tagName === 'TEXTAREA' ? HTMLTextAreaElement.prototype : HTMLInputElement.prototype;
+		Object.getOwnPropertyDescriptor(proto, 'value').set.call(e, %s);
+		e.dispatchEvent(new Event('input', { bubbles: true })); e.dispatchEvent(new Event('change', { bubbles: true })); return true })()`, sel, v), nil)
+}
+
+// coachGet reads one JSON answer from the hub.
+func coachGet(url string) ([]byte, error) {
+	res, err := http.Get(url)
+	if err != nil {
+		return nil, err
+	}
+	defer res.Body.Close()
+	if res.StatusCode != http.StatusOK {
+		return nil, fmt.Errorf("GET %s: %s", url, res.Status)
+	}
+	return io.ReadAll(res.Body)
+}
+
+// levelOf is the card state a flag is shown in.
+func levelOf(f flags.Flag) string {
+	if f.Status == flags.StatusForming {
+		return "forming"
+	}
+	return f.Level
+}
+
+// shownNumber is a flag number as the card shows it: masses in the
+// athlete's units (1 lb = 0.45359237 kg exactly, by the 1959 definition),
+// other units at the decimals the reasons use.
+func shownNumber(v float64, unit, units string) string {
+	switch unit {
+	case "kg":
+		if units == "lb" {
+			return fmt.Sprintf("%.1f lb", v/0.45359237)
+		}
+		return fmt.Sprintf("%.1f kg", v)
+	case "cm":
+		return fmt.Sprintf("%.1f cm", v)
+	case "%":
+		return fmt.Sprintf("%.1f %%", v)
+	case "%/week":
+		return fmt.Sprintf("%.2f %%/week", v)
+	case "ratio":
+		return fmt.Sprintf("%.2f", v)
+	case "USG":
+		return fmt.Sprintf("%.3f", v)
+	case "AU":
+		return fmt.Sprintf("%.0f AU", v)
+	}
+	return ""
+}
+
+type shownCard struct {
+	Rule, Athlete, Level, Reason, Numbers, Caution, Threshold string
+	Decided                                                   string
+}
+
+func readCards(ctx context.Context) ([]shownCard, error) {
+	var out []shownCard
+	err := pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid="flag"]')].map((c) => ({
+		Rule: c.dataset.rule, Athlete: c.dataset.athlete, Level: c.dataset.level, Decided: c.dataset.decided,
+		Reason: (c.querySelector('[data-testid="flag-reason"]') || {}).textContent || '',
+		Numbers: (c.querySelector('[data-testid="flag-numbers"]') || {}).textContent || '',
+		Threshold: (c.querySelector('[data-testid="flag-threshold"]') || {}).textContent || '',
+		Caution: (c.querySelector('[data-testid="flag-caution"]') || {}).textContent || '' }))`, &out)
+	return out, err
+}
+
+// coveringDays picks demo days on which, together, every rule raises a flag.
+func coveringDays(t *testing.T, h *coachHub) []string {
+	need := map[string]bool{}
+	for _, r := range flags.Rules {
+		need[r] = true
+	}
+	days := []string{coachDay}
+	for i := 0; i < demo.HistoryDays && len(need) > 0; i++ {
+		day := demoToday.AddDate(0, 0, -i).Format("2006-01-02")
+		fl, err := h.srv.Flags(day, "")
+		require.NoError(t, err)
+		added := false
+		for _, f := range fl {
+			if f.Status == flags.StatusFlag && need[f.Rule] {
+				delete(need, f.Rule)
+				added = true
+			}
+		}
+		if added && day != coachDay {
+			days = append(days, day)
+		}
+	}
+	require.Empty(t, need, "the demo camp raises every rule")
+	return days
+}
+
+func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
+	h := startCoachHub(t)
+	ctx := coachBrowser(t, h, "/review?day="+coachDay)
+	units := map[string]string{}
+	for name, id := range h.ids() {
+		units[id] = "kg"
+		if name == "Tomas Varga" || name == "Mateo Lindqvist" { // the demo's pound fighters
+			units[id] = "lb"
+		}
+	}
+	seen := map[string]bool{}
+	for _, day := range coveringDays(t, h) {
+		require.NoError(t, pwatest.Route(ctx, "/review?day="+day))
+		want, err := h.srv.Flags(day, "")
+		require.NoError(t, err)
+		require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelector('[data-testid="review-day"]').value === %q && document.querySelectorAll('[data-testid="flag"]').length === %d`, day, len(want)), 10*time.Second), "day %s", day)
+		cards, err := readCards(ctx)
+		require.NoError(t, err)
+		// Every flag has its card, in the hub's order within each athlete.
+		byAthlete := map[string][]shownCard{}
+		for _, c := range cards {
+			byAthlete[c.Athlete] = append(byAthlete[c.Athlete], c)
+		}
+		wantBy := map[string][]flags.Flag{}
+		for _, f := range want {
+			wantBy[f.Athlete] = append(wantBy[f.Athlete], f)
+		}
+		for a, fs := range wantBy {
+			got := byAthlete[a]
+			require.Len(t, got, len(fs), "%s %s", day, a)
+			for i, f := range fs {
+				c := got[i]
+				assert.Equal(t, f.Rule, c.Rule, "%s %s #%d", day, a, i)
+				assert.Equal(t, levelOf(f), c.Level)
+				assert.Equal(t, f.Reason, c.Reason, "the hub's reason, word for word")
+				if f.Value != nil && shownNumber(*f.Value, f.Unit, units[a]) != "" {
+					assert.Contains(t, c.Numbers, shownNumber(*f.Value, f.Unit, units[a]), "%s %s value", day, f.Rule)
+				}
+				if f.Threshold != nil && shownNumber(*f.Threshold, f.Unit, units[a]) != "" {
+					assert.Contains(t, c.Numbers, shownNumber(*f.Threshold, f.Unit, units[a]), "%s %s threshold", day, f.Rule)
+				}
+				if f.ThresholdName != "" {
+					assert.Contains(t, c.Threshold, f.ThresholdName)
+				}
+				assert.Equal(t, f.Caution, c.Caution)
+				if f.Status == flags.StatusFlag {
+					seen[f.Rule] = true
+				}
+			}
+		}
+		// Athletes are ordered by their most serious card: alert before
+		// watch before info before "not enough data yet".
+		var order []int
+		require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid^="review-athlete-"]')].map((b) => Math.min(9, ...[...b.querySelectorAll('[data-testid="flag"]')].map((c) => ['alert','watch','info','forming'].indexOf(c.dataset.level))))`, &order))
+		for i := 1; i < len(order); i++ {
+			assert.LessOrEqual(t, order[i-1], order[i], "%s: athletes most serious first", day)
+		}
+	}
+	for _, r := range flags.Rules {
+		assert.True(t, seen[r], "a card for %s", r)
+	}
+
+	// "Not enough data yet" is its own state, never a clean bill.
+	require.NoError(t, pwatest.Route(ctx, "/review?day="+coachDay))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="flag"][data-level="forming"]')`, 10*time.Second))
+	var formingText string
+	require.NoError(t, pwatest.Eval(ctx, `document.querySelector('[data-testid="flag"][data-level="forming"]').textContent`, &formingText))
+	assert.Contains(t, formingText, "Not enough data yet")
+
+	// The inputs of a card open to the records themselves.
+	kofi := h.ids()["Kofi Brandt"]
+	fl, err := h.srv.Flags(coachDay, kofi)
+	require.NoError(t, err)
+	var jump flags.Flag
+	for _, f := range fl {
+		if f.Rule == "jump_drop" && f.Status == flags.StatusFlag {
+			jump = f
+		}
+	}
+	require.NotEmpty(t, jump.Inputs)
+	card := fmt.Sprintf(`[data-testid="flag"][data-rule="jump_drop"][data-athlete=%q]`, kofi)
+	require.NoError(t, chromedp.Do(ctx, chromedp.Click(chromedp.CSS(card+` [data-testid="flag-inputs"]`), chromedp.NodeVisible)))
+	require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`document.querySelectorAll(%q).length === %d && [...document.querySelectorAll(%q)].every((e) => e.textContent.includes('CMJ:'))`,
+		card+` [data-testid="flag-input"]`, len(jump.Inputs), card+` [data-testid="flag-input"]`), 10*time.Second))
+
+	// Filters: one athlete, one level.
+	require.NoError(t, coachSet(ctx, "review-athlete", kofi))
+	require.NoError(t, pwatest.Click(ctx, "review-level-alert"))
+	var levels []string
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="review-athlete-"]').length === 1`, 5*time.Second))
+	require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid="flag"]')].map((c) => c.dataset.level + ' ' + c.dataset.athlete)`, &levels))
+	require.NotEmpty(t, levels)
+	for _, l := range levels {
+		assert.Equal(t, "alert "+kofi, l)
+	}
+}
+
+func TestCoachDecisionIsSeenFromASecondDevice(t *testing.T) {
+	h := startCoachHub(t)
+	kofi := h.ids()["Kofi Brandt"]
+	a := coachBrowser(t, h, "/review?day="+coachDay)
+	b := coachBrowser(t, h, "/review?day="+coachDay)
+	card := fmt.Sprintf(`[data-testid="flag"][data-rule="jump_drop"][data-athlete=%q]`, kofi)
+	for _, ctx := range []context.Context{a, b} {
+		require.NoError(t, pwatest.Poll(ctx, `document.querySelector('`+card+`')`, 10*time.Second))
+	}
+	require.NoError(t, chromedp.Do(a, chromedp.Click(chromedp.CSS(card+` [data-testid="flag-decide"]`), chromedp.NodeVisible)))
+	require.NoError(t, pwatest.Poll(a, `document.querySelector('`+card+` [data-testid="decision-note"]')`, 5*time.Second))
+	note := "No hard sparring today; technical pads only"
+	require.NoError(t, chromedp.Do(a, chromedp.SendKeys(chromedp.CSS(card+` [data-testid="decision-note"]`), note, chromedp.NodeVisible)))
+	require.NoError(t, chromedp.Do(a, chromedp.SendKeys(chromedp.CSS(card+` [data-testid="decision-by"]`), "S&C coach", chromedp.NodeVisible)))
+	require.NoError(t, chromedp.Do(a, chromedp.Click(chromedp.CSS(card+` [data-testid="decision-save"]`), chromedp.NodeVisible)))
+
+	// The second device shows it beside the flag, from the hub, without reload.
+	require.NoError(t, pwatest.Eval(b, `(() => { window.__same = true; return true })()`, nil))
+	require.NoError(t, pwatest.Poll(b, `(() => { const d = document.querySelector('`+card+` [data-testid="flag-decision"]'); return d && d.dataset.state === 'hub' && d.textContent.includes('`+note+`') && d.textContent.includes('S&C coach') })()`, 20*time.Second))
+	var same bool
+	require.NoError(t, pwatest.Eval(b, `window.__same === true`, &same))
+	assert.True(t, same, "no reload on the second device")
+	require.NoError(t, pwatest.Poll(a, `document.querySelector('`+card+` [data-testid="flag-decision"][data-state="hub"]')`, 10*time.Second))
+
+	// On the hub: a decision record for that athlete and day, attached to the flag.
+	fl, err := h.srv.Flags(coachDay, kofi)
+	require.NoError(t, err)
+	var dec *flags.DecisionRef
+	for _, f := range fl {
+		if f.Rule == "jump_drop" {
+			dec = f.Decision
+		}
+	}
+	require.NotNil(t, dec)
+	assert.Equal(t, note, dec.Note)
+	assert.Equal(t, "S&C coach", dec.By)
+	rec, err := h.db.Get(dec.ID)
+	require.NoError(t, err)
+	assert.Equal(t, "decision", rec.Kind)
+	assert.Equal(t, kofi, rec.Athlete)
+	assert.Equal(t, coachDay, rec.Day)
+	var body map[string]any
+	require.NoError(t, json.Unmarshal(rec.Body, &body))
+	assert.Equal(t, "jump_drop", body["rule"])
+}
+
+func TestCoachAthletePageDrawsAllFiveCharts(t *testing.T) {
+	h := startCoachHub(t)
+	tomas := h.ids()["Tomas Varga"]
+	ctx := coachBrowser(t, h, "/athlete?id="+tomas+"&day="+coachDay)
+	charts := []string{"chart-mass", "chart-jump", "chart-load", "chart-spar", "chart-wellness"}
+	for _, c := range charts {
+		require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`(() => { const e = document.querySelector(%q); if (!e) return false;
+			const cv = e.querySelector('canvas'); return !!cv && cv.width > 0 && cv.height > 0 && Number(e.dataset.points) > 0 && Number(e.dataset.series) >= 3 })()`, pwatest.Q(c)), 15*time.Second), c)
+		var title string
+		require.NoError(t, pwatest.Eval(ctx, fmt.Sprintf(`document.querySelector(%q).querySelector('h2').textContent`, pwatest.Q(c)), &title))
+		assert.NotEmpty(t, title)
+		sum, err := pwatest.Text(ctx, c+"-summary")
+		require.NoError(t, err)
+		assert.NotEmpty(t, sum, "%s has a text summary", c)
+	}
+	// uPlot is loaded on this page only: the app shell does not carry it.
+	var scripts []string
+	require.NoError(t, pwatest.Eval(ctx, `performance.getEntriesByType('resource').map((e) => new URL(e.name).pathname).filter((p) => p.includes('uplot'))`, &scripts))
+	assert.Contains(t, scripts, "/vendor/uplot/uPlot.esm.js")
+
+	// The mass summary speaks pounds for a pound fighter, converted exactly.
+	in, err := coachGet(h.url("/api/athletes/" + tomas + "/series?from=" + demoToday.AddDate(0, 0, -41).Format("2006-01-02") + "&to=" + coachDay))
+	require.NoError(t, err)
+	var s struct {
+		Units string
+		Mass  struct {
+			MorningKg  []*float64 `json:"morning_kg"`
+			WeighInDay string     `json:"weigh_in_day"`
+		}
+	}
+	require.NoError(t, json.Unmarshal(in, &s))
+	require.Equal(t, "lb", s.Units)
+	lastKg := *s.Mass.MorningKg[len(s.Mass.MorningKg)-1]
+	sum, err := pwatest.Text(ctx, "chart-mass-summary")
+	require.NoError(t, err)
+	assert.Contains(t, sum, fmt.Sprintf("Latest morning mass %.1f lb", lastKg/0.45359237))
+	assert.Contains(t, sum, "weigh-in")
+	assert.Contains(t, sum, "Projected weigh-in mass")
+	caution, err := pwatest.Text(ctx, "chart-mass-caution")
+	require.NoError(t, err)
+	assert.Contains(t, caution, "sports dietitian or physician")
+}
+
+func TestCoachPlanSetsUpANewBout(t *testing.T) {
+	h := startCoachHub(t)
+	kofi := h.ids()["Kofi Brandt"]
+	ctx := coachBrowser(t, h, "/plan?athlete="+kofi)
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-bout"]')`, 10*time.Second))
+	require.NoError(t, coachSet(ctx, "plan-bout", "new"))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-bout-day"]').value === ''`, 5*time.Second))
+	start := time.Now().AddDate(0, 0, 14)
+	bout := start.AddDate(0, 0, 8*7)
+	d := func(t time.Time) string { return t.Format("2006-01-02") }
+	require.NoError(t, pwatest.Type(ctx, "plan-name", "Invented rematch"))
+	require.NoError(t, coachSet(ctx, "plan-camp-start", d(start)))
+	require.NoError(t, coachSet(ctx, "plan-bout-day", d(bout)))
+	require.NoError(t, pwatest.Click(ctx, "plan-wi-day_before"))
+	require.NoError(t, coachSet(ctx, "plan-wi-date", d(bout.AddDate(0, 0, -1))))
+	require.NoError(t, coachSet(ctx, "plan-wi-time", "10:00"))
+	require.NoError(t, coachSet(ctx, "plan-zone", "Europe/Lisbon"))
+	require.NoError(t, coachSet(ctx, "plan-class", "ol2024_m_71"))
+	require.NoError(t, pwatest.WaitText(ctx, "plan-class-limit", "71 kg"))
+	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "74.0"))
+	require.NoError(t, pwatest.Type(ctx, "plan-ref-load", "3400"))
+	require.NoError(t, pwatest.Click(ctx, "plan-generate"))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="plan-week-"][data-level]').length === 8`, 10*time.Second))
+	var last string
+	require.NoError(t, pwatest.Eval(ctx, `document.querySelector('[data-testid="plan-week-8"]').dataset.level`, &last))
+	assert.Equal(t, "taper", last, "the final week is the taper")
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-taper-cut"]')`, 10*time.Second))
+	var pct float64
+	require.NoError(t, pwatest.Eval(ctx, `Number(document.querySelector('[data-testid="plan-taper-cut"]').dataset.pct)`, &pct))
+	// Bosquet et al. 2007: a 41–60 % cut of training volume in the taper.
+	assert.GreaterOrEqual(t, pct, 41.0)
+	assert.LessOrEqual(t, pct, 60.0)
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid="plan-path-point"]').length >= 2`, 10*time.Second))
+
+	// A start mass that needs more than 1.5 %/week is explained before the camp starts.
+	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "84.0"))
+	require.NoError(t, pwatest.Poll(ctx, `[...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('mass_loss_fast'))`, 10*time.Second))
+	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "74.0"))
+	require.NoError(t, pwatest.Poll(ctx, `![...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('mass_loss_fast'))`, 10*time.Second))
+
+	// Edit week 4 by hand, then save through the device's store.
+	require.NoError(t, coachSet(ctx, "plan-week-4-level", "rest"))
+	require.NoError(t, coachSet(ctx, "plan-week-4-cap", "0"))
+	require.NoError(t, pwatest.Click(ctx, "plan-save"))
+	require.NoError(t, pwatest.WaitText(ctx, "saved", "Plan saved on this device"))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+
+	var got *devsync.Record
+	require.NoError(t, h.db.Kind("bout", func(r devsync.Record) error {
+		if r.Athlete == kofi && strings.Contains(string(r.Body), "Invented rematch") {
+			rr := r
+			got = &rr
+		}
+		return nil
+	}))
+	require.NotNil(t, got, "the new bout reached the hub")
+	var b struct {
+		CampStart   string  `json:"camp_start"`
+		BoutDay     string  `json:"bout_day"`
+		WeighIn     string  `json:"weigh_in"`
+		WeighInZone string  `json:"weigh_in_zone"`
+		WeighInType string  `json:"weigh_in_type"`
+		WeightClass string  `json:"weight_class"`
+		LimitKg     float64 `json:"limit_kg"`
+		StartMassKg float64 `json:"start_mass_kg"`
+		RefLoad     float64 `json:"reference_load_au"`
+		Weeks       []struct {
+			Week  int
+			Level string
+			Cap   *int `json:"spar_cap_rounds"`
+		}
+	}
+	require.NoError(t, json.Unmarshal(got.Body, &b))
+	assert.Equal(t, d(start), b.CampStart)
+	assert.Equal(t, d(bout), b.BoutDay)
+	assert.Equal(t, "day_before", b.WeighInType)
+	assert.Equal(t, "Europe/Lisbon", b.WeighInZone)
+	wi, err := time.Parse(time.RFC3339, b.WeighIn)
+	require.NoError(t, err)
+	lis, _ := time.LoadLocation("Europe/Lisbon")
+	assert.Equal(t, d(bout.AddDate(0, 0, -1))+" 10:00", wi.In(lis).Format("2006-01-02 15:04"), "weigh-in at 10:00 on the venue's clock")
+	assert.Equal(t, "ol2024_m_71", b.WeightClass)
+	assert.InDelta(t, 71.0, b.LimitKg, 1e-9)
+	assert.InDelta(t, 74.0, b.StartMassKg, 1e-9)
+	assert.InDelta(t, 3400, b.RefLoad, 1e-9)
+	require.Len(t, b.Weeks, 8)
+	assert.Equal(t, "rest", b.Weeks[3].Level)
+	require.NotNil(t, b.Weeks[3].Cap)
+	assert.Equal(t, 0, *b.Weeks[3].Cap)
+	assert.Equal(t, "taper", b.Weeks[7].Level)
+}
+
+// TestCoachScreensFitAPhoneAndWriteScreenshots: at 360×740 no coach
+// screen scrolls sideways and every control is at least 44×44 CSS px
+// (WCAG 2.2 target size); screenshots of each screen at 360×740 and
+// 1280×800, light and dark, go to testdata/screenshots.
+func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
+	h := startCoachHub(t)
+	ids := h.ids()
+	ctx := coachBrowser(t, h, "/review?day="+coachDay)
+	dir := filepath.Join("..", "testdata", "screenshots")
+	require.NoError(t, os.MkdirAll(dir, 0o755))
+	screens := []struct{ name, path, ready string }{
+		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`},
+		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart')].length === 5 && [...document.querySelectorAll('figure.chart')].every((e) => Number(e.dataset.points) > 0)`},
+		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`},
+		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 4 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`},
+	}
+	sizes := []struct{ w, h int64 }{{360, 740}, {1280, 800}}
+	for _, scheme := range []string{"light", "dark"} {
+		_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}}})
+		require.NoError(t, err)
+		for _, sz := range sizes {
+			require.NoError(t, chromedp.Do(ctx, chromedp.EmulateViewport(sz.w, sz.h)))
+			for _, s := range screens {
+				require.NoError(t, pwatest.Route(ctx, s.path))
+				require.NoError(t, pwatest.Poll(ctx, s.ready, 15*time.Second), s.name)
+				time.Sleep(150 * time.Millisecond) // charts settle to the new width
+				if sz.w == 360 {
+					var wide struct{ Scroll, Client int }
+					require.NoError(t, pwatest.Eval(ctx, `({ Scroll: document.scrollingElement.scrollWidth, Client: document.scrollingElement.clientWidth })`, &wide))
+					assert.LessOrEqual(t, wide.Scroll, wide.Client, "%s scrolls sideways at 360 px (%s)", s.name, scheme)
+					var small []string
+					require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('button, a[href], input, select, textarea, [role="button"]')].filter((e) => {
+						const r = e.getBoundingClientRect(); return r.width > 0 && r.height > 0 && getComputedStyle(e).visibility !== 'hidden' && (r.width < 44 || r.height < 44) })
+						.map((e) => (e.dataset.testid || e.id || e.tagName) + ' ' + Math.round(e.getBoundingClientRect().width) + '×' + Math.round(e.getBoundingClientRect().height))`, &small))
+					assert.Empty(t, small, "%s: controls under 44×44 CSS px (%s)", s.name, scheme)
+				}
+				png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+				require.NoError(t, err)
+				require.NoError(t, os.WriteFile(filepath.Join(dir, fmt.Sprintf("coach-%s-%dx%d-%s.png", s.name, sz.w, sz.h, scheme)), png, 0o644))
+			}
+		}
+	}
+}
