@@ -353,10 +353,19 @@ export async function restamp(serverTime, sentAt, gotAt) {
     if (rec.day && rec.day === localDay(new Date(t))) out.day = localDay(fixed);
     return out;
   };
-  const clock = new Clock();
+  // Restart the clock from corrected time, but never below a stamp the hub
+  // could already hold (within its drift limit, 60 s): an edit made later
+  // must still sort after the version it corrects.
   const pt = Date.now() + offset;
-  clock.now(pt);
+  const clock = new Clock({ l: pt, c: 0 });
   const records = tx.objectStore('records');
+  const limit = serverTime + 30000;
+  let rc = await records.openCursor();
+  while (rc) {
+    const st = rc.value.stamp;
+    if (st && st.l <= limit) clock.restore(st);
+    rc = await rc.continue();
+  }
   let cur = await tx.objectStore('outbox').openCursor();
   let n = 0;
   while (cur) {
