@@ -125,5 +125,10 @@ deviceId().then(() => getMeta('offset')).then((offset) => {
   render(html`<${App} />`, root);
   root.dataset.ready = 'true';
   startSync();
+  // Installed: ask once that the entries on this device are never evicted
+  // (Chromium decides without a prompt; Settings shows the answer).
+  if (navigator.storage && navigator.storage.persist && matchMedia('(display-mode: standalone)').matches) {
+    navigator.storage.persisted().then((p) => p || navigator.storage.persist()).catch(() => {});
+  }
 });
 setupSW();
