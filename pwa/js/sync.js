@@ -62,8 +62,9 @@ function withLock(fn) {
 async function pushAll() {
   let skewRetries = 0;
   let pushed = 0;
+  let batch = PUSH_BATCH;
   for (;;) {
-    const { rows, total, device, epoch, token } = await pushBatch(PUSH_BATCH);
+    const { rows, total, device, epoch, token } = await pushBatch(batch);
     if (!rows.length) return pushed;
     const waiting = total - rows.length;
     const body = {
@@ -84,6 +85,10 @@ async function pushAll() {
         skewRetries++;
         await restamp(e.body.serverTime, sentAt, gotAt);
         await setMeta('clockFixedAt', Date.now());
+        continue;
+      }
+      if (e instanceof HubError && e.status === 413 && rows.length > 1) {
+        batch = Math.max(1, Math.floor(rows.length / 2)); // too big a request: send fewer at a time
         continue;
       }
       if (e instanceof HubError && [400, 413, 422].includes(e.status) && e.body.code) {
