@@ -7,6 +7,7 @@ import { save, remove, getRecord, byDay } from './db.js';
 import { localDay, parseNum, attemptStats, heightFromFlightMs } from './record.js';
 import { uuidv7 } from './uuid.js';
 import { openIncidents, HOLD_TEXT } from './screens.js';
+import { useStanding, RoundClock, AthleteChips, useSparGate, RingsideIncident, JumpRef } from './ringside/index.js';
 
 const DONE = 'Saved on this phone';
 const ATTEMPTS = 3;
@@ -27,6 +28,7 @@ export function Jumps() {
   const [mode, setMode] = useState('height');
   const [method, setMethod] = useState('mat');
   const [cells, setCells] = useState({});
+  const standing = useStanding(localDay());
   const [state, setState] = useState(null);
   useEffect(() => {
     if (!editing) return;
@@ -99,7 +101,7 @@ export function Jumps() {
           const st = attemptStats(valuesOf(a.id).filter((x) => x >= lo && x <= hi));
           const cm = (x) => (mode === 'flight' ? ` ms (≈ ${fmt(heightFromFlightMs(x), 1)} cm)` : ' cm');
           return html`<tr data-testid=${`jump-row-${a.id}`} data-athlete-name=${a.name}>
-            <td>${a.name}</td>
+            <td>${a.name}<${JumpRef} id=${a.id} standing=${standing} mode=${mode} values=${valuesOf(a.id).filter((x) => x >= lo && x <= hi)} /></td>
             ${Array.from({ length: ATTEMPTS }, (_, i) => {
               const k = `${a.id}:${i}`;
               return html`<td><input inputmode="decimal" autocomplete="off" aria-label=${`${a.name}, attempt ${i + 1}, ${unit}`}
@@ -143,6 +145,8 @@ export function Rounds() {
     for (const a of list || []) if ((await openIncidents(a.id)).length) h[a.id] = true;
     return h;
   }, [v, list], {});
+  const standing = useStanding(today);
+  const [tryDone, gatePanel] = useSparGate({ activity, chosen, list: list || [], standing, localHolds: holds, onDone: () => done() });
   useEffect(() => {
     if (!editing) return;
     const b = editing.body || {};
@@ -177,13 +181,9 @@ export function Rounds() {
 
   return html`<section data-testid="screen-rounds">
     <h1>Rounds</h1>
+    ${!editing && html`<${RoundClock} onLog=${tryDone} names=${chosen.map((id) => (list.find((a) => a.id === id) || {}).name)} onLength=${setSeconds} />`}
     <label>Who is in this round?</label>
-    <div class="chips" role="group" aria-label="Athletes">
-      ${list.map((a) => html`<button type="button" class="chip" data-testid=${`round-athlete-${a.id}`} data-athlete-name=${a.name}
-        aria-pressed=${chosen.includes(a.id) ? 'true' : 'false'} disabled=${!!editing && a.id !== editing.athlete} onClick=${() => toggle(a.id)}>
-        ${a.name}<span class="count" data-testid=${`round-count-${a.id}`}>${counts[a.id] || 0}</span></button>`)}
-    </div>
-    ${list.filter((a) => holds[a.id] && chosen.includes(a.id)).map((a) => html`<p class="hold" data-testid=${`round-hold-${a.id}`}>${a.name} has an open incident: ${HOLD_TEXT}</p>`)}
+    <${AthleteChips} list=${list} chosen=${chosen} toggle=${toggle} counts=${counts} editing=${editing} standing=${standing} localHolds=${holds} />
     <label>Activity</label>
     <div class="row" role="group" aria-label="Activity">
       ${ACTIVITIES.map(([x, l]) => html`<${Choice} value=${x} current=${activity} onPick=${setActivity} testid=${`round-activity-${x}`}>${l}</${Choice}>`)}
@@ -196,9 +196,11 @@ export function Rounds() {
     <div class="row" role="group" aria-label="Round length">
       ${LENGTHS.map(([x, l]) => html`<${Choice} value=${x} current=${seconds} onPick=${setSeconds} testid=${`round-seconds-${x}`}>${l}</${Choice}>`)}
     </div>
-    <button class="primary big" type="button" data-testid="round-done" onClick=${done} disabled=${state && state.saving}>${editing ? 'Save correction' : 'Round done'}</button>
+    <button class="primary big" type="button" data-testid="round-done" onClick=${tryDone} disabled=${state && state.saving}>${editing ? 'Save correction' : 'Round done'}</button>
     ${!editing && html`<button class="secondary" type="button" data-testid="round-undo" onClick=${undo} disabled=${!last}>Undo last round</button>`}
+    ${gatePanel}
     <${SaveLine} state=${state} />
+    ${!editing && html`<${RingsideIncident} list=${list} chosen=${chosen} />`}
   </section>`;
 }
 
