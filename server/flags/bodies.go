@@ -4,6 +4,8 @@ package flags
 // with the JSON names of the record format (PRODUCT.md, "Record format").
 // Decoding these small shapes instead of the full kinds keeps the engine
 // independent of validation code and skips fields no rule reads (notes).
+// They are exported so the chart series read records exactly as the
+// rules do.
 
 // Kind names of the record format.
 const (
@@ -19,7 +21,8 @@ const (
 	kindDecision  = "decision"
 )
 
-type checkinBody struct {
+// CheckinBody is the part of a check-in the rules read.
+type CheckinBody struct {
 	MassKg   *float64 `json:"mass_kg"`
 	Sleep    *int     `json:"sleep"`
 	Fatigue  *int     `json:"fatigue"`
@@ -29,21 +32,23 @@ type checkinBody struct {
 	USG      *float64 `json:"usg"`
 }
 
-type jumpBody struct {
+// JumpBody is the part of a jump test the rules read.
+type JumpBody struct {
 	Test      string    `json:"test"`
 	HeightsCm []float64 `json:"heights_cm"`
 	FlightMs  []float64 `json:"flight_ms"`
 	Method    string    `json:"method"`
 }
 
-type roundBody struct {
+// RoundBody is the part of a round the rules read.
+type RoundBody struct {
 	Activity  string `json:"activity"`
 	Seconds   int    `json:"seconds"`
 	Intensity int    `json:"intensity"`
 }
 
-// sessionBody is the part of a session body the rules read.
-type sessionBody struct {
+// SessionBody is the part of a session body the rules read.
+type SessionBody struct {
 	Minutes float64 `json:"minutes"`
 	RPE     float64 `json:"rpe"`
 	LoadAU  float64 `json:"load_au"`

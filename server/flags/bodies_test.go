@@ -15,8 +15,8 @@ func TestBodiesMatchRecordKinds(t *testing.T) {
 	for _, c := range []struct {
 		mine, theirs any
 	}{
-		{checkinBody{}, records.Checkin{}}, {jumpBody{}, records.Jump{}}, {roundBody{}, records.Round{}},
-		{sessionBody{}, records.Session{}}, {incidentBody{}, records.Incident{}}, {clearanceBody{}, records.Clearance{}},
+		{CheckinBody{}, records.Checkin{}}, {JumpBody{}, records.Jump{}}, {RoundBody{}, records.Round{}},
+		{SessionBody{}, records.Session{}}, {incidentBody{}, records.Incident{}}, {clearanceBody{}, records.Clearance{}},
 		{decisionBody{}, records.Decision{}}, {boutBody{}, records.Bout{}}, {weekBody{}, records.Week{}}, {knotBody{}, records.Knot{}},
 	} {
 		theirs := map[string]reflect.Type{}
@@ -41,8 +41,8 @@ func TestBodiesMatchRecordKinds(t *testing.T) {
 	}
 	// And a full record body decodes into the small shape.
 	b, _ := json.Marshal(records.Session{Type: "strength", Focus: "max_strength", Minutes: 60, RPE: 8, LoadAU: 480, Note: "heavy singles"})
-	var s sessionBody
-	if !decodeSession(b, &s) || s != (sessionBody{Minutes: 60, RPE: 8, LoadAU: 480, Focus: "max_strength"}) {
+	var s SessionBody
+	if !decodeSession(b, &s) || s != (SessionBody{Minutes: 60, RPE: 8, LoadAU: 480, Focus: "max_strength"}) {
 		t.Errorf("session decoded as %+v", s)
 	}
 }

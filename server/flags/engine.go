@@ -24,7 +24,7 @@ const maxHistoryDays = 3650
 type checkin struct {
 	id   string
 	at   string
-	body checkinBody
+	body CheckinBody
 }
 
 type jump struct {
@@ -36,7 +36,7 @@ type jump struct {
 type round struct {
 	id   string
 	at   string
-	body roundBody
+	body RoundBody
 }
 
 type session struct {
@@ -112,33 +112,33 @@ func newEngine(in *Input) (*engine, bool) {
 		switch r.Kind {
 		case kindCheckin:
 			if age < recentDays {
-				var b checkinBody
+				var b CheckinBody
 				if json.Unmarshal(r.Body, &b) == nil {
 					e.recent[age].checkins = append(e.recent[age].checkins, checkin{r.ID, r.At, b})
 				}
 			}
 		case kindJump:
 			if age < recentDays {
-				var b jumpBody
+				var b JumpBody
 				if json.Unmarshal(r.Body, &b) == nil && (b.Test == "" || b.Test == "cmj") {
-					if h := validHeights(&b); len(h) > 0 {
+					if h := ValidHeights(&b); len(h) > 0 {
 						e.recent[age].jumps = append(e.recent[age].jumps, jump{r.ID, b.Method, h})
 					}
 				}
 			}
 		case kindRound:
 			if age < recentDays {
-				var b roundBody
+				var b RoundBody
 				if json.Unmarshal(r.Body, &b) == nil {
 					e.recent[age].rounds = append(e.recent[age].rounds, round{r.ID, r.At, b})
 				}
 			}
 		case kindSession:
-			var b sessionBody
+			var b SessionBody
 			if !decodeSession(r.Body, &b) {
 				continue
 			}
-			s := session{id: r.ID, day: d, loadAU: b.load(), focus: b.Focus}
+			s := session{id: r.ID, day: d, loadAU: b.Load(), focus: b.Focus}
 			e.loads[d-e.first] += s.loadAU
 			if age < recentDays {
 				e.sessions = append(e.sessions, s)
@@ -187,9 +187,9 @@ func dayOf(s string) (day.Number, bool) {
 	return d, err == nil
 }
 
-// load is the session load in AU: the stored derived value, else
+// Load is the session load in AU: the stored derived value, else
 // RPE × minutes (Foster et al. 2001).
-func (b *sessionBody) load() float64 {
+func (b *SessionBody) Load() float64 {
 	if b.LoadAU > 0 {
 		return b.LoadAU
 	}

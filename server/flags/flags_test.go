@@ -181,16 +181,16 @@ func decodeAll(b *testing.B, recs []devsync.Record) {
 		var err error
 		switch r.Kind {
 		case kindCheckin:
-			var v checkinBody
+			var v CheckinBody
 			err = json.Unmarshal(r.Body, &v)
 		case kindJump:
-			var v jumpBody
+			var v JumpBody
 			err = json.Unmarshal(r.Body, &v)
 		case kindRound:
-			var v roundBody
+			var v RoundBody
 			err = json.Unmarshal(r.Body, &v)
 		case kindSession:
-			var v sessionBody
+			var v SessionBody
 			err = json.Unmarshal(r.Body, &v)
 		default:
 			var v map[string]json.RawMessage

@@ -203,9 +203,9 @@ func TaperBand(referenceAU, minCutPct, maxCutPct float64) (lowAU, highAU float64
 // flight-time method, h = g·t²/8 (records.JumpHeightCm, g = records.G).
 func HeightFromFlight(ms float64) float64 { return records.JumpHeightCm(ms) }
 
-// validHeights lists a jump's valid attempts in cm (the ranges records
+// ValidHeights lists a jump's valid attempts in cm (the ranges records
 // validation accepts), from heights if given, else from flight times.
-func validHeights(b *jumpBody) []float64 {
+func ValidHeights(b *JumpBody) []float64 {
 	var out []float64
 	if len(b.HeightsCm) > 0 {
 		for _, h := range b.HeightsCm {

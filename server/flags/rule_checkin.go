@@ -13,12 +13,12 @@ import (
 // wellnessItems are the five items (1–5, 5 = best; McLean et al. 2010).
 var wellnessItems = []string{"fatigue", "sleep", "soreness", "stress", "mood"}
 
-func items(c *checkinBody) [5]*int {
+func items(c *CheckinBody) [5]*int {
 	return [5]*int{c.Fatigue, c.Sleep, c.Soreness, c.Stress, c.Mood}
 }
 
 // wellnessTotal returns day d's total from its earliest complete check-in.
-func (e *engine) wellnessTotal(d day.Number) (total float64, id string, body *checkinBody, ok bool) {
+func (e *engine) wellnessTotal(d day.Number) (total float64, id string, body *CheckinBody, ok bool) {
 	r := e.at(d)
 	if r == nil {
 		return 0, "", nil, false

@@ -12,11 +12,11 @@ import (
 // reflection. Anything the scan is not sure of (escapes, a key differing
 // only in case, a value of the wrong type, nesting) falls back to
 // encoding/json, so the result is always what json.Unmarshal gives.
-func decodeSession(raw []byte, b *sessionBody) bool {
+func decodeSession(raw []byte, b *SessionBody) bool {
 	if scanSession(raw, b) {
 		return true
 	}
-	*b = sessionBody{}
+	*b = SessionBody{}
 	return json.Unmarshal(raw, b) == nil
 }
 
@@ -27,8 +27,8 @@ var (
 	keyFocus   = []byte("focus")
 )
 
-func scanSession(raw []byte, b *sessionBody) bool {
-	*b = sessionBody{}
+func scanSession(raw []byte, b *SessionBody) bool {
+	*b = SessionBody{}
 	i := skipWS(raw, 0)
 	if i >= len(raw) || raw[i] != '{' {
 		return false

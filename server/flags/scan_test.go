@@ -33,9 +33,9 @@ func TestDecodeSessionAgreesWithJSON(t *testing.T) {
 
 func checkSessionDecode(t *testing.T, s string) {
 	t.Helper()
-	var want sessionBody
+	var want SessionBody
 	wantOK := json.Unmarshal([]byte(s), &want) == nil
-	var got sessionBody
+	var got SessionBody
 	gotOK := decodeSession([]byte(s), &got)
 	if gotOK != wantOK || (wantOK && got != want) {
 		t.Errorf("%q: got %+v %v, json gives %+v %v", s, got, gotOK, want, wantOK)

@@ -14,38 +14,9 @@ import (
 	devsync "cornerbook/sync"
 )
 
-// The record bodies as the series reads them: the fields the flag engine
-// reads, with the record format's JSON names.
-type checkinBody struct {
-	MassKg   *float64 `json:"mass_kg"`
-	Sleep    *int     `json:"sleep"`
-	Fatigue  *int     `json:"fatigue"`
-	Soreness *int     `json:"soreness"`
-	Stress   *int     `json:"stress"`
-	Mood     *int     `json:"mood"`
-}
-
-type jumpBody struct {
-	Test      string    `json:"test"`
-	HeightsCm []float64 `json:"heights_cm"`
-	FlightMs  []float64 `json:"flight_ms"`
-	Method    string    `json:"method"`
-}
-
-type roundBody struct {
-	Activity  string `json:"activity"`
-	Intensity int    `json:"intensity"`
-}
-
-type sessionBody struct {
-	Minutes float64 `json:"minutes"`
-	RPE     float64 `json:"rpe"`
-	LoadAU  float64 `json:"load_au"`
-}
-
 type checkin struct {
 	at   time.Time
-	body checkinBody
+	body flags.CheckinBody
 }
 
 type jump struct {
@@ -131,27 +102,27 @@ func newBuilder(in *flags.Input, from, to day.Number) *builder {
 		dd := &b.days[d-b.lo]
 		switch r.Kind {
 		case records.KindCheckin:
-			var c checkinBody
+			var c flags.CheckinBody
 			if json.Unmarshal(r.Body, &c) == nil {
 				t, _ := time.Parse(time.RFC3339, r.At) // unreadable: the zero time, as in the engine
 				dd.checkins = append(dd.checkins, checkin{t, c})
 			}
 		case records.KindJump:
-			var j jumpBody
+			var j flags.JumpBody
 			if json.Unmarshal(r.Body, &j) == nil && (j.Test == "" || j.Test == "cmj") {
-				if h := validHeights(&j); len(h) > 0 {
+				if h := flags.ValidHeights(&j); len(h) > 0 {
 					dd.jumps = append(dd.jumps, jump{j.Method, h})
 				}
 			}
 		case records.KindRound:
-			var rb roundBody
+			var rb flags.RoundBody
 			if json.Unmarshal(r.Body, &rb) == nil {
 				dd.rounds = append(dd.rounds, round{rb.Activity == "spar", rb.Intensity})
 			}
 		case records.KindSession:
-			var s sessionBody
+			var s flags.SessionBody
 			if json.Unmarshal(r.Body, &s) == nil {
-				dd.load += sessionLoad(&s)
+				dd.load += s.Load()
 			}
 		}
 	}
@@ -172,37 +143,6 @@ func newBuilder(in *flags.Input, from, to day.Number) *builder {
 		}
 	}
 	return b
-}
-
-// sessionLoad is the stored load_au, else rpe × minutes (Foster et al. 2001).
-func sessionLoad(s *sessionBody) float64 {
-	if s.LoadAU > 0 {
-		return s.LoadAU
-	}
-	if s.RPE > 0 && s.Minutes > 0 {
-		return s.RPE * s.Minutes
-	}
-	return 0
-}
-
-// validHeights lists a jump's valid attempts in cm: the heights if given,
-// else heights from flight times (h = g·t²/8), within records' ranges.
-func validHeights(j *jumpBody) []float64 {
-	var out []float64
-	if len(j.HeightsCm) > 0 {
-		for _, h := range j.HeightsCm {
-			if h >= records.MinHeightCm && h <= records.MaxHeightCm {
-				out = append(out, h)
-			}
-		}
-		return out
-	}
-	for _, ms := range j.FlightMs {
-		if ms >= records.MinFlightMs && ms <= records.MaxFlightMs {
-			out = append(out, flags.HeightFromFlight(ms))
-		}
-	}
-	return out
 }
 
 // at returns day d's data, nil outside the index.
