@@ -480,3 +480,46 @@ func BenchmarkE2ESaveToScreen(b *testing.B) {
 	b.ReportMetric(q(0.50), "p50-ms")
 	b.ReportMetric(q(0.95), "p95-ms")
 }
+
+// A device joining a camp with a backlog pulls it page by page (500 per
+// page), each page with its cursor in one transaction.
+func TestE2EFirstSyncPullsABacklogInPages(t *testing.T) {
+	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
+	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
+	const total = 1200
+	n := uint64(100)
+	start := time.Now().AddDate(0, 0, -60)
+	for sent := 0; sent < total; {
+		var ms []devsync.Mutation
+		for ; sent < total && len(ms) < devsync.MaxMutationsPerPush; sent++ {
+			u, _ := uuid.NewV7()
+			at := start.Add(time.Duration(sent) * time.Minute)
+			body, _ := json.Marshal(map[string]any{"type": "boxing", "minutes": 30 + sent%60, "rpe": 1 + sent%9})
+			n++
+			ms = append(ms, devsync.Mutation{N: n, Op: devsync.OpUpsert, Record: devsync.Record{ID: u.String(), Kind: "session", Athlete: ids["Ana Pereira"],
+				Day: at.Format("2006-01-02"), At: at.Format(time.RFC3339), Device: "coach-laptop", Stamp: devsync.HLC{L: at.UnixMilli()}, Body: body}})
+		}
+		b, _ := json.Marshal(devsync.PushRequest{Device: "coach-laptop", Mutations: ms})
+		res, err := http.Post(h.url("/api/push"), "application/json", bytes.NewReader(b))
+		require.NoError(t, err)
+		var pr devsync.PushResponse
+		require.NoError(t, json.NewDecoder(res.Body).Decode(&pr))
+		res.Body.Close()
+		require.Empty(t, pr.Rejected)
+	}
+
+	_, ctx, _ := e2eBrowser(t, "")
+	require.NoError(t, pwatest.Open(ctx, h.url("/")))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	recs, err := pwatest.ReadIDB(ctx, "records")
+	require.NoError(t, err)
+	assert.Len(t, recs, total+1, "every session and the athlete, once each")
+	var cursor float64
+	require.NoError(t, pwatest.Meta(ctx, "cursor", &cursor))
+	res, err := http.Get(h.url("/api/status"))
+	require.NoError(t, err)
+	var st struct{ MaxSeq float64 }
+	require.NoError(t, json.NewDecoder(res.Body).Decode(&st))
+	res.Body.Close()
+	assert.Equal(t, st.MaxSeq, cursor, "the cursor reached the hub's last sequence")
+}
