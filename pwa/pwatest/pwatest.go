@@ -155,6 +155,29 @@ func (b *Browser) Close() {
 	b.allocCancel()
 }
 
+// Kill ends the browser at once with SIGKILL, as a phone's battery or the
+// system's memory killer would, and waits for it to exit. The profile can
+// then be reopened with Start to see what survived.
+func (b *Browser) Kill() error {
+	if b.closed {
+		return nil
+	}
+	c := chromedp.FromContext(b.ctx)
+	if c == nil || c.Browser == nil || c.Browser.Process() == nil {
+		return fmt.Errorf("pwatest: no browser process to kill")
+	}
+	p := c.Browser.Process()
+	if err := p.Kill(); err != nil {
+		return err
+	}
+	b.closed = true
+	b.cancel()
+	b.allocCancel()
+	// The profile's lock goes with the process; give the OS a moment to reap children.
+	time.Sleep(200 * time.Millisecond)
+	return nil
+}
+
 // Eval evaluates a JavaScript expression in the page, awaiting a promise,
 // and decodes its JSON-able result into out (which may be nil).
 func Eval(ctx context.Context, expr string, out any) error {
