@@ -4,6 +4,7 @@
 package server_test
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -11,12 +12,15 @@ import (
 	"net/http"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
 
 	"github.com/chromedp/cdproto/emulation"
+	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
+	"github.com/google/uuid"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
@@ -511,10 +515,72 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 						.map((e) => (e.dataset.testid || e.id || e.tagName) + ' ' + Math.round(e.getBoundingClientRect().width) + '×' + Math.round(e.getBoundingClientRect().height))`, &small))
 					assert.Empty(t, small, "%s: controls under 44×44 CSS px (%s)", s.name, scheme)
 				}
-				png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+				png, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
 				require.NoError(t, err)
 				require.NoError(t, os.WriteFile(filepath.Join(dir, fmt.Sprintf("coach-%s-%dx%d-%s.png", s.name, sz.w, sz.h, scheme)), png, 0o644))
 			}
 		}
+	}
+}
+
+// coachPush sends records to the hub as the coach's laptop would.
+func (h *coachHub) coachPush(recs ...devsync.Record) {
+	var ms []devsync.Mutation
+	for i, r := range recs {
+		ms = append(ms, devsync.Mutation{N: uint64(i + 1), Op: devsync.OpUpsert, Record: r})
+	}
+	b, _ := json.Marshal(devsync.PushRequest{Device: "coach-laptop-sheet", Mutations: ms})
+	res, err := http.Post(h.url("/api/push"), "application/json", bytes.NewReader(b))
+	require.NoError(h.t, err)
+	defer res.Body.Close()
+	var pr devsync.PushResponse
+	require.NoError(h.t, json.NewDecoder(res.Body).Decode(&pr))
+	require.Equal(h.t, http.StatusOK, res.StatusCode)
+	require.Empty(h.t, pr.Rejected)
+}
+
+// pdfPages counts the page objects of a PDF Chromium printed.
+func pdfPages(pdf []byte) int {
+	return len(regexp.MustCompile(`/Type\s*/Page[^s]`).FindAll(pdf, -1))
+}
+
+// TestCoachWallSheetPrintsOnOnePage: eight fighters' flags, key numbers
+// and cautions print on one A4 page and on one US Letter page.
+func TestCoachWallSheetPrintsOnOnePage(t *testing.T) {
+	h := startCoachHub(t)
+	now := time.Now()
+	var recs []devsync.Record
+	for i, name := range []string{"Noor Castellan", "Pavel Ostrander", "Quinn Abara", "Rosa Telemann"} {
+		u, _ := uuid.NewV7()
+		id := u.String()
+		at := now.Add(time.Duration(i) * time.Millisecond)
+		body, _ := json.Marshal(map[string]any{"name": name, "units": "kg"})
+		recs = append(recs, devsync.Record{ID: id, Kind: "athlete", Athlete: id, At: at.Format(time.RFC3339), Device: "coach-laptop-sheet", Stamp: devsync.HLC{L: at.UnixMilli()}, Body: body})
+		c, _ := uuid.NewV7()
+		cb, _ := json.Marshal(map[string]any{"mass_kg": 70.0 + float64(i), "sleep": 4, "fatigue": 3, "soreness": 3, "stress": 4, "mood": 4, "usg": 1.024})
+		recs = append(recs, devsync.Record{ID: c.String(), Kind: "checkin", Athlete: id, Day: coachDay, At: at.Format(time.RFC3339), Device: "coach-laptop-sheet", Stamp: devsync.HLC{L: at.UnixMilli() + 1}, Body: cb})
+	}
+	h.coachPush(recs...)
+	ctx := coachBrowser(t, h, "/sheet?day="+coachDay)
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="sheet-athlete-"]').length === 8 && document.querySelectorAll('[data-testid="sheet-keys"]').length === 8 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelector('[data-testid="sheet-cautions"]')`, 15*time.Second))
+	var cautions string
+	require.NoError(t, pwatest.Eval(ctx, `document.querySelector('[data-testid="sheet-cautions"]').textContent`, &cautions))
+	assert.Contains(t, cautions, "sports dietitian or physician")
+	_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"})
+	require.NoError(t, err)
+	require.NoError(t, chromedp.Do(ctx, chromedp.EmulateViewport(718, 1000))) // A4 less 10 mm margins, at 96 px per inch
+	var tall float64
+	require.NoError(t, pwatest.Eval(ctx, `document.documentElement.scrollHeight`, &tall))
+	t.Logf("printed sheet height %.0f px of 1047", tall)
+	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
+	require.NoError(t, err)
+	require.NoError(t, os.WriteFile(filepath.Join("..", "testdata", "screenshots", "coach-sheet-print-A4.png"), png, 0o644))
+	for _, paper := range []struct {
+		name string
+		w, h float64 // inches
+	}{{"A4", 8.27, 11.69}, {"Letter", 8.5, 11}} {
+		res, err := chromedp.Call(ctx, page.PrintToPDF, page.PrintToPDFParams{PaperWidth: paper.w, PaperHeight: paper.h})
+		require.NoError(t, err)
+		assert.Equal(t, 1, pdfPages(res.Data), "the wall sheet for 8 fighters fits one %s page", paper.name)
 	}
 }

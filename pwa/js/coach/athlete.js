@@ -135,7 +135,7 @@ function MassChart({ s, future, units }) {
   const iLoss = last(m.loss_pct_week);
   let summary = parts.join('; ') + '.';
   if (pw.length) summary += ` Projected weigh-in mass: ${pw.join(', or ')}.`;
-  if (iLoss >= 0) summary += ` Rate of change ${fmtN(-m.loss_pct_week[iLoss], 2)} % of body mass per week.`;
+  if (iLoss >= 0) summary += m.loss_pct_week[iLoss] >= 0 ? ` Losing ${fmtN(m.loss_pct_week[iLoss], 2)} % of body mass a week over the last 14 days.` : ` Gaining ${fmtN(-m.loss_pct_week[iLoss], 2)} % of body mass a week over the last 14 days.`;
   const legend = [['morning mass', c.accent, 'dot'], ['trend', c.ink], ['planned path', c.accent, 'dash'], [lim ? 'limit' : 'no limit', c.warm]];
   if (pw.length) legend.push(['projected weigh-in', c.watch, 'dot']);
   return html`<div class="chart-wrap">

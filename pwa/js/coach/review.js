@@ -95,8 +95,8 @@ export function Review() {
   const counts = Object.fromEntries(LEVELS.map(([l]) => [l, (st.flags || []).filter((f) => levelOf(f) === l && (!who || f.athlete === who)).length]));
 
   return html`<section data-testid="screen-review" class="coach">
-    <h1>Day board</h1>
-    <p class="muted">${longDay(day)} — flags are prompts for your judgement; the medical team and the sanctioning body's rules come first.</p>
+    <h1>Day board <span class="h1day">${longDay(day)}</span></h1>
+    <p class="muted small">Prompts for your judgement. Health questions go to the medical team; the sanctioning body's rules come first.</p>
     <${DayPicker} day=${day} onPick=${setDay} testid="review" />
     <div class="filters">
       <div class="field">
@@ -108,7 +108,7 @@ export function Review() {
       </div>
       <div class="field">
         <span class="label" id="review-levels-l">Show</span>
-        <div class="chips" role="group" aria-labelledby="review-levels-l">
+        <div class="chips lvchips" role="group" aria-labelledby="review-levels-l">
           ${LEVELS.map(([l, w]) => html`<button type="button" class="chip lvchip" data-testid=${`review-level-${l}`} aria-pressed=${levels.has(l) ? 'true' : 'false'}
             onClick=${() => toggle(l)}><${LevelMark} level=${l} /> ${w}<span class="count">${counts[l]}</span></button>`)}
         </div>
@@ -127,10 +127,10 @@ export function Review() {
 export function DayPicker({ day, onPick, testid }) {
   const t = today();
   return html`<div class="daypick" role="group" aria-label="Day">
-    <button type="button" class="secondary" data-testid=${`${testid}-prev`} aria-label="Day before" onClick=${() => onPick(addDays(day, -1))}>‹ Earlier</button>
+    <button type="button" class="secondary step" data-testid=${`${testid}-prev`} aria-label="Day before" title="Day before" onClick=${() => onPick(addDays(day, -1))}>‹</button>
     <input type="date" data-testid=${`${testid}-day`} aria-label="Camp day" value=${day} max=${addDays(t, 1)}
       onChange=${(e) => isDay(e.target.value) && onPick(e.target.value)} />
-    <button type="button" class="secondary" data-testid=${`${testid}-next`} aria-label="Day after" onClick=${() => onPick(addDays(day, 1))}>Later ›</button>
+    <button type="button" class="secondary step" data-testid=${`${testid}-next`} aria-label="Day after" title="Day after" onClick=${() => onPick(addDays(day, 1))}>›</button>
     ${day !== t && html`<button type="button" class="secondary" data-testid=${`${testid}-today`} onClick=${() => onPick(t)}>Today</button>`}
   </div>`;
 }
@@ -165,7 +165,9 @@ function AthleteFlags({ g, day, local, pending, filtered }) {
     </header>
     ${!g.flags.length && html`<p class="quiet" data-testid="review-none">No rule raised anything for this day. That covers the rules that had enough data; check the charts for the trend.</p>`}
     ${g.flags.length > 0 && !g.shown.length && filtered && html`<p class="muted small">Nothing at the levels chosen.</p>`}
-    ${g.shown.map((f, i) => html`<${FlagCard} key=${`${f.rule}-${i}`} f=${f} units=${units} day=${day} local=${local.get(`${f.athlete}|${f.rule}`)} pending=${pending} />`)}
+    <div class="flag-list">
+      ${g.shown.map((f, i) => html`<${FlagCard} key=${`${f.rule}-${i}`} f=${f} units=${units} day=${day} local=${local.get(`${f.athlete}|${f.rule}`)} pending=${pending} />`)}
+    </div>
   </article>`;
 }
 

@@ -32,6 +32,8 @@ function keyLine(s) {
   return parts.join(' · ');
 }
 
+const hhmm = (ms) => { const d = new Date(ms); return `${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}`; };
+
 export function Sheet() {
   const p = new URLSearchParams(location.search);
   const [day, setDay] = useState(isDay(p.get('day')) ? p.get('day') : today());
@@ -44,12 +46,12 @@ export function Sheet() {
   const groups = groupByAthlete(st.flags, athletes);
   const cautions = [...new Set((st.flags || []).map((f) => f.caution).filter(Boolean))];
   return html`<section class="coach sheet" data-testid="screen-sheet">
-    <div class="no-print">
+    <div class="no-print sheet-tools">
       <${DayPicker} day=${day} onPick=${setDay} testid="sheet" />
-      <div class="row"><button type="button" class="secondary" data-testid="sheet-print" onClick=${() => window.print()}>Print this sheet</button></div>
+      <button type="button" class="secondary" data-testid="sheet-print" onClick=${() => window.print()}>Print this sheet</button>
     </div>
     <h1>Wall sheet — ${longDay(day)}</h1>
-    <p class="muted small">${st.at ? `Flags as the hub computed them at ${new Date(st.at).toLocaleTimeString([], { hour: '2-digit', minute: '2-digit' })}.` : 'Waiting for the hub.'} Flags are prompts for the coaches' judgement; the medical team decides on health.</p>
+    <p class="muted small">${st.at ? `Flags as the hub computed them at ${hhmm(st.at)}${st.live ? '' : ' (last copy; the hub cannot be reached now)'}.` : 'Waiting for the hub.'} Flags are prompts for the coaches' judgement; the medical team decides on health.</p>
     <div class="sheet-grid">
       ${groups.map((g) => {
         const raised = g.flags.filter((f) => f.status !== 'forming');
