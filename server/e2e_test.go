@@ -422,6 +422,26 @@ func TestE2EJoinWithACodeKeepsEntriesMadeBefore(t *testing.T) {
 	s := h.all()["session"]
 	require.Len(t, s, 1, "the entry made before joining arrived")
 	assert.Equal(t, device, s[0].Device)
+
+	// The paired phone's websocket carries pokes: an entry the coach adds
+	// for Ana appears on it without a reload or a timer.
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="status"]').dataset.syncing === 'false'`, 5*time.Second))
+	time.Sleep(500 * time.Millisecond) // let any sync in flight finish
+	require.NoError(t, pwatest.Eval(ctx, `(() => { window.__cbTrace = []; return true })()`, nil))
+	u, _ := uuid.NewV7()
+	now := time.Now()
+	body, _ := json.Marshal(map[string]any{"type": "strength", "minutes": 45, "rpe": 5})
+	req, _ := json.Marshal(devsync.PushRequest{Device: "coach-laptop", Mutations: []devsync.Mutation{{N: 50, Op: devsync.OpUpsert, Record: devsync.Record{
+		ID: u.String(), Kind: "session", Athlete: ids["Ana Pereira"], Day: now.Format("2006-01-02"), At: now.Format(time.RFC3339),
+		Device: "coach-laptop", Stamp: devsync.HLC{L: now.UnixMilli()}, Body: body}}}})
+	res, err := http.Post(h.url("/api/push"), "application/json", bytes.NewReader(req))
+	require.NoError(t, err)
+	res.Body.Close()
+	require.Equal(t, http.StatusOK, res.StatusCode)
+	require.NoError(t, pwatest.Poll(ctx, `import('/js/db.js').then((m) => m.getRecord('`+u.String()+`')).then((r) => !!r)`, 5*time.Second), "poked and pulled")
+	var viaSocket bool
+	require.NoError(t, pwatest.Eval(ctx, `window.__cbTrace.some(([w]) => w === 'request:poke' || w === 'request:ws-hello')`, &viaSocket))
+	assert.True(t, viaSocket, "the pull was started by the websocket")
 	if t.Failed() {
 		t.Log(log.String())
 	}

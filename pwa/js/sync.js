@@ -270,9 +270,11 @@ let lastPokeSeq = -1;
 function connectWS() {
   const proto = location.protocol === 'https:' ? 'wss:' : 'ws:';
   getMeta('token').then((token) => {
-    const q = token ? `?token=${encodeURIComponent(token)}` : '';
+    // Browsers cannot set headers on a websocket: the hub reads the token
+    // from the offered subprotocols.
+    const protocols = token ? ['cornerbook', `cornerbook.token.${token}`] : ['cornerbook'];
     try {
-      ws = new WebSocket(`${proto}//${location.host}/api/ws${q}`);
+      ws = new WebSocket(`${proto}//${location.host}/api/ws`, protocols);
     } catch (_) {
       return retryWS();
     }
@@ -281,6 +283,7 @@ function connectWS() {
       try { m = JSON.parse(e.data); } catch (_) { return; }
       // hello: (re)connected, so catch up. poke: only when the hub's
       // sequence moved (the hub also sends heartbeat pokes).
+      trace('ws-' + m.t);
       if (m.t === 'hello') { wsFailures = 0; lastPokeSeq = m.seq; requestSync('ws-hello'); }
       if (m.t === 'poke' && m.seq !== lastPokeSeq) { lastPokeSeq = m.seq; requestSync('poke'); }
     };
@@ -303,6 +306,7 @@ export function startSync(onData) {
   import('./db.js').then(({ onChange }) => {
     onChange((m) => {
       if (m.type === 'changed' && m.local) { syncSoon(); registerBackgroundSync(); }
+      if (m.paired && ws) { try { ws.close(); } catch (_) { /* reconnects with the new pass */ } }
       if (status.syncing && (m.pulled || m.acked)) {
         status.received += m.pulled || 0;
         status.sent += m.acked || 0;
