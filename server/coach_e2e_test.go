@@ -322,6 +322,24 @@ func TestCoachDecisionIsSeenFromASecondDevice(t *testing.T) {
 	assert.True(t, same, "no reload on the second device")
 	require.NoError(t, pwatest.Poll(a, `document.querySelector('`+card+` [data-testid="flag-decision"][data-state="hub"]')`, 10*time.Second))
 
+	// An athlete's phone syncs a check-in: the board on the second device
+	// shows the new finding by itself (poke, pull, flags fetched again).
+	mateo := h.ids()["Mateo Lindqvist"]
+	hyd := fmt.Sprintf(`[data-testid="flag"][data-rule="hydration"][data-athlete=%q]`, mateo)
+	var before int
+	require.NoError(t, pwatest.Eval(b, `document.querySelectorAll('`+hyd+`').length`, &before))
+	require.Equal(t, 0, before)
+	now := time.Now()
+	cid, _ := uuid.NewV7()
+	cb, _ := json.Marshal(map[string]any{"mass_kg": 66.5, "usg": 1.034})
+	h.coachPush("demo-phone-mateo-2", devsync.Record{ID: cid.String(), Kind: "checkin", Athlete: mateo, Day: coachDay, At: now.Format(time.RFC3339),
+		Device: "demo-phone-mateo-2", Stamp: devsync.HLC{L: now.UnixMilli()}, Body: cb})
+	t0 := time.Now()
+	require.NoError(t, pwatest.Poll(b, `(() => { const c = document.querySelector('`+hyd+`'); return c && c.dataset.level === 'alert' && c.textContent.includes('1.034') })()`, 15*time.Second))
+	t.Logf("phone's check-in → alert on the coach's board: %s", time.Since(t0))
+	require.NoError(t, pwatest.Eval(b, `window.__same === true`, &same))
+	assert.True(t, same, "no reload on the second device")
+
 	// On the hub: a decision record for that athlete and day, attached to the flag.
 	fl, err := h.srv.Flags(coachDay, kofi)
 	require.NoError(t, err)
@@ -420,6 +438,23 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	assert.GreaterOrEqual(t, pct, 41.0)
 	assert.LessOrEqual(t, pct, 60.0)
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid="plan-path-point"]').length >= 2`, 10*time.Second))
+
+	// The weigh-in's offset comes from the venue's zone on that date,
+	// daylight saving included: checked against Go's copy of the IANA
+	// time-zone database.
+	for _, c := range []struct{ zone, date, clock string }{
+		{"Europe/Lisbon", "2027-03-27", "10:00"}, {"Europe/Lisbon", "2027-03-28", "10:00"},
+		{"America/New_York", "2027-11-06", "18:30"}, {"America/New_York", "2027-11-07", "18:30"},
+		{"Asia/Kolkata", "2027-01-05", "08:15"}, {"Australia/Adelaide", "2027-04-04", "12:00"},
+	} {
+		loc, err := time.LoadLocation(c.zone)
+		require.NoError(t, err)
+		wall, err := time.ParseInLocation("2006-01-02 15:04", c.date+" "+c.clock, loc)
+		require.NoError(t, err)
+		var got string
+		require.NoError(t, pwatest.Eval(ctx, fmt.Sprintf(`import('/js/coach/plan.js').then((m) => m.weighInRFC3339(%q, %q, %q))`, c.zone, c.date, c.clock), &got))
+		assert.Equal(t, wall.Format(time.RFC3339), strings.Replace(got, "+00:00", "Z", 1), "%v", c)
+	}
 
 	// A start mass that needs more than 1.5 %/week is explained before the camp starts.
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "84.0"))
@@ -524,12 +559,12 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 }
 
 // coachPush sends records to the hub as the coach's laptop would.
-func (h *coachHub) coachPush(recs ...devsync.Record) {
+func (h *coachHub) coachPush(device string, recs ...devsync.Record) {
 	var ms []devsync.Mutation
 	for i, r := range recs {
 		ms = append(ms, devsync.Mutation{N: uint64(i + 1), Op: devsync.OpUpsert, Record: r})
 	}
-	b, _ := json.Marshal(devsync.PushRequest{Device: "coach-laptop-sheet", Mutations: ms})
+	b, _ := json.Marshal(devsync.PushRequest{Device: device, Mutations: ms})
 	res, err := http.Post(h.url("/api/push"), "application/json", bytes.NewReader(b))
 	require.NoError(h.t, err)
 	defer res.Body.Close()
@@ -560,7 +595,7 @@ func TestCoachWallSheetPrintsOnOnePage(t *testing.T) {
 		cb, _ := json.Marshal(map[string]any{"mass_kg": 70.0 + float64(i), "sleep": 4, "fatigue": 3, "soreness": 3, "stress": 4, "mood": 4, "usg": 1.024})
 		recs = append(recs, devsync.Record{ID: c.String(), Kind: "checkin", Athlete: id, Day: coachDay, At: at.Format(time.RFC3339), Device: "coach-laptop-sheet", Stamp: devsync.HLC{L: at.UnixMilli() + 1}, Body: cb})
 	}
-	h.coachPush(recs...)
+	h.coachPush("coach-laptop-sheet", recs...)
 	ctx := coachBrowser(t, h, "/sheet?day="+coachDay)
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="sheet-athlete-"]').length === 8 && document.querySelectorAll('[data-testid="sheet-keys"]').length === 8 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelector('[data-testid="sheet-cautions"]')`, 15*time.Second))
 	var cautions string

@@ -53,14 +53,14 @@ export function AthletePage() {
   return html`<section class="coach" data-testid="screen-athlete">
     <h1>${a ? a.name : 'Fighter charts'}</h1>
     <div class="filters no-print">
-      <div class="field">
+      <div class="field wide">
         <label for="athlete-pick">Athlete</label>
         <select id="athlete-pick" data-testid="athlete-pick" value=${id} onChange=${(e) => setId(e.target.value)}>
           <option value="">Choose…</option>
           ${(list || []).map((x) => html`<option value=${x.id}>${x.name}</option>`)}
         </select>
       </div>
-      <div class="field">
+      <div class="field narrow">
         <label for="athlete-day">Up to</label>
         <input id="athlete-day" type="date" data-testid="athlete-day" value=${day} onChange=${(e) => isDay(e.target.value) && setDay(e.target.value)} />
       </div>

@@ -34,15 +34,41 @@ export function weighInRFC3339(zone, date, time) {
   return `${date}T${time}:00${off >= 0 ? '+' : '-'}${pad(Math.floor(a / 60))}:${pad(a % 60)}`;
 }
 
+// wallClock is the date and time of an RFC 3339 instant on a zone's clock.
+function wallClock(wi, zone) {
+  const t = Date.parse(wi);
+  if (!Number.isFinite(t)) return { date: wi.slice(0, 10), time: wi.slice(11, 16) || '09:00' };
+  try {
+    const p = Object.fromEntries(new Intl.DateTimeFormat('en-US', { timeZone: zone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit' })
+      .formatToParts(new Date(t)).map((x) => [x.type, x.value]));
+    return { date: `${p.year}-${p.month}-${p.day}`, time: `${String(+p.hour % 24).padStart(2, '0')}:${p.minute}` };
+  } catch (_) {
+    return { date: wi.slice(0, 10), time: wi.slice(11, 16) || '09:00' };
+  }
+}
+
+// zoneOfOffset names a fixed-offset zone for a stored weigh-in that came
+// without its venue zone, so re-saving keeps the same instant.
+function zoneOfOffset(wi) {
+  const m = /(Z|([+-])(\d{2}):(\d{2}))$/.exec(wi || '');
+  if (!m) return '';
+  if (m[1] === 'Z' || (m[3] === '00' && m[4] === '00')) return 'UTC';
+  if (m[4] !== '00') return '';
+  const h = Number(m[3]);
+  return `Etc/GMT${m[2] === '+' ? '-' : '+'}${h}`; // POSIX sign: Etc/GMT-1 is UTC+1
+}
+
 const deviceZone = () => { try { return Intl.DateTimeFormat().resolvedOptions().timeZone || 'UTC'; } catch (_) { return 'UTC'; } };
 const zones = () => { try { return Intl.supportedValuesOf('timeZone'); } catch (_) { return ['UTC']; } };
 
 // formFromBout fills the form from a stored bout record.
 function formFromBout(b, units) {
   const wi = b.weigh_in || '';
+  const zone = b.weigh_in_zone || zoneOfOffset(wi) || deviceZone();
+  const wall = wallClock(wi, zone);
   return {
     name: b.name || '', camp_start: b.camp_start || '', bout_day: b.bout_day || '',
-    wi_date: wi.slice(0, 10), wi_time: wi.slice(11, 16) || '09:00', zone: b.weigh_in_zone || deviceZone(),
+    wi_date: wall.date, wi_time: wall.time, zone,
     weigh_in_type: b.weigh_in_type || 'day_before', weight_class: b.weight_class || (b.limit_kg ? 'custom' : ''),
     limit: b.weight_class === 'custom' || !b.weight_class ? (b.limit_kg ? fmtN(massNum(b.limit_kg, units), 1) : '') : '',
     start_mass: b.start_mass_kg ? fmtN(massNum(b.start_mass_kg, units), 1) : '', ref_load: b.reference_load_au ? String(b.reference_load_au) : '',
@@ -205,7 +231,7 @@ export function Plan() {
           ${groups.map(([g, cs]) => html`<optgroup label=${g}>${cs.map((c) => html`<option value=${c.id}>${classLabel(c)}</option>`)}</optgroup>`)}
           <option value="custom">Custom limit (catchweight)</option>
         </select>
-        ${cls && html`<p class="small muted" data-testid="plan-class-limit">${cls.limit ? `Limit ${fmtN(cls.limit, cls.unit === 'lb' ? 0 : 0)} ${cls.unit} = ${mass(cls.limit_kg, units, 2)}${units === 'kg' ? '' : ` (${fmtN(cls.limit_kg, 2)} kg)`}` : 'No upper limit: the mass rules do not apply.'}${cls.recalled ? ' · limit recalled, check the sanctioning body\'s current table' : ''}</p>`}
+        ${cls && html`<p class="small muted" data-testid="plan-class-limit">${limitWords(cls, units)}${cls.recalled ? ' · limit recalled, check the sanctioning body\'s current table' : ''}</p>`}
       </div>
       ${f.weight_class === 'custom' && html`<div><label for="plan-limit">Custom limit</label><div class="unit-input"><input id="plan-limit" data-testid="plan-limit" inputmode="decimal" value=${f.limit} onInput=${(e) => set('limit', e.target.value)} /><span class="unit">${units}</span></div></div>`}
       <div><label for="plan-start-mass">Start mass (morning, at camp start)</label><div class="unit-input"><input id="plan-start-mass" data-testid="plan-start-mass" inputmode="decimal" value=${f.start_mass} onInput=${(e) => set('start_mass', e.target.value)} /><span class="unit">${units}</span></div></div>
@@ -281,7 +307,15 @@ function Checks({ check, errs }) {
 
 function classLabel(c) {
   const lim = c.limit ? `${c.limit} ${c.unit}` : `over ${c.over} ${c.unit}`;
-  return `${c.label} — ${lim}`;
+  return c.label.includes(lim) || c.label.includes(`${c.limit}${c.unit}`) ? c.label : `${c.label} — ${lim}`;
+}
+
+// limitWords states a class limit in its own unit and in the athlete's.
+function limitWords(c, units) {
+  if (!c.limit) return 'No upper limit: the mass rules do not apply.';
+  const own = `${c.limit} ${c.unit}`;
+  if (c.unit === units) return c.unit === 'lb' ? `Limit ${own} (${fmtN(c.limit_kg, 2)} kg)` : `Limit ${own}`;
+  return `Limit ${own} = ${mass(c.limit_kg, units, 2)}`;
 }
 
 const PROGRAMS = { pro: 'Professional (lb)', olympic_2024: 'Olympic 2024 (kg)', world_boxing_2025: 'World Boxing 2025 (kg)' };
