@@ -315,8 +315,9 @@ func Run(ctx context.Context, cfg Config) (rep Report, err error) {
 	logf("pull: %d records in %d pages (%.2f s)", len(pulled), pages, rep.PullSeconds)
 
 	// Each athlete's phone pulls its own view: exactly its athlete's records.
+	// (Without a device Host every request is the laptop's, which sees everything.)
 	for _, d := range sims {
-		if d.role != "athlete" {
+		if d.role != "athlete" || cfg.DeviceHost == "" {
 			continue
 		}
 		mine, _, err := c.pullAll(ctx, as{token: d.token})

@@ -30,6 +30,8 @@ const TILES = [
   ['/incident', 'Incident', 'head knock, knockdown, injury', 'nav-incident'],
   ['/clearance', 'Clearance', 'end a stand-down', 'nav-clearance'],
   ['/today', 'Today', 'entries, corrections', 'nav-today'],
+  ['/review', 'Day board', 'flags, decisions, charts', 'nav-review'],
+  ['/plan', 'Camp plan', 'bout, weeks, mass path', 'nav-plan'],
 ];
 
 export function Home() {
