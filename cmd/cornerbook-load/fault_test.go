@@ -125,8 +125,9 @@ func TestFaultHubKilledMidSync(t *testing.T) {
 	for i := 1; i <= kills; i++ {
 		time.Sleep(time.Duration(20+rng.IntN(280)) * time.Millisecond)
 		if i == kills {
-			// The last kill lands mid-push, so some batches are cut off.
-			for deadline := time.Now().Add(20 * time.Second); led.pending() == 0 && time.Now().Before(deadline); {
+			// The last kill lands mid-push, well before a round's end, so
+			// some batches are cut off.
+			for deadline := time.Now().Add(30 * time.Second); led.pending() < 200 && time.Now().Before(deadline); {
 				time.Sleep(5 * time.Millisecond)
 			}
 			time.Sleep(time.Duration(rng.IntN(30)) * time.Millisecond)
