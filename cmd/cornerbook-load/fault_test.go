@@ -2,8 +2,12 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"flag"
+	"fmt"
 	"math/rand/v2"
+	"net"
+	"net/url"
 	"path/filepath"
 	"slices"
 	"sync"
@@ -208,4 +212,85 @@ func median(ds []time.Duration) time.Duration {
 	s := slices.Clone(ds)
 	slices.Sort(s)
 	return s[len(s)/2]
+}
+
+// TestFaultUploadCutOrAnswerLost covers the two network faults of a push
+// (ENGINEERING.md §3.8): the connection drops mid-upload (a truncated
+// body: nothing may be applied, and the full batch goes through after),
+// and the answer is lost after the hub committed (the device resends the
+// same batch: every mutation is a duplicate, nothing is applied twice).
+func TestFaultUploadCutOrAnswerLost(t *testing.T) {
+	h, err := startSelf("", false, nil)
+	require.NoError(t, err)
+	defer func() { require.NoError(t, h.Close()) }()
+	u, _ := url.Parse(h.URL)
+	c, err := newClient(u, nil, 2, "")
+	require.NoError(t, err)
+	ctx := context.Background()
+	st, err := c.status(ctx)
+	require.NoError(t, err)
+	today, _ := time.Parse(time.DateOnly, st.Today)
+	rng := rand.New(rand.NewPCG(3, 3))
+	ath := newAthletes(1, "cut-laptop", time.Now(), rng)[0]
+	_, err = c.push(ctx, coach, devsync.PushRequest{Device: "cut-laptop", Mutations: []devsync.Mutation{{N: 1, Op: devsync.OpUpsert, Record: ath}}})
+	require.NoError(t, err)
+	s := &sim{role: "staff", athlete: ath.ID, id: "cut-laptop"}
+	s.backlog(today, 10, rng)
+	for i := range s.muts {
+		s.muts[i].N = uint64(i + 2)
+	}
+	body, err := json.Marshal(devsync.PushRequest{Device: "cut-laptop", Mutations: s.muts})
+	require.NoError(t, err)
+	stored := func() int {
+		recs, _, err := c.pullAll(ctx, coach)
+		require.NoError(t, err)
+		return len(recs)
+	}
+
+	// Send the headers and part of the body, then hang up.
+	send := func(part []byte) {
+		conn, err := net.Dial("tcp", u.Host)
+		require.NoError(t, err)
+		defer conn.Close()
+		fmt.Fprintf(conn, "POST /api/push HTTP/1.1\r\nHost: %s\r\nContent-Type: application/json\r\nContent-Length: %d\r\n\r\n", u.Host, len(body))
+		conn.Write(part)
+	}
+	for _, cut := range []int{1, len(body) / 3, len(body) - 1} {
+		send(body[:cut])
+	}
+	time.Sleep(100 * time.Millisecond) // let the hub notice the hang-ups
+	assert.Equal(t, 1, stored(), "a cut upload applies nothing")
+
+	// The whole body, but the device never reads the answer.
+	conn, err := net.Dial("tcp", u.Host)
+	require.NoError(t, err)
+	fmt.Fprintf(conn, "POST /api/push HTTP/1.1\r\nHost: %s\r\nContent-Type: application/json\r\nContent-Length: %d\r\n\r\n", u.Host, len(body))
+	_, err = conn.Write(body)
+	require.NoError(t, err)
+	conn.Close()
+	require.Eventually(t, func() bool { return stored() == 1+len(s.muts) }, 10*time.Second, 20*time.Millisecond,
+		"the hub commits a complete push even when the answer is never read")
+
+	// The device resends the same batch: acknowledged, nothing applied twice.
+	res, err := c.push(ctx, coach, devsync.PushRequest{Device: "cut-laptop", Mutations: s.muts})
+	require.NoError(t, err)
+	assert.Equal(t, s.muts[len(s.muts)-1].N, res.AckedThrough)
+	assert.Zero(t, res.Applied)
+	assert.Equal(t, len(s.muts), res.Duplicates)
+	assert.Empty(t, res.Rejected)
+	recs, _, err := c.pullAll(ctx, coach)
+	require.NoError(t, err)
+	want := map[string]devsync.Record{}
+	for _, m := range s.muts {
+		want[m.Record.ID], err = expected(m.Record)
+		require.NoError(t, err)
+	}
+	chk := compare(recs, want, map[string]bool{"cut-laptop": true})
+	assert.Equal(t, Check{Stored: len(s.muts) + 1, Unexpected: 1}, Check{Stored: chk.Stored, Missing: chk.Missing, Duplicates: chk.Duplicates, Mismatched: chk.Mismatched, Unexpected: chk.Unexpected},
+		"every record once, as sent (the athlete record is the one not in this batch)")
+	for id := range want {
+		hist, err := h.Store.History(id)
+		require.NoError(t, err)
+		assert.Len(t, hist, 1, "record %s has one version", id)
+	}
 }
