@@ -144,7 +144,7 @@ export function Checkin() {
     ${WELLNESS.map(([k, label, words]) => html`<label>${label}</label>
       <div class="scale" role="group" aria-label=${label}>
         ${words.map((w, i) => html`<${Choice} value=${i + 1} current=${f[k]} onPick=${(v) => set(k, f[k] === v ? undefined : v)}
-          testid=${`wellness-${k}-${i + 1}`} label=${`${label}: ${w} (${i + 1} of 5)`}>${i + 1}<small>${w}</small></${Choice}>`)}
+          testid=${`wellness-${k}-${i + 1}`}>${i + 1}<small>${w}</small></${Choice}>`)}
       </div>`)}
     <p class="muted small">5 is the best answer for every item.</p>
     <label for="checkin-sleep_h">Sleep last night</label>
@@ -209,7 +209,7 @@ export function Session() {
     <label>How hard was the whole session?</label>
     <div class="scale11" role="group" aria-label="Session RPE, 0 to 10">
       ${[10, 9, 8, 7, 6, 5, 4, 3, 2, 1, 0].map((v) => html`<${Choice} value=${v} current=${f.rpe} onPick=${(x) => set('rpe', x)}
-        testid=${`rpe-${v}`} label=${`${v}${CR10[v] ? ' ' + CR10[v] : ''}`}><b>${v}</b><small>${CR10[v] || ''}</small></${Choice}>`)}
+        testid=${`rpe-${v}`}><b>${v}</b><small>${CR10[v] || ''}</small></${Choice}>`)}
     </div>
     <p class="muted small">Answer about half an hour after the session, for the session as a whole.</p>
     <label for="session-minutes">Duration</label>

@@ -36,6 +36,6 @@ export function JumpRef({ id, standing, values, mode }) {
   const r = m == null ? null : relPct(m, base);
   const noise = b.cmj_noise_pct;
   return html`<span class="rs-ref" data-testid=${`jump-baseline-${id}`} data-baseline=${base} data-noise=${noise}>
-      baseline <b class="num">${base.toFixed(1)} cm</b>${noise != null ? html` <span class="num">± ${noise.toFixed(1)} %</span>` : ''}${standing.state === 'kept' ? ` · as of ${hhmm(standing.at)}` : ''}</span>
+      28-day baseline <b class="num">${base.toFixed(1)} cm</b>${noise != null ? html` · noise <span class="num">± ${noise.toFixed(1)} %</span>` : ''}${standing.state === 'kept' ? ` · as of ${hhmm(standing.at)}` : ''}</span>
     ${r != null && html`<span class="rs-rel num" data-testid=${`jump-rel-${id}`} data-pct=${r.toFixed(1)}>today ${r < 0 ? '−' : '+'}${Math.abs(r).toFixed(1)} % vs baseline</span>`}`;
 }

@@ -19,10 +19,10 @@ function holdOf(standing, localHolds, id) {
 function Standing({ standing, id }) {
   const b = standing.byId[id];
   if (b) {
-    const over = b.spar_cap_rounds > 0 && b.spar_rounds_7d >= b.spar_cap_rounds;
-    return html`<span class=${`rs-spar${over ? ' over' : ''}`} data-testid=${`ringside-spar-${id}`}
+    return html`<span class="rs-spar" data-testid=${`ringside-spar-${id}`}
       data-rounds=${b.spar_rounds_7d} data-cap=${b.spar_cap_rounds}>
-      <b class="num">${b.spar_rounds_7d}</b>${b.spar_cap_rounds > 0 ? html` / <span class="num">${b.spar_cap_rounds}</span>` : ''} sparring rounds in 7 days${b.spar_cap_rounds > 0 ? ' (cap)' : ''}${standing.state === 'kept' ? html` <span class="muted">· as of ${hhmm(standing.at)}</span>` : ''}</span>`;
+      <b class="num">${b.spar_rounds_7d}</b>${b.spar_cap_rounds > 0 ? html`<span class="num"> / ${b.spar_cap_rounds}</span>` : ''}
+      <small>sparring rounds, 7 days${standing.state === 'kept' ? ` · as of ${hhmm(standing.at)}` : ''}</small></span>`;
   }
   if (standing.state === 'loading') return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`}>asking the hub…</span>`;
   return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`} data-unknown="true">Sparring count and hold status unknown offline</span>`;
