@@ -112,7 +112,7 @@ func start(t *testing.T, dir string) (*pwatest.Browser, context.Context, *logBuf
 			t.Logf("browser log:\n%s", log.String())
 		}
 	})
-	ctx, cancel := context.WithTimeout(b.Ctx(), 60*time.Second)
+	ctx, cancel := context.WithTimeout(b.Ctx(), 120*time.Second)
 	t.Cleanup(cancel)
 	return b, ctx, log
 }

@@ -45,7 +45,7 @@ func TestUpdateWaitsForTheTapThenReloadsOnce(t *testing.T) {
 	url := "http://" + ln.Addr().String()
 
 	b := pwatest.Start(t, pwatest.Options{})
-	ctx, cancel := context.WithTimeout(b.Ctx(), 60*time.Second)
+	ctx, cancel := context.WithTimeout(b.Ctx(), 120*time.Second)
 	defer cancel()
 	require.NoError(t, pwatest.Open(ctx, url+"/settings"))
 	require.NoError(t, pwatest.WaitControlled(ctx))

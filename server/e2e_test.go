@@ -58,7 +58,7 @@ func e2eBrowser(t testing.TB, dir string) (*pwatest.Browser, context.Context, *e
 			t.Logf("page console:\n%s", log.String())
 		}
 	})
-	ctx, cancel := context.WithTimeout(b.Ctx(), 60*time.Second)
+	ctx, cancel := context.WithTimeout(b.Ctx(), 120*time.Second)
 	t.Cleanup(cancel)
 	return b, ctx, log
 }
@@ -395,7 +395,7 @@ func TestE2EJoinWithACodeKeepsEntriesMadeBefore(t *testing.T) {
 	_, port, _ := net.SplitHostPort(srv.Addr())
 	log := &e2eLog{}
 	b := pwatest.Start(t, pwatest.Options{Log: log, Flags: map[string]any{"host-resolver-rules": "MAP camp.test 127.0.0.1"}})
-	ctx, cancel := context.WithTimeout(b.Ctx(), 60*time.Second)
+	ctx, cancel := context.WithTimeout(b.Ctx(), 120*time.Second)
 	defer cancel()
 	base := "http://camp.test:" + port
 	require.NoError(t, pwatest.Open(ctx, base+"/"))
