@@ -87,6 +87,7 @@ function StatusBar() {
   return html`<div class="status" data-testid="status" role="status" aria-live="polite"
       data-waiting=${s.waiting} data-rejected=${s.rejected} data-reachable=${String(s.reachable)} data-syncing=${String(s.syncing)} data-last-sync=${s.lastSync}>
     ${!secure && html`<span class="pill warn" data-testid="status-insecure">Open the https address / install the certificate — on this address the app cannot work offline.</span>`}
+    ${navigator.standalone === false && html`<span class="pill warn" data-testid="status-install">On iPhone, install first: Share → Add to Home Screen. Entries made in a Safari tab stay in that tab, apart from the installed app.</span>`}
     ${u.waiting && html`<button class="pill warn" type="button" data-testid="status-update" onClick=${applyUpdate}>Update ready — tap to reload</button>`}
     ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync</span>`}
     ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this phone</span>`}
