@@ -203,7 +203,9 @@ func coveringDays(t *testing.T, h *coachHub) []string {
 
 func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
 	h := startCoachHub(t)
-	ctx := coachBrowser(t, h, "/review?day="+coachDay)
+	ctx := coachBrowser(t, h, "/")
+	require.NoError(t, pwatest.Click(ctx, "nav-review")) // the board is one tap from Home
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="screen-review"]')`, 10*time.Second))
 	units := map[string]string{}
 	for name, id := range h.ids() {
 		units[id] = "kg"
@@ -524,11 +526,11 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 	ctx := coachBrowser(t, h, "/review?day="+coachDay)
 	dir := filepath.Join("..", "testdata", "screenshots")
 	require.NoError(t, os.MkdirAll(dir, 0o755))
-	screens := []struct{ name, path, ready string }{
-		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`},
-		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart')].length === 5 && [...document.querySelectorAll('figure.chart')].every((e) => Number(e.dataset.points) > 0)`},
-		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`},
-		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 4 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`},
+	screens := []struct{ name, path, ready, more string }{
+		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`, `[data-testid^="review-athlete-"]`},
+		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart')].length === 5 && [...document.querySelectorAll('figure.chart')].every((e) => Number(e.dataset.points) > 0)`, `[data-testid="chart-load"]`},
+		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`, `[data-testid="plan-weeks"]`},
+		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 4 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`, ""},
 	}
 	sizes := []struct{ w, h int64 }{{360, 740}, {1280, 800}}
 	for _, scheme := range []string{"light", "dark"} {
@@ -553,6 +555,14 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 				png, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
 				require.NoError(t, err)
 				require.NoError(t, os.WriteFile(filepath.Join(dir, fmt.Sprintf("coach-%s-%dx%d-%s.png", s.name, sz.w, sz.h, scheme)), png, 0o644))
+				if s.more != "" { // a second view further down the screen
+					require.NoError(t, pwatest.Eval(ctx, fmt.Sprintf(`(() => { document.querySelector(%q).scrollIntoView(); return true })()`, s.more), nil))
+					time.Sleep(100 * time.Millisecond)
+					png, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
+					require.NoError(t, err)
+					require.NoError(t, os.WriteFile(filepath.Join(dir, fmt.Sprintf("coach-%s-more-%dx%d-%s.png", s.name, sz.w, sz.h, scheme)), png, 0o644))
+					require.NoError(t, pwatest.Eval(ctx, `(() => { scrollTo(0, 0); return true })()`, nil))
+				}
 			}
 		}
 	}

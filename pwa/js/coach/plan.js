@@ -9,6 +9,8 @@ import { hubGet, hubPost, getTables } from './api.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
 
 const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium-heavy', heavy: 'Heavy', taper: 'Taper' };
+const MON = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
+const dayMonth = (d) => `${+d.slice(8, 10)} ${MON[+d.slice(5, 7) - 1]}`;
 const dayOfNumber = (n) => new Date(n * 86400000).toISOString().slice(0, 10);
 
 // zoneOffset is the UTC offset (minutes) of an IANA zone at a wall-clock
@@ -249,7 +251,7 @@ export function Plan() {
     ${f.weeks.length > 0 && html`<div class="weeks" data-testid="plan-weeks" role="table" aria-label="Planned weeks">
       <div class="wrow whead" role="row"><span role="columnheader">Week</span><span role="columnheader">Load level</span><span role="columnheader">Sparring cap, rounds</span></div>
       ${f.weeks.map((w, i) => html`<div class="wrow" role="row" data-testid=${`plan-week-${i + 1}`} data-level=${w.level}>
-        <span class="wk" role="cell"><strong>${i + 1}</strong><br /><span class="small muted">${weekStart(i) ? shortDay(weekStart(i)) : ''}</span></span>
+        <span class="wk" role="cell"><strong>${i + 1}</strong><br /><span class="small muted">${weekStart(i) ? dayMonth(weekStart(i)) : ''}</span></span>
         <span role="cell"><select data-testid=${`plan-week-${i + 1}-level`} aria-label=${`Week ${i + 1} load level`} value=${w.level}
           onChange=${(e) => set('weeks', f.weeks.map((x, j) => (j === i ? { ...x, level: e.target.value } : x)))}>
           ${Object.entries(LEVEL_WORDS).map(([k, t]) => html`<option value=${k}>${t}</option>`)}</select>
