@@ -9,6 +9,7 @@ import (
 	"net/http"
 	"strconv"
 	"strings"
+	"time"
 	"unicode/utf8"
 
 	"github.com/gorilla/mux"
@@ -80,8 +81,10 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 		Applied: res.Applied, Superseded: res.Superseded, Duplicates: res.Duplicates,
 		ServerTime: s.now().UnixMilli(), ServerHLC: hlc, MaxSeq: res.MaxSeq, Epoch: epoch,
 	})
-	if s.cfg.Auth != nil && who.DeviceID != "" {
-		s.cfg.Auth.ReportSync(who.DeviceID, s.now(), req.Waiting)
+	if s.cfg.Auth != nil && who.DeviceID != "" && s.shouldReport(who.DeviceID, req.Waiting) {
+		if err := s.cfg.Auth.ReportSync(who.DeviceID, s.now(), req.Waiting); err != nil {
+			s.logf("device list: could not note the sync of %s: %v", who.DeviceID, err)
+		}
 	}
 	if res.Applied > 0 {
 		s.flags.Changed(res.Changed)
@@ -264,4 +267,30 @@ func humanMs(ms int64) string {
 		return fmt.Sprintf("%.0f minutes", float64(ms)/60_000)
 	}
 	return fmt.Sprintf("%.0f seconds", float64(ms)/1000)
+}
+
+// reportEvery bounds how often a device's "last sync" is written to the
+// device list: each write is a commit of its own, and a backlog arrives
+// as a burst of pushes. A change in the waiting count is written at once.
+const reportEvery = 30 * time.Second
+
+type syncReport struct {
+	at      time.Time
+	waiting int
+}
+
+// shouldReport says whether this push's sync note is worth a commit.
+func (s *Server) shouldReport(device string, waiting int) bool {
+	s.reportMu.Lock()
+	defer s.reportMu.Unlock()
+	now := s.now()
+	last, ok := s.reported[device]
+	if ok && last.waiting == waiting && now.Sub(last.at) < reportEvery {
+		return false
+	}
+	if s.reported == nil {
+		s.reported = map[string]syncReport{}
+	}
+	s.reported[device] = syncReport{at: now, waiting: waiting}
+	return true
 }

@@ -6,6 +6,7 @@ import (
 	"log"
 	"net/http"
 	"strconv"
+	"syscall"
 	"time"
 
 	devsync "cornerbook/sync"
@@ -40,6 +41,7 @@ var statusOf = map[string]int{
 	CodeUnavailable:        http.StatusServiceUnavailable,
 	CodeInternal:           http.StatusInternalServerError,
 	CodeGone:               http.StatusGone,
+	CodeDiskFull:           http.StatusInsufficientStorage,
 	CodeConflict:           http.StatusConflict,
 }
 
@@ -51,8 +53,9 @@ const (
 	CodeThrottled    = "THROTTLED"
 	CodeUnavailable  = "UNAVAILABLE"
 	CodeInternal     = "INTERNAL"
-	CodeGone         = "GONE"     // a used or expired join code
-	CodeConflict     = "CONFLICT" // e.g. the passphrase is already set
+	CodeGone         = "GONE"      // a used or expired join code
+	CodeDiskFull     = "DISK_FULL" // the hub cannot write: nothing was stored
+	CodeConflict     = "CONFLICT"  // e.g. the passphrase is already set
 )
 
 // Errorf builds a user-facing error.
@@ -86,6 +89,9 @@ func (s *Server) serve(h handlerFunc) http.HandlerFunc {
 		if !errors.As(err, &ue) {
 			if fe := fromField(err); fe != nil {
 				ue = fe
+			} else if errors.Is(err, syscall.ENOSPC) {
+				s.logf("disk full on %s %s: %v", r.Method, r.URL.Path, err)
+				ue = userError(CodeDiskFull, "", "the hub laptop's disk is full: nothing was changed, and the entries stay safe on the device until space is freed")
 			} else {
 				s.logf("internal error on %s %s: %v", r.Method, r.URL.Path, err)
 				ue = userError(CodeInternal, "", "the hub hit an internal error; nothing was changed")

@@ -70,6 +70,9 @@ type Server struct {
 	clock   devsync.Clock
 
 	down atomic.Bool // test kill switch: drop every connection
+
+	reportMu sync.Mutex // guards reported
+	reported map[string]syncReport
 }
 
 // OpenStore opens (or creates) the data folder's database with the

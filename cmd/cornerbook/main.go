@@ -48,6 +48,7 @@ func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	}
 	if err != nil {
 		if err == errUsage {
+			fmt.Fprintf(stderr, "cornerbook %s: the command line is not complete or has extra words\n\n%s", cmd, usage)
 			return 2
 		}
 		fmt.Fprintf(stderr, "cornerbook %s: %v\n", cmd, err)

@@ -112,7 +112,7 @@ func (s *Store) NewJoin(role Role, athleteID, createdBy string, now time.Time) (
 	case role == RoleAthlete && athleteID == "":
 		return Join{}, devsync.Invalid("athlete", "an athlete's device belongs to one athlete: choose which")
 	case role != RoleAthlete && athleteID != "":
-		return Join{}, devsync.Invalid("athlete", "only athlete devices belong to an athlete; leave it empty for a %s device", role)
+		return Join{}, devsync.Invalid("athlete", "only athlete devices belong to an athlete; leave it empty for %s %s device", article(string(role)), role)
 	}
 	if err := validAthleteID(athleteID); err != nil {
 		return Join{}, err

@@ -3,6 +3,7 @@ package auth
 import (
 	"fmt"
 	"slices"
+	"strings"
 
 	"cornerbook/server/records"
 	devsync "cornerbook/sync"
@@ -48,7 +49,7 @@ func RequireCoach(d Device) error {
 		return ErrRevoked
 	}
 	if d.Role != RoleCoach {
-		return forbid("", "only a coach's device can do this (this is a %s device)", d.Role)
+		return forbid("", "only a coach's device can do this (this is %s %s device)", article(string(d.Role)), d.Role)
 	}
 	return nil
 }
@@ -144,4 +145,12 @@ func kindName(k string) string {
 		return "kindless"
 	}
 	return fmt.Sprintf("%q", k)
+}
+
+// article is "a" or "an" for a role name.
+func article(word string) string {
+	if word != "" && strings.ContainsRune("aeiou", rune(word[0])) {
+		return "an"
+	}
+	return "a"
 }

@@ -206,6 +206,8 @@ func decodeLine(raw []byte) (devsync.Record, error) {
 			return rec, devsync.Invalid(te.Field, "has the wrong type (a JSON %s)", te.Value)
 		case strings.HasPrefix(err.Error(), "json: unknown field "):
 			return rec, devsync.Invalid(strings.Trim(strings.TrimPrefix(err.Error(), "json: unknown field "), `"`), "is not a field of the record format")
+		case errors.Is(err, io.ErrUnexpectedEOF):
+			return rec, devsync.Invalid("", "ends in the middle of a record (is the line cut short?)")
 		}
 		return rec, devsync.Invalid("", "%v", err)
 	}
