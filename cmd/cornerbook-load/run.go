@@ -247,14 +247,13 @@ func Run(ctx context.Context, cfg Config) (rep Report, err error) {
 		return rep, err
 	}
 	var batches [][]devsync.Mutation
-	owner := []*sim{}
 	for _, d := range sims {
 		ours[d.id] = true
 		d.backlog(today, cfg.Days, rng)
 		var exp [][]devsync.Record
 		for off := 0; off < len(d.muts); off += cfg.Batch {
 			b := d.muts[off:min(off+cfg.Batch, len(d.muts))]
-			batches, owner = append(batches, b), append(owner, d)
+			batches = append(batches, b)
 			var eb []devsync.Record
 			for _, m := range b {
 				e, err := expected(m.Record)
@@ -281,7 +280,6 @@ func Run(ctx context.Context, cfg Config) (rep Report, err error) {
 	t := &tally{acked: len(athletes), pushes: 1}
 	var wg sync.WaitGroup
 	gate := make(chan struct{})
-	t1 := time.Now()
 	for _, d := range sims {
 		wg.Add(1)
 		go func() {
@@ -290,7 +288,7 @@ func Run(ctx context.Context, cfg Config) (rep Report, err error) {
 			d.pushAll(ctx, c, cfg, st.Epoch, want, t)
 		}()
 	}
-	t1 = time.Now()
+	t1 := time.Now()
 	close(gate)
 	wg.Wait()
 	push := time.Since(t1)
