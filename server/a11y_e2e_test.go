@@ -96,13 +96,58 @@ type appScreen struct {
 
 func appScreens(h *ringHub) []appScreen {
 	q := func(id string) string { return fmt.Sprintf("document.querySelector(%q)", pwatest.Q(id)) }
-	mateo := h.names["Mateo Lindqvist"]
+	mateo, kofi := h.names["Mateo Lindqvist"], h.names["Kofi Brandt"]
 	return []appScreen{
 		{name: "home", path: "/", ready: q("screen-home") + ` && document.querySelectorAll('[data-testid="athlete-option"]').length === 4`},
 		{name: "checkin", path: "/checkin", ready: q("screen-checkin") + ` && ` + q("checkin-units"),
 			setup: func(ctx context.Context) error { return pwatest.SelectAthlete(ctx, "Ines Halloran") }},
 		{name: "jumps", path: "/jumps", ready: q("screen-jumps") + ` && document.querySelectorAll('[data-testid^="jump-baseline-"]').length === 4 && !document.querySelector('[data-testid^="jump-baseline-"][data-unknown]')`},
-		{name: "rounds", path: "/rounds", ready: q("screen-rounds") + ` && document.querySelectorAll('[data-testid^="ringside-spar-"][data-rounds]').length === 4`},
+		{name: "rounds", path: "/rounds", ready: q("screen-rounds") + ` && document.querySelectorAll('[data-testid^="ringside-spar-"][data-rounds]').length === 4`,
+			setup: func(ctx context.Context) error {
+				return pwatest.Eval(ctx, `import('/js/ringside/clock.js').then((m) => { m.reset(); return true })`, nil)
+			}},
+		// Ringside's other states: the clock running, its settings, the
+		// question before sparring an athlete on hold, the incident panel.
+		{name: "rounds-running", path: "/rounds?state=running", ready: `document.querySelector('[data-testid="clock"][data-running="true"]')`,
+			setup: func(ctx context.Context) error { return pwatest.Click(ctx, "clock-start") }},
+		{name: "rounds-settings", path: "/rounds?state=settings", ready: q("clock-settings-panel"),
+			setup: func(ctx context.Context) error {
+				if err := pwatest.Eval(ctx, `import('/js/ringside/clock.js').then((m) => { m.reset(); return true })`, nil); err != nil {
+					return err
+				}
+				return pwatest.Click(ctx, "clock-settings")
+			}},
+		{name: "rounds-hold-ask", path: "/rounds?state=hold", ready: q("round-hold-ask"),
+			setup: func(ctx context.Context) error {
+				if err := pwatest.Poll(ctx, q("ringside-hold-"+mateo), 10*time.Second); err != nil {
+					return err
+				}
+				for _, id := range []string{"round-athlete-" + mateo, "round-activity-spar", "round-done"} {
+					if err := pwatest.Click(ctx, id); err != nil {
+						return err
+					}
+				}
+				return nil
+			}},
+		{name: "rounds-incident", path: "/rounds?state=incident", ready: q("ringside-incident-panel"),
+			setup: func(ctx context.Context) error {
+				if err := pwatest.Click(ctx, "ringside-incident"); err != nil {
+					return err
+				}
+				return pwatest.Click(ctx, "ringside-incident-athlete-"+kofi)
+			}},
+		{name: "jumps-typed", path: "/jumps?state=typed", ready: q("jump-rel-" + kofi),
+			setup: func(ctx context.Context) error {
+				if err := pwatest.Poll(ctx, `document.querySelector('[data-testid="jump-baseline-`+kofi+`"][data-baseline]')`, 10*time.Second); err != nil {
+					return err
+				}
+				for i, v := range []string{"40.1", "38.9", "39.6"} {
+					if err := pwatest.Type(ctx, fmt.Sprintf("jump-%s-%d", kofi, i), v); err != nil {
+						return err
+					}
+				}
+				return nil
+			}},
 		{name: "intervals", path: "/intervals", ready: q("screen-intervals")},
 		{name: "session", path: "/session", ready: q("screen-session")},
 		{name: "incident", path: "/incident", ready: q("screen-incident")},

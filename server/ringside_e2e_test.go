@@ -310,3 +310,29 @@ func TestRingsideJumpGridShowsBaseline(t *testing.T) {
 	}
 	assert.Contains(t, rel, fmt.Sprintf("%s%.1f %%", sign, math.Abs(want)))
 }
+
+// TestRingsideOfflineSaysWhatItKnows: with the hub gone, ringside keeps
+// the copy it fetched this session ("as of"); opened afresh offline it
+// says the hold status is unknown, and still warns from the incidents on
+// the device.
+func TestRingsideOfflineSaysWhatItKnows(t *testing.T) {
+	h := startRingHub(t)
+	ctx := ringBrowser(t, h, "/rounds")
+	require.NoError(t, pwatest.WaitControlled(ctx))
+	mateo, kofi := h.names["Mateo Lindqvist"], h.names["Kofi Brandt"]
+	require.NoError(t, pwatest.WaitText(ctx, "ringside-hold-"+mateo, "No sparring — on hold: Stand-down"))
+
+	h.stop()
+	require.NoError(t, pwatest.Route(ctx, "/jumps"))
+	require.NoError(t, pwatest.WaitText(ctx, "jump-baseline-"+kofi, "as of"))
+	require.NoError(t, pwatest.Route(ctx, "/rounds"))
+	require.NoError(t, pwatest.WaitText(ctx, "ringside-spar-"+kofi, "as of"))
+	require.NoError(t, pwatest.WaitText(ctx, "ringside-hold-"+mateo, "Stand-down"))
+
+	require.NoError(t, pwatest.Reload(ctx))
+	require.NoError(t, pwatest.WaitText(ctx, "ringside-offline", "hold status unknown offline"))
+	require.NoError(t, pwatest.WaitText(ctx, "ringside-spar-"+kofi, "unknown offline"))
+	require.NoError(t, pwatest.WaitText(ctx, "ringside-hold-"+mateo, "an open incident on this device"))
+	require.NoError(t, pwatest.Route(ctx, "/jumps"))
+	require.NoError(t, pwatest.WaitText(ctx, "jump-baseline-"+kofi, "baseline unknown offline"))
+}

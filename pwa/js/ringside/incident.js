@@ -2,7 +2,8 @@
 // and what happened, then the incident is written through the app's write
 // path (saved on this phone, synced like every entry) and the stand-down
 // is shown in plain words.
-import { html, useState, savedState, SaveLine } from '../ui.js';
+import { html, useState, useRef, useEffect, savedState, SaveLine } from '../ui.js';
+import { showPanel } from './rounds.js';
 import { save } from '../db.js';
 import { localDay } from '../record.js';
 import { INCIDENTS, HOLD_TEXT } from '../screens.js';
@@ -15,6 +16,8 @@ export function RingsideIncident({ list, chosen }) {
   const [who, setWho] = useState('');
   const [type, setType] = useState('head_knock');
   const [state, setState] = useState(null);
+  const box = useRef(null);
+  useEffect(() => { if (step !== 'closed') showPanel(box.current); }, [step]);
   const name = (id) => (list.find((a) => a.id === id) || {}).name || '';
   const label = (INCIDENTS.find(([v]) => v === type) || [type, type])[1];
   const open = () => {
@@ -36,15 +39,15 @@ export function RingsideIncident({ list, chosen }) {
     return html`<button type="button" class="rs-incident" data-testid="ringside-incident" onClick=${open}>Incident: head knock, knockdown…</button>`;
   }
   if (step === 'done') {
-    return html`<div class="rs-panel" data-testid="ringside-incident-done">
+    return html`<div class="rs-panel" data-testid="ringside-incident-done" ref=${box}>
       <${SaveLine} state=${state} />
-      ${STANDS_DOWN.has(type) && html`<p class="rs-hold rs-standdown" data-testid="ringside-standdown">${name(who)}: ${HOLD_TEXT}</p>
+      ${STANDS_DOWN.has(type) && html`<p class="rs-hold rs-standdown" data-testid="ringside-standdown" tabindex="-1">${name(who)}: ${HOLD_TEXT}</p>
         <p class="muted small">Treat a head knock or knockdown as a suspected concussion: stop the round for this athlete. Return to contact follows the medical team's graded steps.</p>`}
       <button type="button" class="secondary" data-testid="ringside-incident-close" onClick=${() => setStep('closed')}>Back to the rounds</button>
     </div>`;
   }
-  return html`<div class="rs-panel" role="group" aria-labelledby="rs-incident-title" data-testid="ringside-incident-panel">
-    <p class="rs-confirm-title" id="rs-incident-title">${step === 'confirm' ? 'Log this incident?' : 'Incident'}</p>
+  return html`<div class="rs-panel" role="group" aria-labelledby="rs-incident-title" data-testid="ringside-incident-panel" ref=${box}>
+    <p class="rs-confirm-title" id="rs-incident-title" tabindex="-1">${step === 'confirm' ? 'Log this incident?' : 'Incident'}</p>
     ${step === 'pick' && html`
       <p class="rs-q">Who?</p>
       <div class="row" role="group" aria-label="Athlete">

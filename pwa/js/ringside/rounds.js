@@ -2,7 +2,7 @@
 // 7-day sparring count against the cap and any stand-down beside them,
 // and the gate that asks before a sparring round is logged for an athlete
 // on hold (it still records: the coach decides, and the hub flags it).
-import { html, useState } from '../ui.js';
+import { html, useState, useRef, useEffect } from '../ui.js';
 import { HOLD_TEXT } from '../screens.js';
 import { hhmm } from './standing.js';
 import './style.js';
@@ -22,7 +22,7 @@ function Standing({ standing, id }) {
     return html`<span class="rs-spar" data-testid=${`ringside-spar-${id}`}
       data-rounds=${b.spar_rounds_7d} data-cap=${b.spar_cap_rounds}>
       <b class="num">${b.spar_rounds_7d}</b>${b.spar_cap_rounds > 0 ? html`<span class="num"> / ${b.spar_cap_rounds}</span>` : ''}
-      <small>sparring rounds, 7 days${standing.state === 'kept' ? ` · as of ${hhmm(standing.at)}` : ''}</small></span>`;
+      <small>sparring rounds</small><small>last 7 days${standing.state === 'kept' ? `, as of ${hhmm(standing.at)}` : ''}</small></span>`;
   }
   if (standing.state === 'loading') return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`}>asking the hub…</span>`;
   return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`} data-unknown="true">Sparring count and hold status unknown offline</span>`;
@@ -47,10 +47,26 @@ export function AthleteChips({ list, chosen, toggle, counts, editing, standing, 
   </div>`;
 }
 
+// shortReason drops the stand-down sentence the panel already shows.
+function shortReason(why) {
+  return why.replace(/[:;,.]?\s*no sparring or contact until cleared in writing by a doctor\.?\s*$/i, '.').replace(/^\./, '') || why;
+}
+
+// showPanel brings a panel that opened below the tapped button into view
+// and moves the screen reader's focus to its title.
+export function showPanel(el) {
+  if (!el) return;
+  el.scrollIntoView({ block: 'nearest' });
+  const t = el.querySelector('[tabindex="-1"]');
+  if (t) t.focus({ preventScroll: true });
+}
+
 // useSparGate returns [tryDone, panel]: tryDone logs at once unless a
 // sparring round names an athlete on hold; then panel asks first.
 export function useSparGate({ activity, chosen, list, standing, localHolds, onDone }) {
   const [ask, setAsk] = useState(null);
+  const box = useRef(null);
+  useEffect(() => { if (ask) showPanel(box.current); }, [ask]);
   const tryDone = () => {
     if (activity !== 'spar') return onDone();
     const held = chosen.map((id) => [id, holdOf(standing, localHolds, id)]).filter(([, h]) => h);
@@ -58,10 +74,10 @@ export function useSparGate({ activity, chosen, list, standing, localHolds, onDo
     setAsk(held.map(([id, h]) => ({ id, name: (list.find((a) => a.id === id) || {}).name || id, why: h })));
     return undefined;
   };
-  const panel = ask && html`<div class="rs-confirm" role="alertdialog" aria-labelledby="rs-hold-title" data-testid="round-hold-ask">
-    <p class="rs-confirm-title" id="rs-hold-title">Sparring during a stand-down</p>
-    ${ask.map((x) => html`<p><strong>${x.name}</strong> is on hold: ${x.why}</p>`)}
-    <p>${HOLD_TEXT} Log this sparring round anyway? It is recorded as it happened and the hub flags it.</p>
+  const panel = ask && html`<div class="rs-confirm" role="alertdialog" aria-labelledby="rs-hold-title" data-testid="round-hold-ask" ref=${box}>
+    <p class="rs-confirm-title" id="rs-hold-title" tabindex="-1">${HOLD_TEXT}</p>
+    ${ask.map((x) => html`<p><strong>${x.name}</strong> is on hold: ${shortReason(x.why)}</p>`)}
+    <p>Log this sparring round anyway? It is recorded as it happened, and the hub flags it for the coach and the medical team.</p>
     <button type="button" class="primary rs-warn-btn" data-testid="round-hold-confirm" onClick=${() => { setAsk(null); onDone(); }}>Log it anyway</button>
     <button type="button" class="secondary" data-testid="round-hold-cancel" onClick=${() => setAsk(null)}>Cancel</button>
   </div>`;
