@@ -199,12 +199,22 @@ func TestRingsideClockRingsAndOffersTheRound(t *testing.T) {
 	require.NoError(t, pwatest.Click(ctx, "clock-reset"))
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="clock"]').dataset.phase === 'ready'`, 2*time.Second))
 
+	// A 12 s round pips its warning 10 s before the end.
+	require.NoError(t, pwatest.Type(ctx, "clock-round-s", "12"))
+	require.NoError(t, pwatest.WaitText(ctx, "clock-time", "0:12"))
+	require.NoError(t, pwatest.Click(ctx, "clock-start"))
+	warnAt := time.Now()
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="clock"]').dataset.sound === 'warn' && document.querySelector('[data-testid="clock"]').dataset.warn === 'true'`, 5*time.Second))
+	assert.InDelta(t, 2, time.Since(warnAt).Seconds(), 1, "the warning comes 10 s before the end")
+	assert.Equal(t, "round", attr(t, ctx, "clock", "data-phase"))
+	require.NoError(t, pwatest.Click(ctx, "clock-reset"))
+
 	require.NoError(t, pwatest.WaitSynced(ctx))
 	got := h.live("round", tomas, day)
 	require.Len(t, got, before+1, "the offered round was logged once")
 
 	require.NoError(t, pwatest.Reload(ctx))
-	require.NoError(t, pwatest.WaitText(ctx, "clock-time", "0:05"), "the clock's lengths are kept on the device")
+	require.NoError(t, pwatest.WaitText(ctx, "clock-time", "0:12"), "the clock's lengths are kept on the device")
 }
 
 // TestRingsideHoldAndIncident: an athlete on a stand-down shows "No
@@ -309,6 +319,27 @@ func TestRingsideJumpGridShowsBaseline(t *testing.T) {
 		sign = "−"
 	}
 	assert.Contains(t, rel, fmt.Sprintf("%s%.1f %%", sign, math.Abs(want)))
+
+	// Flight time: each attempt's height is h = g·t²/8 (flight-time method,
+	// Bosco et al. 1983; g = 9.81 m/s², as the hub derives heights), and
+	// the mean of those heights is set against the baseline.
+	ines := h.names["Ines Halloran"]
+	bi := h.baselines(t, day)["Ines Halloran"]
+	require.NotNil(t, bi.CMJBaseline)
+	require.NoError(t, pwatest.Click(ctx, "jump-mode-flight"))
+	flights := []float64{500, 520, 490}
+	for i, v := range flights {
+		require.NoError(t, pwatest.Type(ctx, fmt.Sprintf("jump-%s-%d", ines, i), fmt.Sprint(v)))
+	}
+	sum := 0.0
+	for _, ms := range flights {
+		tt := ms / 1000
+		sum += 9.81 * tt * tt / 8 * 100
+	}
+	wantI := (sum/3 - *bi.CMJBaseline) / *bi.CMJBaseline * 100
+	require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector(%q)`, pwatest.Q("jump-rel-"+ines)), 5*time.Second))
+	require.NoError(t, pwatest.Eval(ctx, fmt.Sprintf(`Number(document.querySelector(%q).dataset.pct)`, pwatest.Q("jump-rel-"+ines)), &pct))
+	assert.InDelta(t, math.Round(wantI*10)/10, pct, 1e-9)
 }
 
 // TestRingsideOfflineSaysWhatItKnows: with the hub gone, ringside keeps
