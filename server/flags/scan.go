@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"strconv"
+	"unicode/utf8"
 )
 
 // decodeSession reads a session body. Sessions are the one kind read over
@@ -80,6 +81,9 @@ func scanSession(raw []byte, b *SessionBody) bool {
 			}
 			if _, esc := scanString(val, 0); esc {
 				return false
+			}
+			if !utf8.Valid(val) {
+				return false // encoding/json replaces invalid bytes with U+FFFD
 			}
 			b.Focus = string(val[1 : len(val)-1])
 		default:
