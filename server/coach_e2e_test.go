@@ -298,6 +298,30 @@ func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
 	for _, l := range levels {
 		assert.Equal(t, "alert "+kofi, l)
 	}
+
+	// Hub unreachable: the board opens from the device with the last copy
+	// of the day's flags and says how old it is and why.
+	require.NoError(t, pwatest.WaitControlled(ctx))
+	require.NoError(t, pwatest.Route(ctx, "/review?day="+coachDay))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="review-fresh"][data-live="true"]')`, 10*time.Second))
+	h.srv.SetDown(true)
+	defer h.srv.SetDown(false)
+	require.NoError(t, pwatest.Reload(ctx))
+	if err := pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector('[data-testid="review-fresh"][data-live="false"]') && document.querySelectorAll('[data-testid="flag"]').length === %d`, len(mustFlags(t, h, coachDay))), 15*time.Second); err != nil {
+		var st string
+		pwatest.Eval(ctx, `location.href + ' | ' + document.querySelector('#screen').innerText.slice(0, 100) + ' | ' + document.querySelectorAll('[data-testid="flag"]').length`, &st)
+		t.Fatalf("%v\nscreen: %s", err, st)
+	}
+	stale, err := pwatest.Text(ctx, "review-fresh")
+	require.NoError(t, err)
+	assert.Contains(t, stale, "Showing the copy from")
+	assert.Contains(t, stale, "cannot be reached")
+}
+
+func mustFlags(t *testing.T, h *coachHub, day string) []flags.Flag {
+	fl, err := h.srv.Flags(day, "")
+	require.NoError(t, err)
+	return fl
 }
 
 func TestCoachDecisionIsSeenFromASecondDevice(t *testing.T) {

@@ -40,8 +40,16 @@ export const hubPost = (url, body) => call('POST', url, body);
 
 // Cached answers, so a screen opened offline shows the last copy it had,
 // saying when that was.
+// At most KEEP answers are kept; the least recently stored go first.
+const KEEP = 24;
 export function remember(key, data) {
-  try { localStorage.setItem('cb.coach.' + key, JSON.stringify({ at: Date.now(), data })); } catch (_) { /* full: not kept */ }
+  try {
+    const idx = JSON.parse(localStorage.getItem('cb.coach.keys') || '[]').filter((k) => k !== key);
+    idx.push(key);
+    while (idx.length > KEEP) localStorage.removeItem('cb.coach.' + idx.shift());
+    localStorage.setItem('cb.coach.keys', JSON.stringify(idx));
+    localStorage.setItem('cb.coach.' + key, JSON.stringify({ at: Date.now(), data }));
+  } catch (_) { /* storage full or blocked: the copy is not kept */ }
 }
 export function recall(key) {
   try { return JSON.parse(localStorage.getItem('cb.coach.' + key) || 'null'); } catch (_) { return null; }

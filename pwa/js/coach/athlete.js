@@ -49,6 +49,14 @@ export function AthletePage() {
   useEffect(() => { history.replaceState(null, '', query('/athlete', { id, day: p.get('day') || day !== today() ? day : '' })); }, [id, day]);
   const a = (list || []).find((x) => x.id === id);
   const st = useSeries(id, day);
+  // Redraw in the new colours when the device switches light/dark.
+  const [scheme, setScheme] = useState(0);
+  useEffect(() => {
+    const mq = matchMedia('(prefers-color-scheme: dark)');
+    const fn = () => setScheme((x) => x + 1);
+    mq.addEventListener('change', fn);
+    return () => mq.removeEventListener('change', fn);
+  }, []);
   const units = (st.s && st.s.units) || (a && a.units) || 'kg';
   return html`<section class="coach" data-testid="screen-athlete">
     <h1>${a ? a.name : 'Fighter charts'}</h1>
@@ -71,7 +79,7 @@ export function AthletePage() {
     ${!id && html`<p class="muted">Choose an athlete to see the charts.</p>`}
     ${st.error && html`<p class="error" data-testid="athlete-error">${st.s ? `Showing the last copy: ${st.error}.` : `No charts: ${st.error}. Charts are drawn from the hub's numbers; they appear once it can be reached.`}</p>`}
     ${id && !st.s && !st.error && html`<p class="muted">Asking the hub for the numbers…</p>`}
-    ${st.s && html`<div class="charts">
+    ${st.s && html`<div class="charts" key=${scheme}>
       <${MassChart} s=${st.s} future=${st.future} units=${units} />
       <${JumpChart} s=${st.s} />
       <${LoadChart} s=${st.s} />

@@ -90,6 +90,7 @@ export async function draw(el, x, ys, spec) {
   const opts = {
     width, height: spec.height || 230,
     legend: { show: false },
+    padding: [10, 18, 0, 0],
     cursor: { points: { size: 8 }, drag: { x: false, y: false } },
     scales: { x: { time: true }, ...(spec.scales || {}) },
     series,

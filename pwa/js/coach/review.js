@@ -1,7 +1,7 @@
 // The day board: every athlete's flags for one camp day, most serious
 // first, each with the hub's reason in numbers, the threshold it crossed,
 // its caution, the records it used, and the coach's decision.
-import { html, useState, useEffect, useAthletes, usePending, useVersion, useAsync, Link, SaveLine, savedState } from '../ui.js';
+import { html, useState, useEffect, useRef, useRoute, useAthletes, usePending, useVersion, useAsync, Link, SaveLine, savedState } from '../ui.js';
 import { save, byDay, getMeta } from '../db.js';
 import { hubGet, remember, recall, readRecord, onData } from './api.js';
 import {
@@ -85,7 +85,19 @@ export function Review() {
   const local = useLocalDecisions(day);
   const pending = usePending();
 
-  useEffect(() => { setQuery({ day, athlete: who, level: [...levels].join(',') }); }, [day, who, levels]);
+  // The address holds the day and filters; a link or Back to another
+  // address of this screen sets them from it.
+  useRoute();
+  const written = useRef(location.search);
+  useEffect(() => {
+    if (location.search === written.current) return;
+    const q = new URLSearchParams(location.search);
+    setDay(isDay(q.get('day')) ? q.get('day') : today());
+    setWho(q.get('athlete') || '');
+    setLevels(new Set((q.get('level') || '').split(',').filter(Boolean)));
+    written.current = location.search;
+  }, [location.search]);
+  useEffect(() => { setQuery({ day, athlete: who, level: [...levels].join(',') }); written.current = location.search; }, [day, who, levels]);
   const toggle = (l) => setLevels((s) => { const n = new Set(s); if (n.has(l)) n.delete(l); else n.add(l); return n; });
 
   const athletes = list || [];
@@ -119,7 +131,8 @@ export function Review() {
     ${st.flags === null && st.error && html`<div class="card warnbox" data-testid="review-error"><p><strong>No flags to show.</strong> ${st.error}.</p>
       <p class="muted">Flags are computed by the hub on the camp laptop. Join the camp Wi-Fi and this board fills in by itself.</p></div>`}
     ${st.flags !== null && list && !athletes.length && html`<p class="muted">No athletes on this device yet.</p>`}
-    ${st.flags !== null && groups.map((g) => html`<${AthleteFlags} key=${g.id} g=${g} day=${day} local=${local} pending=${pending} filtered=${levels.size > 0} />`)}
+    ${st.flags !== null && list && groups.map((g) => html`<${AthleteFlags} key=${g.id} g=${g} units=${(athletes.find((x) => x.id === g.id) || {}).units || 'kg'}
+      day=${day} local=${local} pending=${pending} filtered=${levels.size > 0} />`)}
     <p class="links"><${Link} to=${query('/sheet', { day })} class="secondary linkbtn" data-testid="review-to-sheet">Wall sheet for this day</${Link}></p>
   </section>`;
 }
@@ -150,9 +163,7 @@ function Freshness({ st }) {
   return null;
 }
 
-function AthleteFlags({ g, day, local, pending, filtered }) {
-  const a = useAthletes();
-  const units = ((a || []).find((x) => x.id === g.id) || {}).units || 'kg';
+function AthleteFlags({ g, units, day, local, pending, filtered }) {
   const raised = g.flags.filter((f) => f.status !== 'forming').length;
   const forming = g.flags.length - raised;
   return html`<article class="athlete-block" data-testid=${`review-athlete-${g.id}`} data-athlete-name=${g.name}>
