@@ -488,6 +488,13 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "74.0"))
 	require.NoError(t, pwatest.Poll(ctx, `![...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('mass_loss_fast'))`, 10*time.Second))
 
+	// Edit the planned path: the default's points become editable knots.
+	require.NoError(t, pwatest.Click(ctx, "plan-path-edit"))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="plan-knot-"][data-testid$="-mass"]').length >= 2`, 5*time.Second))
+	var knots int
+	require.NoError(t, pwatest.Eval(ctx, `document.querySelectorAll('[data-testid^="plan-knot-"][data-testid$="-mass"]').length`, &knots))
+	require.NoError(t, pwatest.Type(ctx, "plan-knot-2-mass", "73.1"))
+
 	// Edit week 4 by hand, then save through the device's store.
 	require.NoError(t, coachSet(ctx, "plan-week-4-level", "rest"))
 	require.NoError(t, coachSet(ctx, "plan-week-4-cap", "0"))
@@ -514,7 +521,11 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 		LimitKg     float64 `json:"limit_kg"`
 		StartMassKg float64 `json:"start_mass_kg"`
 		RefLoad     float64 `json:"reference_load_au"`
-		Weeks       []struct {
+		Path        []struct {
+			Day    string  `json:"day"`
+			MassKg float64 `json:"mass_kg"`
+		}
+		Weeks []struct {
 			Week  int
 			Level string
 			Cap   *int `json:"spar_cap_rounds"`
@@ -538,6 +549,10 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	require.NotNil(t, b.Weeks[3].Cap)
 	assert.Equal(t, 0, *b.Weeks[3].Cap)
 	assert.Equal(t, "taper", b.Weeks[7].Level)
+	require.Len(t, b.Path, knots, "the edited path is stored as knots")
+	assert.InDelta(t, 73.1, b.Path[1].MassKg, 1e-9)
+	assert.Equal(t, d(start), b.Path[0].Day, "the path starts at camp start")
+	assert.InDelta(t, 74.0, b.Path[0].MassKg, 1e-9)
 }
 
 // TestCoachScreensFitAPhoneAndWriteScreenshots: at 360×740 no coach

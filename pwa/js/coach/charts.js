@@ -61,7 +61,6 @@ function vlinePlugin(marks) {
   };
 }
 
-const WD = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
 const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
 // draw builds one uPlot chart in el. spec: {series: [{label, stroke,
@@ -96,7 +95,7 @@ export async function draw(el, x, ys, spec) {
     series,
     bands: spec.bands || [],
     axes: [
-      axis({ values: (u, vals) => vals.map((v) => { const d = new Date(v * 1000); return `${WD[d.getUTCDay()]} ${d.getUTCDate()} ${MO[d.getUTCMonth()]}`; }), space: 70 }),
+      axis({ values: (u, vals) => vals.map((v) => { const d = new Date(v * 1000); return `${d.getUTCDate()} ${MO[d.getUTCMonth()]}`; }), space: 64 }),
       axis({ scale: 'y', label: spec.yLabel || '', size: 56 }),
       ...(spec.y2 ? [axis({ scale: spec.y2.scale, side: 1, label: spec.y2.label, size: 48, grid: { show: false } })] : []),
     ],
