@@ -31,7 +31,7 @@ var app embed.FS
 var swTemplate string
 
 // Routes are the app's own navigations; each is answered with index.html.
-var Routes = []string{"/", "/checkin", "/jumps", "/rounds", "/intervals", "/session", "/incident", "/clearance", "/today", "/settings", "/join"}
+var Routes = []string{"/", "/checkin", "/jumps", "/rounds", "/intervals", "/session", "/incident", "/clearance", "/today", "/settings", "/join", "/camp"}
 
 var (
 	once  sync.Once

@@ -10,11 +10,13 @@ import { Today } from './today.js';
 import { Settings } from './settings.js';
 import { Join } from './join.js';
 import { COACH_ROUTES } from './coach/routes.js';
+import { Camp } from './camp.js';
 
 const ROUTES = {
   '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds, '/intervals': Intervals,
   '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings, '/join': Join,
   ...COACH_ROUTES,
+  '/camp': Camp,
 };
 
 // ---- service worker: register, detect a waiting update, reload once ----

@@ -32,6 +32,7 @@ const TILES = [
   ['/today', 'Today', 'entries, corrections', 'nav-today'],
   ['/review', 'Day board', 'flags, decisions, charts', 'nav-review'],
   ['/plan', 'Camp plan', 'bout, weeks, mass path', 'nav-plan'],
+  ['/camp', 'Camp set-up', 'athletes, devices, backup', 'nav-camp'],
 ];
 
 export function Home() {
