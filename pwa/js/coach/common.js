@@ -115,7 +115,7 @@ export function recordSummary(r, units) {
     }
     case 'jump': return `CMJ: ${b.heights_cm ? list(b.heights_cm, 'cm') : list(b.flight_ms, 'ms flight')}${b.best_cm ? `; best ${fmtN(b.best_cm)} cm, mean ${fmtN(b.mean_cm)} cm` : ''}`;
     case 'round': return `Round: ${b.activity || ''}, intensity ${b.intensity || '–'} of 3, ${Math.round((b.seconds || 0) / 60)} min${b.partner ? `, with ${b.partner}` : ''}`;
-    case 'session': return `Session: ${b.type || ''}${b.focus ? ` (${b.focus.replace('_', ' ')})` : ''}, ${b.minutes} min at RPE ${b.rpe} = ${Math.round((b.rpe || 0) * (b.minutes || 0))} AU`;
+    case 'session': return `Session: ${b.type || ''}${b.focus ? ` (${b.focus.replace('_', ' ')})` : ''}, ${b.minutes} min at RPE ${b.rpe}${b.load_au != null ? ` = ${fmtN(b.load_au, 0)} AU` : ''}`;
     case 'intervals': return `Intervals: ${b.modality || ''} ${b.reps || ''}×${b.work_s || ''} s / ${b.rest_s || ''} s${b.rpe != null ? `, RPE ${b.rpe}` : ''}`;
     case 'incident': return `Incident: ${(b.type || '').replace('_', ' ')}${b.note ? ` — ${b.note}` : ''}`;
     case 'clearance': return `Clearance${b.by ? ` by ${b.by}` : ''}${b.note ? ` — ${b.note}` : ''}`;
