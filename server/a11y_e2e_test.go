@@ -183,6 +183,8 @@ func TestA11yScreensFitAPhoneAndPassAxe(t *testing.T) {
 			require.NoError(t, chromedp.Do(ctx, chromedp.EmulateViewport(sz.w, sz.h)))
 			for _, s := range appScreens(h) {
 				require.NoError(t, pwatest.Route(ctx, s.path), s.name)
+				// One frame: the screen re-mounts for its new address before the setup taps.
+				require.NoError(t, pwatest.Eval(ctx, `new Promise((ok) => requestAnimationFrame(() => setTimeout(() => ok(true))))`, nil))
 				if s.setup != nil {
 					require.NoError(t, s.setup(ctx), s.name)
 				}
