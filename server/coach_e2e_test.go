@@ -556,8 +556,9 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 }
 
 // TestCoachScreensFitAPhoneAndWriteScreenshots: at 360×740 no coach
-// screen scrolls sideways and every control is at least 44×44 CSS px
-// (WCAG 2.2 target size); screenshots of each screen at 360×740 and
+// screen scrolls sideways, every control is at least 44×44 CSS px
+// (WCAG 2.2 target size) and axe-core finds nothing serious or critical;
+// screenshots of each screen at 360×740 and
 // 1280×800, light and dark, go to testdata/screenshots.
 func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 	h := startCoachHub(t)
@@ -565,6 +566,8 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 	ctx := coachBrowser(t, h, "/review?day="+coachDay)
 	dir := filepath.Join("..", "testdata", "screenshots")
 	require.NoError(t, os.MkdirAll(dir, 0o755))
+	// axe-core (the accessibility rules engine, run as in a11y_e2e_test.go).
+	require.NoError(t, pwatest.Eval(ctx, "(() => { "+axeSource(t)+"\n; return typeof axe === 'object' })()", nil))
 	screens := []struct{ name, path, ready, more string }{
 		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`, `[data-testid^="review-athlete-"]`},
 		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart')].length === 5 && [...document.querySelectorAll('figure.chart')].every((e) => Number(e.dataset.points) > 0)`, `[data-testid="chart-load"]`},
@@ -590,6 +593,11 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 						const r = e.getBoundingClientRect(); return r.width > 0 && r.height > 0 && getComputedStyle(e).visibility !== 'hidden' && (r.width < 44 || r.height < 44) })
 						.map((e) => (e.dataset.testid || e.id || e.tagName) + ' ' + Math.round(e.getBoundingClientRect().width) + '×' + Math.round(e.getBoundingClientRect().height))`, &small))
 					assert.Empty(t, small, "%s: controls under 44×44 CSS px (%s)", s.name, scheme)
+					var found []axeViolation
+					require.NoError(t, pwatest.Eval(ctx, axeRun, &found), s.name)
+					for _, v := range found {
+						t.Errorf("%s (%s): axe %s %s: %s\n  %s", s.name, scheme, v.Impact, v.ID, v.Help, strings.Join(v.Nodes, "\n  "))
+					}
 				}
 				png, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
 				require.NoError(t, err)
