@@ -74,8 +74,9 @@ type engine struct {
 	clearedBy  map[string]string
 	decisions  []devsync.Record // today's decisions
 
-	bout *plan
-	out  []Flag
+	bout  *plan
+	out   []Flag
+	units string // the athlete's display units, "kg" or "lb"
 }
 
 func newEngine(in *Input) (*engine, bool) {
@@ -83,7 +84,13 @@ func newEngine(in *Input) (*engine, bool) {
 	if err != nil {
 		return nil, false
 	}
-	e := &engine{in: in, today: today, first: today}
+	e := &engine{in: in, today: today, first: today, units: "kg"}
+	var ab struct {
+		Units string `json:"units"`
+	}
+	if json.Unmarshal(in.Athlete.Body, &ab) == nil && ab.Units == "lb" {
+		e.units = "lb"
+	}
 	athlete := in.Athlete.ID
 	// Pass 1: find the first day, so the load series can be sized once.
 	for i := range in.Records {

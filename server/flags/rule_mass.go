@@ -1,8 +1,10 @@
 package flags
 
 import (
+	"cornerbook/server/records"
 	"fmt"
 	"math"
+	"strconv"
 
 	"cornerbook/server/flags/day"
 	"cornerbook/server/flags/stats"
@@ -59,8 +61,8 @@ func (e *engine) massAbovePath() {
 	e.add(Flag{Rule: rule, Level: level, Value: f64(trend), Reference: f64(planned), Threshold: f64(thr),
 		ThresholdName: rule + "." + name, Unit: "kg", Inputs: append(ids, p.id), Caution: CautionMass,
 		Details: map[string]float64{"excess_kg": excess, "excess_pct_of_limit": pct, "latest_kg": latest, "limit_kg": limit},
-		Reason: fmt.Sprintf("Mass trend %.1f kg is %.1f kg (%.1f %% of the %.1f kg limit) above the planned %.1f kg for today; latest morning mass %.1f kg on %s.",
-			trend, excess, pct, limit, planned, latest, latestDay)})
+		Reason: fmt.Sprintf("Mass trend %s is %s (%.1f %% of the %s limit) above the planned %s for today; latest morning mass %s on %s.",
+			e.mass(trend, 1), e.mass(excess, 1), pct, e.mass(limit, 1), e.mass(planned, 1), e.mass(latest, 1), latestDay)})
 }
 
 // inFinalDays reports whether today is in the final days before weigh-in
@@ -104,8 +106,8 @@ func (e *engine) massLossFast() {
 	e.add(Flag{Rule: rule, Level: level, Value: f64(loss), Threshold: f64(e.param(rule, name)),
 		ThresholdName: rule + "." + name, Unit: "%/week", Inputs: ids, Caution: CautionMass,
 		Details: map[string]float64{"slope_kg_week": slope * 7, "trend_kg": trend, "checkins": float64(len(kg))},
-		Reason: fmt.Sprintf("Morning mass falling %.2f kg a week over the last %d days (%d check-ins), %.1f %% of the %.1f kg trend per week, above %.1f %%/week; 0.7 %%/week preserved lean mass better in trained athletes (Garthe et al. 2011).",
-			-slope*7, window, len(kg), loss, trend, e.param(rule, name))})
+		Reason: fmt.Sprintf("Morning mass falling %s a week over the last %d days (%d check-ins), %.1f %% of the %s trend per week, above %.1f %%/week; 0.7 %%/week preserved lean mass better in trained athletes (Garthe et al. 2011).",
+			e.mass(-slope*7, 2), window, len(kg), loss, e.mass(trend, 1), e.param(rule, name))})
 }
 
 // cutAtRisk: the mass still to lose in the final days if the trend falls
@@ -141,14 +143,24 @@ func (e *engine) cutAtRisk() {
 	default:
 		return
 	}
-	reason := fmt.Sprintf("Losing %.1f %%/week from today's %.1f kg trend reaches %.1f kg in %.0f days, when the final %.0f days start: %.1f kg (%.1f %%) still to lose to the %.1f kg limit, above %.1f %% for a %s weigh-in.",
-		rate, trend, projected, ahead, e.param(rule, "final_days"), still, pct, p.body.LimitKg, e.param(rule, name), kind)
+	reason := fmt.Sprintf("Losing %.1f %%/week from today's %s trend reaches %s in %.0f days, when the final %.0f days start: %s (%.1f %%) still to lose to the %s limit, above %.1f %% for a %s weigh-in.",
+		rate, e.mass(trend, 1), e.mass(projected, 1), ahead, e.param(rule, "final_days"), e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
 	if ahead == 0 {
-		reason = fmt.Sprintf("In the final %.0f days, today's %.1f kg trend is %.1f kg (%.1f %%) above the %.1f kg limit, above %.1f %% for a %s weigh-in.",
-			e.param(rule, "final_days"), trend, still, pct, p.body.LimitKg, e.param(rule, name), kind)
+		reason = fmt.Sprintf("In the final %.0f days, today's %s trend is %s (%.1f %%) above the %s limit, above %.1f %% for a %s weigh-in.",
+			e.param(rule, "final_days"), e.mass(trend, 1), e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
 	}
 	e.add(Flag{Rule: rule, Level: level, Value: f64(pct), Threshold: f64(e.param(rule, name)),
 		ThresholdName: rule + "." + name, Unit: "%", Inputs: append(ids, p.id), Caution: CautionMass, Reason: reason,
 		Details: map[string]float64{"projected_kg": projected, "still_kg": still, "limit_kg": p.body.LimitKg, "trend_kg": trend, "days_to_final": ahead},
 	})
+}
+
+// mass writes a mass for a reason in the athlete's own units: kg, or lb
+// converted with the exact factor (1 lb = 0.45359237 kg). Values, units and
+// thresholds of the flag itself stay in kg.
+func (e *engine) mass(kg float64, decimals int) string {
+	if e.units == "lb" {
+		return strconv.FormatFloat(records.KgToLb(kg), 'f', decimals, 64) + " lb"
+	}
+	return strconv.FormatFloat(kg, 'f', decimals, 64) + " kg"
 }

@@ -1,7 +1,9 @@
 package flags
 
 import (
+	"encoding/json"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -282,4 +284,28 @@ func TestCutAtRiskFinalDaysAndForming(t *testing.T) {
 	c = &camp{}
 	c.standardBout(nil)
 	wantLevel(t, one(t, c.run(d(10)), RuleCutAtRisk), LevelInfo, StatusForming)
+}
+
+// TestMassReasonInAthleteUnits: a fighter who weighs in pounds reads the
+// reason in pounds, converted with the exact factor 1 lb = 0.45359237 kg
+// (1959 international agreement; NIST SP 811 B.8); the flag's value and
+// threshold stay in kg.
+func TestMassReasonInAthleteUnits(t *testing.T) {
+	planned := 70 - (70-66.675)*21.0/49
+	c := &camp{}
+	c.standardBout(nil)
+	massAt(c, 10, 21, planned+2.5/100*63.5)
+	in := c.input(d(21))
+	in.Athlete.Body = json.RawMessage(`{"name":"Pound Fighter","units":"lb"}`)
+	f := one(t, Compute(in), RuleMassAbovePath)
+	wantTrend := strconv.FormatFloat(*f.Value/0.45359237, 'f', 1, 64) + " lb"
+	if !strings.Contains(f.Reason, wantTrend) || strings.Contains(f.Reason, " kg") {
+		t.Errorf("reason %q should give the trend as %s and no kg", f.Reason, wantTrend)
+	}
+	if !strings.Contains(f.Reason, "140.0 lb limit") { // 63.5 kg = 139.99 lb
+		t.Errorf("reason %q should give the 63.5 kg limit as 140.0 lb", f.Reason)
+	}
+	if f.Unit != "kg" {
+		t.Errorf("unit %q: the flag's numbers stay in kg", f.Unit)
+	}
 }
