@@ -31,8 +31,9 @@ const FlagWindowDays = 120
 type flagService struct {
 	s *Server
 
-	mu    sync.Mutex // guards cache and recs
-	cache map[string][]flags.Flag
+	mu       sync.Mutex // guards cache and recs
+	cache    map[string][]flags.Flag
+	cachedAt map[string]time.Time
 	// recs holds each athlete's records of the rule kinds, decoded, from
 	// a window start on: a push patches them in place, so recomputing an
 	// athlete after one new record costs the rules, not a re-read.
@@ -55,7 +56,7 @@ var (
 )
 
 func newFlagService(s *Server) *flagService {
-	return &flagService{s: s, cache: map[string][]flags.Flag{}, recs: map[string]*athleteRecs{}}
+	return &flagService{s: s, cache: map[string][]flags.Flag{}, cachedAt: map[string]time.Time{}, recs: map[string]*athleteRecs{}}
 }
 
 // history returns an athlete's records for the rules on day: windowed
@@ -230,8 +231,11 @@ func (f *flagService) forAthlete(id, day string) ([]flags.Flag, error) {
 	k := cacheKey(id, day)
 	f.mu.Lock()
 	fl, ok := f.cache[k]
+	at := f.cachedAt[k]
 	f.mu.Unlock()
-	if ok {
+	// Today's flags also depend on the clock (the check-in hour): they are
+	// reused for at most todayTTL.
+	if ok && (day != f.Today() || f.s.now().Sub(at) < todayTTL) {
 		return fl, nil
 	}
 	in, err := f.input(id, day)
@@ -241,8 +245,53 @@ func (f *flagService) forAthlete(id, day string) ([]flags.Flag, error) {
 	fl = flags.Compute(in)
 	f.mu.Lock()
 	f.cache[k] = fl
+	f.cachedAt[k] = f.s.now()
 	f.mu.Unlock()
 	return fl, nil
+}
+
+// todayTTL is how long today's flags are reused before the clock is
+// consulted again.
+const todayTTL = time.Minute
+
+// refreshToday recomputes today's flags of every athlete whose flags are
+// cached and pokes dashboards if any changed (the check-in hour passing
+// changes flags without any new record).
+func (f *flagService) refreshToday() {
+	today := f.Today()
+	ath, err := f.Athletes()
+	if err != nil {
+		return
+	}
+	changed := false
+	for _, a := range ath {
+		k := cacheKey(a.ID, today)
+		f.mu.Lock()
+		old, had := f.cache[k]
+		delete(f.cache, k)
+		f.mu.Unlock()
+		now, err := f.forAthlete(a.ID, today)
+		if err == nil && had && !sameFlags(old, now) {
+			changed = true
+		}
+	}
+	if changed {
+		f.s.hub.FlagsChanged()
+	}
+}
+
+// run refreshes today's flags every todayTTL until stop is closed.
+func (f *flagService) run(stop <-chan struct{}) {
+	t := time.NewTicker(todayTTL)
+	defer t.Stop()
+	for {
+		select {
+		case <-stop:
+			return
+		case <-t.C:
+			f.refreshToday()
+		}
+	}
 }
 
 // input gathers one athlete's records for the rules.

@@ -120,3 +120,17 @@ func TestFlags_PokeWhenChanged(t *testing.T) {
 	}
 	assert.Greater(t, m.Flags, hello.Flags, "a new hydration flag pokes dashboards")
 }
+
+// TestFlags_TodayFollowsTheClock: today's flags depend on the time as well
+// as on the records: a check-in missing at 09:00 is not yet a flag; at
+// 10:30, past the default 10:00 hour, it is (PRODUCT.md missing_checkin),
+// although no record arrived in between.
+func TestFlags_TodayFollowsTheClock(t *testing.T) {
+	h, a := seeded(t) // hub clock 2026-11-20 09:00 UTC; the last check-in was on 11-19
+	day := "2026-11-20"
+	assert.NotContains(t, flagRules(t, h, day, a.ID), "missing_checkin")
+	h.now = h.now.Add(90 * time.Minute)
+	f, ok := flagRules(t, h, day, a.ID)["missing_checkin"]
+	require.True(t, ok, "missing_checkin raised once the hour has passed")
+	assert.Equal(t, "info", f.Level)
+}

@@ -71,6 +71,9 @@ type Server struct {
 
 	down atomic.Bool // test kill switch: drop every connection
 
+	stop     chan struct{} // closed by Close: background loops end
+	stopOnce sync.Once
+
 	reportMu sync.Mutex // guards reported
 	reported map[string]syncReport
 }
@@ -114,6 +117,8 @@ func New(cfg Config) (*Server, error) {
 	s.hub.seq.Store(seq)
 	s.clock.Restore(devsync.HLC{L: s.now().UnixMilli()})
 	s.flags = newFlagService(s)
+	s.stop = make(chan struct{})
+	go s.flags.run(s.stop)
 	return s, nil
 }
 
@@ -244,6 +249,7 @@ func (s *Server) URL() string {
 // Close stops accepting, drops websockets and waits for handlers up to
 // DefaultShutdownTimeout. It does not close the store.
 func (s *Server) Close() error {
+	s.stopOnce.Do(func() { close(s.stop) })
 	s.hub.CloseAll(true)
 	ctx, cancel := context.WithTimeout(context.Background(), DefaultShutdownTimeout)
 	defer cancel()

@@ -267,6 +267,8 @@ async function registerBackgroundSync() {
 let ws = null;
 let wsFailures = 0;
 let lastPokeSeq = -1;
+let lastFlags;
+
 function connectWS() {
   const proto = location.protocol === 'https:' ? 'wss:' : 'ws:';
   getMeta('token').then((token) => {
@@ -284,8 +286,11 @@ function connectWS() {
       // hello: (re)connected, so catch up. poke: only when the hub's
       // sequence moved (the hub also sends heartbeat pokes).
       trace('ws-' + m.t);
-      if (m.t === 'hello') { wsFailures = 0; lastPokeSeq = m.seq; requestSync('ws-hello'); }
+      if (m.t === 'hello') { wsFailures = 0; lastPokeSeq = m.seq; lastFlags = m.flags; requestSync('ws-hello'); }
       if (m.t === 'poke' && m.seq !== lastPokeSeq) { lastPokeSeq = m.seq; requestSync('poke'); }
+      // The hub recomputed the day's flags (also without new records, e.g.
+      // the check-in hour passed): coach screens re-read them.
+      if (m.t === 'poke' && m.flags !== undefined && m.flags !== lastFlags) { lastFlags = m.flags; notify({ type: 'flags', n: m.flags }); }
     };
     ws.onclose = () => { ws = null; retryWS(); };
     ws.onerror = () => { try { ws && ws.close(); } catch (_) { /* closing anyway */ } };

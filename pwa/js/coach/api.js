@@ -88,7 +88,7 @@ export async function readRecord(id) {
 export function onData(fn, ms = 250) {
   let t = null;
   const off = onChange((m) => {
-    if (m.type === 'synced' || (m.type === 'changed' && (m.pulled || m.acked || m.local))) {
+    if (m.type === 'synced' || m.type === 'flags' || (m.type === 'changed' && (m.pulled || m.acked || m.local))) {
       clearTimeout(t);
       t = setTimeout(fn, ms);
     }
