@@ -25,7 +25,7 @@ export function relPct(mean, baseline) {
 export function JumpRef({ id, standing, values, mode }) {
   const b = standing.byId[id];
   if (!b) {
-    const t = standing.state === 'loading' ? 'asking the hub…' : 'baseline unknown offline';
+    const t = standing.state === 'loading' ? 'asking the hub…' : standing.state === 'live' ? 'no baseline from the hub yet' : 'baseline unknown offline';
     return html`<span class="rs-ref muted" data-testid=${`jump-baseline-${id}`} data-unknown="true">${t}</span>`;
   }
   if (b.cmj_baseline_cm == null) {

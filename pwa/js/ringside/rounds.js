@@ -25,6 +25,7 @@ function Standing({ standing, id }) {
       <small>sparring rounds</small><small>last 7 days${standing.state === 'kept' ? `, as of ${hhmm(standing.at)}` : ''}</small></span>`;
   }
   if (standing.state === 'loading') return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`}>asking the hub…</span>`;
+  if (standing.state === 'live') return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`} data-unknown="true">no numbers from the hub yet</span>`;
   return html`<span class="rs-spar muted" data-testid=${`ringside-spar-${id}`} data-unknown="true">Sparring count and hold status unknown offline</span>`;
 }
 
