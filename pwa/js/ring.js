@@ -6,7 +6,7 @@ import {
 import { save, remove, getRecord, byDay } from './db.js';
 import { localDay, parseNum, attemptStats, heightFromFlightMs } from './record.js';
 import { uuidv7 } from './uuid.js';
-import { openIncidents, HOLD_TEXT } from './screens.js';
+import { openIncidents } from './screens.js';
 import { useStanding, RoundClock, AthleteChips, useSparGate, RingsideIncident, JumpRef } from './ringside/index.js';
 
 const DONE = 'Saved on this phone';
