@@ -199,6 +199,24 @@ func TestRingsideClockRingsAndOffersTheRound(t *testing.T) {
 	require.NoError(t, pwatest.Click(ctx, "clock-reset"))
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="clock"]').dataset.phase === 'ready'`, 2*time.Second))
 
+	// The sounds themselves, rendered offline: audible, not clipped, and
+	// gone before the next one (the bell dies away, the pips are short).
+	for _, c := range []struct {
+		kind        string
+		seconds, at float64 // render length; where the tail is measured
+	}{{"start", 3.5, 3.3}, {"end", 3.5, 3.3}, {"warn", 1.0, 0.7}} {
+		var snd struct{ Peak, Head, Tail float64 }
+		require.NoError(t, pwatest.Eval(ctx, fmt.Sprintf(`import('/js/ringside/bell.js').then(async (m) => {
+			const x = await m.render(%q, %g, 22050);
+			const rms = (a, b) => { let s = 0; for (let i = a; i < b; i++) s += x[i] * x[i]; return Math.sqrt(s / (b - a)); };
+			let peak = 0; for (const v of x) peak = Math.max(peak, Math.abs(v));
+			const at = Math.round(%g * 22050);
+			return { Peak: peak, Head: rms(0, 4410), Tail: rms(at, Math.min(x.length, at + 2205)) }; })`, c.kind, c.seconds, c.at), &snd))
+		assert.Greater(t, snd.Peak, 0.2, "%s is loud enough", c.kind)
+		assert.LessOrEqual(t, snd.Peak, 1.0, "%s does not clip", c.kind)
+		assert.Less(t, snd.Tail, snd.Head/100, "%s dies away", c.kind)
+	}
+
 	// A 12 s round pips its warning 10 s before the end.
 	require.NoError(t, pwatest.Type(ctx, "clock-round-s", "12"))
 	require.NoError(t, pwatest.WaitText(ctx, "clock-time", "0:12"))
