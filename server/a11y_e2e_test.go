@@ -155,6 +155,7 @@ func appScreens(h *ringHub) []appScreen {
 		{name: "today", path: "/today", ready: q("screen-today") + ` && document.querySelectorAll('[data-testid^="entry-"]').length > 0`},
 		{name: "settings", path: "/settings", ready: q("screen-settings") + ` && ` + q("settings-device-id") + `.textContent !== '…'`},
 		{name: "join", path: "/join", ready: q("screen-join")},
+		{name: "camp", path: "/camp", ready: q("camp-add-athlete") + ` && ` + q("camp-devices")},
 	}
 }
 
