@@ -192,24 +192,33 @@ func TestA11yScreensFitAPhoneAndPassAxe(t *testing.T) {
 				require.NoError(t, pwatest.Poll(ctx, s.ready, 15*time.Second), s.name)
 				time.Sleep(100 * time.Millisecond) // the stylesheet and layout settle
 				if sz.w == 360 {
-					var wide struct{ Scroll, Client int }
-					require.NoError(t, pwatest.Eval(ctx, `({ Scroll: document.scrollingElement.scrollWidth, Client: document.scrollingElement.clientWidth })`, &wide))
-					assert.LessOrEqual(t, wide.Scroll, wide.Client, "%s scrolls sideways at 360 px (%s)", s.name, scheme)
-					var small []string
-					require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('button, a[href], input, select, textarea, [role="button"]')].filter((e) => {
-						const r = e.getBoundingClientRect(); return r.width > 0 && r.height > 0 && getComputedStyle(e).visibility !== 'hidden' && (r.width < 44 || r.height < 44) })
-						.map((e) => (e.dataset.testid || e.id || e.tagName) + ' ' + Math.round(e.getBoundingClientRect().width) + '×' + Math.round(e.getBoundingClientRect().height))`, &small))
-					assert.Empty(t, small, "%s: controls under 44×44 CSS px (%s)", s.name, scheme)
-					var found []axeViolation
-					require.NoError(t, pwatest.Eval(ctx, axeRun, &found), s.name)
-					for _, v := range found {
-						t.Errorf("%s (%s): axe %s %s: %s\n  %s", s.name, scheme, v.Impact, v.ID, v.Help, strings.Join(v.Nodes, "\n  "))
-					}
+					checkPhoneScreen(t, ctx, s.name, scheme)
 				}
 				png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
 				require.NoError(t, err)
 				require.NoError(t, os.WriteFile(filepath.Join(dir, fmt.Sprintf("app-%s-%dx%d-%s.png", s.name, sz.w, sz.h, scheme)), png, 0o644))
 			}
 		}
+	}
+}
+
+// checkPhoneScreen asserts, on the screen now shown at 360 px, that nothing
+// scrolls sideways, that every control is at least 44×44 CSS px (WCAG 2.2
+// target size guidance, 2.5.8/2.5.5) and that axe-core reports no serious
+// or critical violation.
+func checkPhoneScreen(t *testing.T, ctx context.Context, name, scheme string) {
+	t.Helper()
+	var wide struct{ Scroll, Client int }
+	require.NoError(t, pwatest.Eval(ctx, `({ Scroll: document.scrollingElement.scrollWidth, Client: document.scrollingElement.clientWidth })`, &wide))
+	assert.LessOrEqual(t, wide.Scroll, wide.Client, "%s scrolls sideways at 360 px (%s)", name, scheme)
+	var small []string
+	require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('button, a[href], input, select, textarea, [role="button"]')].filter((e) => {
+		const r = e.getBoundingClientRect(); return r.width > 0 && r.height > 0 && getComputedStyle(e).visibility !== 'hidden' && (r.width < 44 || r.height < 44) })
+		.map((e) => (e.dataset.testid || e.id || e.tagName) + ' ' + Math.round(e.getBoundingClientRect().width) + '×' + Math.round(e.getBoundingClientRect().height))`, &small))
+	assert.Empty(t, small, "%s: controls under 44×44 CSS px (%s)", name, scheme)
+	var found []axeViolation
+	require.NoError(t, pwatest.Eval(ctx, axeRun, &found), name)
+	for _, v := range found {
+		t.Errorf("%s (%s): axe %s %s: %s\n  %s", name, scheme, v.Impact, v.ID, v.Help, strings.Join(v.Nodes, "\n  "))
 	}
 }

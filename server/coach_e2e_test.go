@@ -585,19 +585,7 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 				require.NoError(t, pwatest.Poll(ctx, s.ready, 15*time.Second), s.name)
 				time.Sleep(150 * time.Millisecond) // charts settle to the new width
 				if sz.w == 360 {
-					var wide struct{ Scroll, Client int }
-					require.NoError(t, pwatest.Eval(ctx, `({ Scroll: document.scrollingElement.scrollWidth, Client: document.scrollingElement.clientWidth })`, &wide))
-					assert.LessOrEqual(t, wide.Scroll, wide.Client, "%s scrolls sideways at 360 px (%s)", s.name, scheme)
-					var small []string
-					require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('button, a[href], input, select, textarea, [role="button"]')].filter((e) => {
-						const r = e.getBoundingClientRect(); return r.width > 0 && r.height > 0 && getComputedStyle(e).visibility !== 'hidden' && (r.width < 44 || r.height < 44) })
-						.map((e) => (e.dataset.testid || e.id || e.tagName) + ' ' + Math.round(e.getBoundingClientRect().width) + '×' + Math.round(e.getBoundingClientRect().height))`, &small))
-					assert.Empty(t, small, "%s: controls under 44×44 CSS px (%s)", s.name, scheme)
-					var found []axeViolation
-					require.NoError(t, pwatest.Eval(ctx, axeRun, &found), s.name)
-					for _, v := range found {
-						t.Errorf("%s (%s): axe %s %s: %s\n  %s", s.name, scheme, v.Impact, v.ID, v.Help, strings.Join(v.Nodes, "\n  "))
-					}
+					checkPhoneScreen(t, ctx, s.name, scheme)
 				}
 				png, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
 				require.NoError(t, err)
