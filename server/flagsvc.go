@@ -40,6 +40,8 @@ type flagService struct {
 	recs map[string]*athleteRecs
 	// athletes is the sorted athlete list; nil until read or after a change.
 	athletes []devsync.Record
+	// refreshing marks athletes whose recomputation is waiting to run.
+	refreshing map[string]bool
 }
 
 // athleteRecs is one athlete's decoded records: windowed kinds from
@@ -399,14 +401,38 @@ func (f *flagService) Changed(recs []devsync.Record) {
 	}
 	// Recompute today's flags of the touched athletes off the request
 	// path, and poke dashboards only if they changed.
+	for a := range touched {
+		old, had := prev[a]
+		f.refresh(a, today, old, had)
+	}
+}
+
+// refreshDelay gathers a burst of pushes (a backlog arriving in pages)
+// into one recomputation per athlete.
+const refreshDelay = 100 * time.Millisecond
+
+// refresh recomputes one athlete's flags for today after refreshDelay,
+// unless a recomputation is already waiting, and pokes dashboards when the
+// result differs from old (or when there was none to compare with).
+func (f *flagService) refresh(athlete, today string, old []flags.Flag, had bool) {
+	f.mu.Lock()
+	if f.refreshing == nil {
+		f.refreshing = map[string]bool{}
+	}
+	if f.refreshing[athlete] {
+		f.mu.Unlock()
+		return // the waiting recomputation reads the records as they are then
+	}
+	f.refreshing[athlete] = true
+	f.mu.Unlock()
 	go func() {
-		for a := range touched {
-			old, had := prev[a]
-			now, err := f.forAthlete(a, today)
-			if err != nil || !had || !sameFlags(old, now) {
-				f.s.hub.FlagsChanged()
-				return
-			}
+		time.Sleep(refreshDelay)
+		f.mu.Lock()
+		delete(f.refreshing, athlete)
+		f.mu.Unlock()
+		now, err := f.forAthlete(athlete, today)
+		if err != nil || !had || !sameFlags(old, now) {
+			f.s.hub.FlagsChanged()
 		}
 	}()
 }
