@@ -25,10 +25,8 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"cornerbook/pwa/pwatest"
-	"cornerbook/server"
 	"cornerbook/server/demo"
 	"cornerbook/server/flags"
-	"cornerbook/storage"
 	devsync "cornerbook/sync"
 )
 
@@ -37,33 +35,9 @@ import (
 // the screens are opened on explicit days of the demo.
 var coachDay = demoToday.Format("2006-01-02")
 
-type coachHub struct {
-	t    testing.TB
-	db   *storage.DB
-	srv  *server.Server
-	addr string
-}
+type coachHub struct{ *e2eHub }
 
-func startCoachHub(t testing.TB) *coachHub {
-	t.Helper()
-	db, err := server.OpenStore(filepath.Join(t.TempDir(), "hub.db"), nil)
-	require.NoError(t, err)
-	n, err := demo.SeedIfEmpty(db, demoToday)
-	require.NoError(t, err)
-	require.Greater(t, n, 1000)
-	srv, err := server.New(server.Config{Store: db, Location: time.UTC})
-	require.NoError(t, err)
-	require.NoError(t, srv.Open("127.0.0.1:0"))
-	h := &coachHub{t: t, db: db, srv: srv, addr: srv.Addr()}
-	t.Cleanup(func() {
-		srv.Close()
-		require.NoError(t, db.Check())
-		db.Close()
-	})
-	return h
-}
-
-func (h *coachHub) url(p string) string { return "http://" + h.addr + p }
+func startCoachHub(t testing.TB) *coachHub { return &coachHub{startDemoHub(t, time.UTC)} }
 
 // ids maps the demo athletes' names to their ids.
 func (h *coachHub) ids() map[string]string {

@@ -25,6 +25,7 @@ import (
 	"cornerbook/pwa/pwatest"
 	"cornerbook/server"
 	"cornerbook/server/auth"
+	"cornerbook/server/demo"
 	"cornerbook/storage"
 	devsync "cornerbook/sync"
 )
@@ -85,6 +86,23 @@ func startE2EHub(t testing.TB, addr, dbPath string) *e2eHub {
 		time.Sleep(20 * time.Millisecond)
 	}
 	require.NoError(t, lerr)
+	h := &e2eHub{t: t, db: db, srv: srv, addr: srv.Addr()}
+	t.Cleanup(h.stop)
+	return h
+}
+
+// startDemoHub is the real hub on a bbolt file in a temp dir holding the
+// demo camp that ends on demoToday, on 127.0.0.1.
+func startDemoHub(t testing.TB, loc *time.Location) *e2eHub {
+	t.Helper()
+	db, err := server.OpenStore(filepath.Join(t.TempDir(), "hub.db"), nil)
+	require.NoError(t, err)
+	n, err := demo.SeedIfEmpty(db, demoToday)
+	require.NoError(t, err)
+	require.Greater(t, n, 1000)
+	srv, err := server.New(server.Config{Store: db, Location: loc})
+	require.NoError(t, err)
+	require.NoError(t, srv.Open("127.0.0.1:0"))
 	h := &e2eHub{t: t, db: db, srv: srv, addr: srv.Addr()}
 	t.Cleanup(h.stop)
 	return h

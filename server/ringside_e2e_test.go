@@ -10,7 +10,6 @@ import (
 	"fmt"
 	"math"
 	"net/http"
-	"path/filepath"
 	"testing"
 	"time"
 
@@ -19,8 +18,6 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"cornerbook/pwa/pwatest"
-	"cornerbook/server"
-	"cornerbook/server/demo"
 	devsync "cornerbook/sync"
 )
 
@@ -36,16 +33,8 @@ type ringHub struct {
 
 func startRingHub(t testing.TB) *ringHub {
 	t.Helper()
-	db, err := server.OpenStore(filepath.Join(t.TempDir(), "hub.db"), nil)
-	require.NoError(t, err)
-	n, err := demo.SeedIfEmpty(db, demoToday)
-	require.NoError(t, err)
-	require.Greater(t, n, 1000)
-	srv, err := server.New(server.Config{Store: db, Location: time.Local})
-	require.NoError(t, err)
-	require.NoError(t, srv.Open("127.0.0.1:0"))
-	h := &e2eHub{t: t, db: db, srv: srv, addr: srv.Addr()}
-	t.Cleanup(h.stop)
+	h := startDemoHub(t, time.Local)
+	srv := h.srv
 	names := map[string]string{}
 	for id, name := range srv.AthleteNames() {
 		names[name] = id
