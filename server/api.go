@@ -27,8 +27,12 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	var req devsync.PushRequest
-	if err := decodeStrict(w, r, devsync.MaxPushBytes, &req); err != nil {
+	body, err := readBody(w, r, devsync.MaxPushBytes)
+	if err != nil {
 		return err
+	}
+	if err := decodeJSON(body, &req); err != nil {
+		return withMutationIndex(err, body)
 	}
 	if req.Device == "" {
 		return userError(devsync.CodeBadRequest, "device", "is required: the id of the device that made these entries")
@@ -184,15 +188,24 @@ func (s *Server) handleHistory(w http.ResponseWriter, r *http.Request) error {
 // decodeStrict reads a JSON body of at most limit bytes that must be valid
 // UTF-8 and hold only known fields.
 func decodeStrict(w http.ResponseWriter, r *http.Request, limit int64, v any) error {
+	body, err := readBody(w, r, limit)
+	if err != nil {
+		return err
+	}
+	return decodeJSON(body, v)
+}
+
+// readBody reads at most limit bytes of a request body.
+func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
 	body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
 	if err != nil {
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
-			return userError(CodeTooLarge, "body", fmt.Sprintf("is larger than %d KiB; send fewer entries per push", limit>>10))
+			return nil, userError(CodeTooLarge, "body", fmt.Sprintf("is larger than %d KiB; send fewer entries per push", limit>>10))
 		}
-		return userError(devsync.CodeBadRequest, "body", "could not be read: "+err.Error())
+		return nil, userError(devsync.CodeBadRequest, "body", "could not be read: "+err.Error())
 	}
-	return decodeJSON(body, v)
+	return body, nil
 }
 
 // decodeJSON decodes one JSON value strictly, naming the field at fault.
@@ -293,4 +306,35 @@ func (s *Server) shouldReport(device string, waiting int) bool {
 	}
 	s.reported[device] = syncReport{at: now, waiting: waiting}
 	return true
+}
+
+// withMutationIndex puts the list index into a field error inside the
+// mutations ("mutations[3].record.stamp.l" rather than the decoder's
+// "mutations.record.stamp.l"), so a device can tell which entry is wrong.
+func withMutationIndex(err error, body []byte) error {
+	var ue *Error
+	if !errors.As(err, &ue) || !strings.HasPrefix(ue.Field, "mutations.") {
+		return err
+	}
+	var list struct {
+		Mutations []json.RawMessage `json:"mutations"`
+	}
+	if json.Unmarshal(body, &list) != nil {
+		return err
+	}
+	for i, raw := range list.Mutations {
+		var m devsync.Mutation
+		if jerr := decodeJSON(raw, &m); jerr != nil {
+			var me *Error
+			if errors.As(jerr, &me) {
+				e := *ue
+				e.Field = fmt.Sprintf("mutations[%d].%s", i, me.Field)
+				if me.Field == "body" {
+					e.Field = fmt.Sprintf("mutations[%d]", i)
+				}
+				return &e
+			}
+		}
+	}
+	return err
 }

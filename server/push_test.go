@@ -60,7 +60,7 @@ func TestPush_BadRequests(t *testing.T) {
 		{"counters not increasing", reqBody(t, "phone-1", okMut, second), 400, "BAD_REQUEST", "mutations[1].n"},
 		{"counter zero", reqBody(t, "phone-1", devsync.Mutation{N: 0, Op: "upsert", Record: good}), 400, "BAD_REQUEST", "mutations[0].n"},
 		{"stamp far in the hub's future", reqBody(t, "phone-1", devsync.Mutation{N: 10, Op: "upsert", Record: future}), 409, "CLOCK_SKEW", "mutations[0].record.stamp.l"},
-		{"stamp counter of the wrong type", []byte(`{"device":"phone-1","mutations":[{"n":10,"op":"upsert","record":{"id":"x","stamp":{"l":"soon"}}}]}`), 400, "BAD_REQUEST", "mutations.record.stamp.l"},
+		{"stamp counter of the wrong type", []byte(`{"device":"phone-1","mutations":[{"n":10,"op":"upsert","record":{"id":"x","stamp":{"l":"soon"}}}]}`), 400, "BAD_REQUEST", "mutations[0].record.stamp.l"},
 		{"too many mutations", reqBody(t, "phone-1", manyMutations(good, devsync.MaxMutationsPerPush+1)...), 413, "TOO_LARGE", "mutations"},
 	}
 	for _, tc := range cases {

@@ -293,7 +293,7 @@ func TestBadInputMatrix(t *testing.T) {
 		{"push: device missing", asLaptop, "POST", "/api/push", `{"mutations":[]}`, 400, "BAD_REQUEST", "device", "required", "", ""},
 		{"push: device too long", asLaptop, "POST", "/api/push", `{"device":"` + strings.Repeat("d", 101) + `","mutations":[]}`, 400, "BAD_REQUEST", "device", "longer than 100", "", ""},
 		{"push: mutations not a list", asLaptop, "POST", "/api/push", `{"device":"d","mutations":{}}`, 400, "BAD_REQUEST", "mutations", "a list", "", ""},
-		{"push: n is text", asLaptop, "POST", "/api/push", `{"device":"d","mutations":[{"n":"one","op":"upsert","record":{}}]}`, 400, "BAD_REQUEST", "mutations.n", "whole number", "", ""},
+		{"push: n is text", asLaptop, "POST", "/api/push", `{"device":"d","mutations":[{"n":"one","op":"upsert","record":{}}]}`, 400, "BAD_REQUEST", "mutations[0].n", "whole number", "", ""},
 		{"push: more than 500 mutations", asLaptop, "POST", "/api/push", string(manyBody), 413, "TOO_LARGE", "mutations", "at most 500", "", ""},
 		{"push: body over 1 MiB", asLaptop, "POST", "/api/push", huge, 413, "TOO_LARGE", "body", "larger than 1024 KiB", "", ""},
 		{"push: not UTF-8", asLaptop, "POST", "/api/push", "{\"device\":\"\xff\"}", 400, "BAD_REQUEST", "body", "UTF-8", "", ""},
