@@ -31,17 +31,28 @@ func (e *engine) trend() (trend, latest float64, latestDay day.Number, ids []str
 	return t, kg[len(kg)-1], days[len(days)-1], ids, true
 }
 
+// campTrend is the mass trend for a rule that applies from camp start to
+// weigh-in: ok false outside that span, and also when no morning mass is
+// logged yet, in which case it reports the rule as forming.
+func (e *engine) campTrend(rule, what string) (trend, latest float64, latestDay day.Number, ids []string, ok bool) {
+	p := e.bout
+	if !p.massReady() || e.today < p.campStart || e.today > p.weighIn {
+		return 0, 0, 0, nil, false
+	}
+	trend, latest, latestDay, ids, ok = e.trend()
+	if !ok {
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: []string{p.id},
+			Reason: what + " forming: no morning mass logged in this camp yet."})
+	}
+	return trend, latest, latestDay, ids, ok
+}
+
 // massAbovePath: the mass trend against the planned path for the day.
 func (e *engine) massAbovePath() {
 	const rule = RuleMassAbovePath
 	p := e.bout
-	if !p.massReady() || e.today < p.campStart || e.today > p.weighIn {
-		return
-	}
-	trend, latest, latestDay, ids, ok := e.trend()
+	trend, latest, latestDay, ids, ok := e.campTrend(rule, "Mass trend")
 	if !ok {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: []string{p.id},
-			Reason: "Mass trend forming: no morning mass logged in this camp yet."})
 		return
 	}
 	planned := PathAt(e.path(), e.today)
@@ -115,13 +126,8 @@ func (e *engine) massLossFast() {
 func (e *engine) cutAtRisk() {
 	const rule = RuleCutAtRisk
 	p := e.bout
-	if !p.massReady() || e.today < p.campStart || e.today > p.weighIn {
-		return
-	}
-	trend, _, _, ids, ok := e.trend()
+	trend, _, _, ids, ok := e.campTrend(rule, "Cut projection")
 	if !ok {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: []string{p.id},
-			Reason: "Cut projection forming: no morning mass logged in this camp yet."})
 		return
 	}
 	finalStart := p.weighIn - day.Number(e.param(rule, "final_days"))
