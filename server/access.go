@@ -103,7 +103,7 @@ func (p principal) allowWrite(device string) func(stored, incoming *devsync.Reco
 	return func(stored, rec *devsync.Record) error {
 		if p.dev == nil {
 			if rec.Device != device {
-				return devsync.Invalid("record.device", "must be the pushing device (%s); got %q", device, rec.Device)
+				return devsync.Invalid("device", "must be the pushing device (%s); got %q", device, rec.Device)
 			}
 			return nil
 		}

@@ -76,10 +76,6 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 	if res.Rejected == nil {
 		res.Rejected = []devsync.Rejection{}
 	}
-	for i := range res.Rejected {
-		// Fields are named as in the record format ("id", "body.mass_kg").
-		res.Rejected[i].Field = strings.TrimPrefix(res.Rejected[i].Field, "record.")
-	}
 	writeJSON(w, http.StatusOK, devsync.PushResponse{
 		AckedThrough: res.AckedThrough, Rejected: res.Rejected,
 		Applied: res.Applied, Superseded: res.Superseded, Duplicates: res.Duplicates,

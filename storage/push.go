@@ -233,13 +233,13 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 		stored = &s
 		if s.Kind != rec.Kind {
 			return rejected, reject(m, devsync.CodeValidation,
-				devsync.Invalid("record.kind", "this id already belongs to a %s record", s.Kind)), nil
+				devsync.Invalid("kind", "this id already belongs to a %s record", s.Kind)), nil
 		}
 		// A record never moves to another athlete: a device filtered by
 		// athlete would never learn that it left. Delete and log it again.
 		if p.db.campIntegrity && s.Athlete != rec.Athlete && rec.Kind != athleteKind {
 			return rejected, reject(m, devsync.CodeValidation,
-				devsync.Invalid("record.athlete", "a record cannot move to another athlete; delete it and log it again for the right one")), nil
+				devsync.Invalid("athlete", "a record cannot move to another athlete; delete it and log it again for the right one")), nil
 		}
 	}
 	if err := p.checkAthlete(&rec); err != nil {
@@ -271,7 +271,7 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 	}
 	if stored != nil && stored.Kind != rec.Kind {
 		return rejected, reject(m, devsync.CodeValidation,
-			devsync.Invalid("record.kind", "this id already belongs to a %s record", stored.Kind)), nil
+			devsync.Invalid("kind", "this id already belongs to a %s record", stored.Kind)), nil
 	}
 
 	if !devsync.Wins(&rec, stored) {
@@ -360,19 +360,19 @@ func (p *pusher) keepLoser(rec *devsync.Record) error {
 // kind, athlete and day. Tombstones get only this check.
 func CheckShape(r *devsync.Record) error {
 	if err := CheckID(r.ID); err != nil {
-		return devsync.Invalid("record.id", "%s", err)
+		return devsync.Invalid("id", "%s", err)
 	}
 	if err := checkKind(r.Kind); err != nil {
 		return err
 	}
 	if r.Athlete != "" {
 		if err := CheckID(r.Athlete); err != nil {
-			return devsync.Invalid("record.athlete", "%s (an athlete id)", err)
+			return devsync.Invalid("athlete", "%s (an athlete id)", err)
 		}
 	}
 	if r.Day != "" {
 		if err := CheckDay(r.Day); err != nil {
-			return devsync.Invalid("record.day", "%s", err)
+			return devsync.Invalid("day", "%s", err)
 		}
 	}
 	return nil
@@ -380,14 +380,14 @@ func CheckShape(r *devsync.Record) error {
 
 func checkKind(k string) error {
 	if k == "" {
-		return devsync.Invalid("record.kind", "is required")
+		return devsync.Invalid("kind", "is required")
 	}
 	if len(k) > 32 {
-		return devsync.Invalid("record.kind", "is longer than 32 characters")
+		return devsync.Invalid("kind", "is longer than 32 characters")
 	}
 	for i, c := range k {
 		if !(c >= 'a' && c <= 'z' || c == '_' || i > 0 && c >= '0' && c <= '9') {
-			return devsync.Invalid("record.kind", "%q is not a kind name (lower-case letters, digits and _)", k)
+			return devsync.Invalid("kind", "%q is not a kind name (lower-case letters, digits and _)", k)
 		}
 	}
 	return nil
@@ -444,7 +444,7 @@ func (p *pusher) checkAthlete(rec *devsync.Record) error {
 	}
 	v := p.records.Get([]byte(rec.Athlete))
 	if v == nil {
-		return devsync.Invalid("record.athlete", "no athlete with id %q in this camp; add the athlete first", rec.Athlete)
+		return devsync.Invalid("athlete", "no athlete with id %q in this camp; add the athlete first", rec.Athlete)
 	}
 	a, err := decode(v)
 	if err != nil {
@@ -454,7 +454,7 @@ func (p *pusher) checkAthlete(rec *devsync.Record) error {
 	// before the deletion, and its own export must import again (and
 	// devices re-push after a restore) whatever the athlete's state.
 	if a.Kind != athleteKind {
-		return devsync.Invalid("record.athlete", "%q is a %s record, not an athlete", rec.Athlete, a.Kind)
+		return devsync.Invalid("athlete", "%q is a %s record, not an athlete", rec.Athlete, a.Kind)
 	}
 	if p.athletes == nil {
 		p.athletes = map[string]bool{}

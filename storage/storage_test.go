@@ -74,7 +74,7 @@ func TestPrepareMayNotBreakKeys(t *testing.T) {
 	db := storagetest.MustOpen(t, storage.Options{Prepare: func(r *devsync.Record) error { r.Day = "soon"; return nil }})
 	g := storagetest.NewGen(2, "dev-a")
 	res, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, g.Checkin(g.ID(), storagetest.Day(0)))}, nil)
-	if err != nil || len(res.Rejected) != 1 || res.Rejected[0].Field != "record.day" {
+	if err != nil || len(res.Rejected) != 1 || res.Rejected[0].Field != "day" {
 		t.Fatalf("prepare that breaks the day: %+v %v", res, err)
 	}
 }
@@ -302,7 +302,7 @@ func TestCampIntegrity(t *testing.T) {
 		t.Fatalf("push: %+v", res)
 	}
 	for i, want := range []string{"no athlete with id", "not an athlete"} {
-		if rj := res.Rejected[i]; rj.Field != "record.athlete" || !strings.Contains(rj.Reason, want) {
+		if rj := res.Rejected[i]; rj.Field != "athlete" || !strings.Contains(rj.Reason, want) {
 			t.Errorf("rejection %d: %+v, want record.athlete: %q", i, rj, want)
 		}
 	}
@@ -312,7 +312,7 @@ func TestCampIntegrity(t *testing.T) {
 	moved := g.Edit(checkin)
 	moved.Athlete = other.ID
 	res, _ = db.Push(devsync.PushRequest{Device: "dev-coach", Mutations: storagetest.Mutations(10, moved)}, nil)
-	if len(res.Rejected) != 1 || res.Rejected[0].Field != "record.athlete" || !strings.Contains(res.Rejected[0].Reason, "cannot move to another athlete") {
+	if len(res.Rejected) != 1 || res.Rejected[0].Field != "athlete" || !strings.Contains(res.Rejected[0].Reason, "cannot move to another athlete") {
 		t.Fatalf("move: %+v", res.Rejected)
 	}
 	// An athlete record may name itself or nothing, version to version.

@@ -226,7 +226,7 @@ func decodeLine(raw []byte) (devsync.Record, error) {
 func lineErr(line int, err error) LineError {
 	var fe *devsync.FieldError
 	if errors.As(err, &fe) {
-		return LineError{Line: line, Field: strings.TrimPrefix(fe.Field, "record."), Msg: fe.Reason}
+		return LineError{Line: line, Field: fe.Field, Msg: fe.Reason}
 	}
 	return LineError{Line: line, Msg: err.Error()}
 }

@@ -288,7 +288,7 @@ func testRejectMiddle(t *testing.T, db *storage.DB) {
 		t.Fatalf("batch with a bad mutation in the middle: %+v", res)
 	}
 	rej := res.Rejected[0]
-	if rej.N != 2 || rej.ID != bad.ID || rej.Code != devsync.CodeValidation || rej.Field != "record.day" || !strings.Contains(rej.Reason, "2026-02-30") {
+	if rej.N != 2 || rej.ID != bad.ID || rej.Code != devsync.CodeValidation || rej.Field != "day" || !strings.Contains(rej.Reason, "2026-02-30") {
 		t.Fatalf("rejection does not say which mutation, field and why: %+v", rej)
 	}
 	if _, err := db.Get(bad.ID); !errors.Is(err, storage.ErrNotFound) {
@@ -336,7 +336,7 @@ func testBadVersionUnchanged(t *testing.T, db *storage.DB) {
 	if len(res.Rejected) != 5 || res.Applied != 0 || res.AckedThrough != 6 {
 		t.Fatalf("five bad versions: %+v", res)
 	}
-	wantFields := []string{"record.day", "record.athlete", "op", "record.kind", ""}
+	wantFields := []string{"day", "athlete", "op", "kind", ""}
 	for i, rej := range res.Rejected {
 		if rej.Field != wantFields[i] || rej.Reason == "" {
 			t.Errorf("rejection %d: field %q reason %q, want field %q and a reason", i, rej.Field, rej.Reason, wantFields[i])
@@ -360,7 +360,7 @@ func testKindConflict(t *testing.T, db *storage.DB) {
 	other := g.Edit(r)
 	other.Kind = "round"
 	res := push(t, db, "dev-a", Mutations(2, other)...)
-	if len(res.Rejected) != 1 || res.Rejected[0].Field != "record.kind" || res.Rejected[0].Reason != "this id already belongs to a checkin record" {
+	if len(res.Rejected) != 1 || res.Rejected[0].Field != "kind" || res.Rejected[0].Reason != "this id already belongs to a checkin record" {
 		t.Fatalf("kind change under an id: %+v", res.Rejected)
 	}
 	// Also for a tombstone of the wrong kind.
@@ -382,17 +382,17 @@ func testShape(t *testing.T, db *storage.DB) {
 		field string
 	}
 	bad := []tc{
-		{func(r *devsync.Record) { r.ID = "" }, "record.id"},
-		{func(r *devsync.Record) { r.ID = "not-an-id" }, "record.id"},
-		{func(r *devsync.Record) { r.ID = strings.ToUpper(r.ID) }, "record.id"},
-		{func(r *devsync.Record) { r.ID = strings.ReplaceAll(r.ID, "-", "") }, "record.id"},
-		{func(r *devsync.Record) { r.ID = "01ARZ3NDEKTSV4RRFFQ69G5FAI" }, "record.id"}, // I is not Crockford
-		{func(r *devsync.Record) { r.ID = "81ARZ3NDEKTSV4RRFFQ69G5FAV" }, "record.id"}, // overflows 128 bits
-		{func(r *devsync.Record) { r.Kind = "" }, "record.kind"},
-		{func(r *devsync.Record) { r.Kind = "check|in" }, "record.kind"},
-		{func(r *devsync.Record) { r.Athlete = "athlete 1" }, "record.athlete"},
-		{func(r *devsync.Record) { r.Day = "2026-13-01" }, "record.day"},
-		{func(r *devsync.Record) { r.Day = "2026-3-1" }, "record.day"},
+		{func(r *devsync.Record) { r.ID = "" }, "id"},
+		{func(r *devsync.Record) { r.ID = "not-an-id" }, "id"},
+		{func(r *devsync.Record) { r.ID = strings.ToUpper(r.ID) }, "id"},
+		{func(r *devsync.Record) { r.ID = strings.ReplaceAll(r.ID, "-", "") }, "id"},
+		{func(r *devsync.Record) { r.ID = "01ARZ3NDEKTSV4RRFFQ69G5FAI" }, "id"}, // I is not Crockford
+		{func(r *devsync.Record) { r.ID = "81ARZ3NDEKTSV4RRFFQ69G5FAV" }, "id"}, // overflows 128 bits
+		{func(r *devsync.Record) { r.Kind = "" }, "kind"},
+		{func(r *devsync.Record) { r.Kind = "check|in" }, "kind"},
+		{func(r *devsync.Record) { r.Athlete = "athlete 1" }, "athlete"},
+		{func(r *devsync.Record) { r.Day = "2026-13-01" }, "day"},
+		{func(r *devsync.Record) { r.Day = "2026-3-1" }, "day"},
 	}
 	for i, c := range bad {
 		r := base
@@ -456,7 +456,7 @@ func testAllow(t *testing.T, db *storage.DB) {
 			return errors.New("an athlete's phone writes only that athlete's records")
 		}
 		if stored != nil && stored.Athlete != a {
-			return forbiddenField{&devsync.FieldError{Field: "record.athlete", Reason: "this record belongs to another athlete"}}
+			return forbiddenField{&devsync.FieldError{Field: "athlete", Reason: "this record belongs to another athlete"}}
 		}
 		return nil
 	}
@@ -486,7 +486,7 @@ func testAllow(t *testing.T, db *storage.DB) {
 	if sawStored == nil || sawStored.ID != recs[1].ID {
 		t.Fatalf("allow did not see the stored winner: %+v", sawStored)
 	}
-	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeForbidden || res.Rejected[0].Field != "record.athlete" {
+	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeForbidden || res.Rejected[0].Field != "athlete" {
 		t.Fatalf("takeover: %+v", res.Rejected)
 	}
 	sameRecord(t, "record after a refused takeover", mustGet(t, db, recs[1].ID), recs[1])
@@ -507,9 +507,9 @@ func testAllow(t *testing.T, db *storage.DB) {
 	// devsync.Forbidden (a *RightsError) is FORBIDDEN with its field.
 	res, _ = db.Push(devsync.PushRequest{Device: "dev-a", Mutations: Mutations(7, NewGen(17, "dev-a").Checkin(a, Day(5)))},
 		func(_, _ *devsync.Record) error {
-			return devsync.Forbidden("record.kind", "an athlete's phone may not log rounds")
+			return devsync.Forbidden("kind", "an athlete's phone may not log rounds")
 		})
-	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeForbidden || res.Rejected[0].Field != "record.kind" || res.Rejected[0].Reason != "an athlete's phone may not log rounds" {
+	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeForbidden || res.Rejected[0].Field != "kind" || res.Rejected[0].Reason != "an athlete's phone may not log rounds" {
 		t.Fatalf("rights error from allow: %+v", res.Rejected)
 	}
 	// A *FieldError from allow is a validation rejection with its field.
@@ -518,9 +518,9 @@ func testAllow(t *testing.T, db *storage.DB) {
 			if stored != nil {
 				t.Error("allow saw a stored version of a new record")
 			}
-			return devsync.Invalid("record.athlete", "is not in this camp")
+			return devsync.Invalid("athlete", "is not in this camp")
 		})
-	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeValidation || res.Rejected[0].Field != "record.athlete" {
+	if len(res.Rejected) != 1 || res.Rejected[0].Code != devsync.CodeValidation || res.Rejected[0].Field != "athlete" {
 		t.Fatalf("field error from allow: %+v", res.Rejected)
 	}
 }
