@@ -1,7 +1,6 @@
 package server_test
 
 import (
-	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -10,8 +9,6 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"cornerbook/pwa/pwatest"
-	"cornerbook/server"
-	"cornerbook/server/auth"
 	devsync "cornerbook/sync"
 )
 
@@ -20,15 +17,8 @@ import (
 // shown with its QR, sees a device that joined with it in the device list
 // (with its unsynced count) and removes it, which revokes its pass.
 func TestE2ECampSetUp(t *testing.T) {
-	dir := t.TempDir()
-	db, err := server.OpenStore(filepath.Join(dir, "hub.db"), nil)
-	require.NoError(t, err)
-	accounts, err := auth.Open(db.Bolt(), auth.Options{BcryptCost: 4})
-	require.NoError(t, err)
-	srv, err := server.New(server.Config{Store: db, Auth: accounts})
-	require.NoError(t, err)
-	require.NoError(t, srv.Open("127.0.0.1:0"))
-	t.Cleanup(func() { srv.Close(); db.Check(); db.Close() })
+	h, accounts := startPairingHub(t)
+	srv, db := h.srv, h.db
 
 	_, ctx, _ := e2eBrowser(t, "")
 	require.NoError(t, pwatest.Open(ctx, "http://"+srv.Addr()+"/camp"))

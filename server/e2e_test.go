@@ -108,6 +108,22 @@ func startDemoHub(t testing.TB, loc *time.Location) *e2eHub {
 	return h
 }
 
+// startPairingHub is the real hub with device pairing (a cheap bcrypt cost
+// for speed) on a temp bbolt file, on 127.0.0.1.
+func startPairingHub(t testing.TB) (*e2eHub, *auth.Store) {
+	t.Helper()
+	db, err := server.OpenStore(filepath.Join(t.TempDir(), "hub.db"), nil)
+	require.NoError(t, err)
+	accounts, err := auth.Open(db.Bolt(), auth.Options{BcryptCost: 4})
+	require.NoError(t, err)
+	srv, err := server.New(server.Config{Store: db, Auth: accounts})
+	require.NoError(t, err)
+	require.NoError(t, srv.Open("127.0.0.1:0"))
+	h := &e2eHub{t: t, db: db, srv: srv, addr: srv.Addr()}
+	t.Cleanup(h.stop)
+	return h, accounts
+}
+
 func (h *e2eHub) stop() {
 	if h.srv == nil {
 		return
@@ -395,16 +411,8 @@ func TestE2EBackgroundSyncPushesWithNoPageOpen(t *testing.T) {
 }
 
 func TestE2EJoinWithACodeKeepsEntriesMadeBefore(t *testing.T) {
-	dir := t.TempDir()
-	db, err := server.OpenStore(filepath.Join(dir, "hub.db"), nil)
-	require.NoError(t, err)
-	accounts, err := auth.Open(db.Bolt(), auth.Options{BcryptCost: 4})
-	require.NoError(t, err)
-	srv, err := server.New(server.Config{Store: db, Auth: accounts})
-	require.NoError(t, err)
-	require.NoError(t, srv.Open("127.0.0.1:0"))
-	t.Cleanup(func() { srv.Close(); db.Close() })
-	h := &e2eHub{t: t, db: db, addr: srv.Addr()} // the test itself talks to the hub as the laptop
+	h, accounts := startPairingHub(t) // the test itself talks to the hub as the laptop
+	srv := h.srv
 	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
 	join, err := accounts.NewJoin(auth.RoleAthlete, ids["Ana Pereira"], "coach", time.Now())
 	require.NoError(t, err)
