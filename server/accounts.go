@@ -9,7 +9,6 @@ import (
 	"github.com/gorilla/mux"
 
 	"cornerbook/server/auth"
-	"cornerbook/storage"
 	devsync "cornerbook/sync"
 )
 
@@ -276,5 +275,3 @@ func (s *Server) handleBackup(w http.ResponseWriter, r *http.Request) error {
 	}
 	return nil
 }
-
-var _ = storage.ErrNotFound

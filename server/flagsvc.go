@@ -12,7 +12,6 @@ import (
 
 	"cornerbook/server/flags"
 	"cornerbook/server/records"
-	"cornerbook/storage"
 	devsync "cornerbook/sync"
 )
 
@@ -481,8 +480,6 @@ func addDays(day string, n int) (string, error) {
 	}
 	return t.AddDate(0, 0, n).Format("2006-01-02"), nil
 }
-
-var _ = storage.ErrNotFound
 
 // sortFlags orders a camp's flags most serious first (alert, watch, info,
 // then "not enough data yet"), keeping each athlete's own order within a level.

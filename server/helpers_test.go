@@ -3,7 +3,6 @@ package server_test
 import (
 	"bytes"
 	"encoding/json"
-	"fmt"
 	"io"
 	"net/http"
 	"net/http/httptest"
@@ -121,5 +120,3 @@ func (h *hub) get(path string, v any) int {
 	}
 	return resp.StatusCode
 }
-
-var _ = fmt.Sprint

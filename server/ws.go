@@ -1,7 +1,6 @@
 package server
 
 import (
-	"context"
 	"encoding/json"
 	"net/http"
 	"sync"
@@ -212,5 +211,3 @@ func (s *Server) wsWriter(p *peer, hello wsMessage) {
 		}
 	}
 }
-
-var _ = context.Background

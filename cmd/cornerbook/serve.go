@@ -10,7 +10,6 @@ import (
 	"net"
 	"os"
 	"path/filepath"
-	"strings"
 	"time"
 
 	"cornerbook/server"
@@ -260,8 +259,6 @@ func parseInterleaved(fs *flag.FlagSet, args []string) error {
 	}
 	return fs.Parse(append([]string{"--"}, pos...))
 }
-
-var _ = strings.TrimSpace
 
 // dataPath is the database file of a data folder.
 func dataPath(dir string) string { return filepath.Join(dir, dbFile) }
