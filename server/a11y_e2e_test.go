@@ -131,8 +131,23 @@ func appScreens(h *ringHub) []appScreen {
 			}},
 		{name: "rounds-incident", path: "/rounds?state=incident", ready: q("ringside-incident-panel"),
 			setup: func(ctx context.Context) error {
-				if err := pwatest.Click(ctx, "ringside-incident"); err != nil {
-					return err
+				// The screen re-renders as the previous state's dialog closes;
+				// tap until the panel is open (a tap can land on the old view).
+				for i := 0; ; i++ {
+					var open bool
+					if err := pwatest.Eval(ctx, `!!document.querySelector('[data-testid="ringside-incident-panel"]')`, &open); err != nil {
+						return err
+					}
+					if open {
+						break
+					}
+					if i == 20 {
+						return fmt.Errorf("the incident panel did not open after %d taps", i)
+					}
+					if err := pwatest.Click(ctx, "ringside-incident"); err != nil {
+						return err
+					}
+					time.Sleep(250 * time.Millisecond)
 				}
 				return pwatest.Click(ctx, "ringside-incident-athlete-"+kofi)
 			}},
