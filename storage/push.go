@@ -295,7 +295,7 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 
 // write stores rec as the new winner over stored (nil if new).
 func (p *pusher) write(rec, stored *devsync.Record) error {
-	v, err := json.Marshal(rec)
+	v, err := rec.AppendJSON(nil)
 	if err != nil {
 		return fmt.Errorf("encode record: %w", err)
 	}
@@ -344,7 +344,7 @@ func (p *pusher) write(rec, stored *devsync.Record) error {
 // keepLoser files a version that lost to the stored winner in the audit
 // bucket, keyed id|u64be counter.
 func (p *pusher) keepLoser(rec *devsync.Record) error {
-	v, err := json.Marshal(rec)
+	v, err := rec.AppendJSON(nil)
 	if err != nil {
 		return err
 	}
