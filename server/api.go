@@ -31,8 +31,14 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 	if err != nil {
 		return err
 	}
-	if err := decodeJSON(body, &req); err != nil {
-		return withMutationIndex(err, body)
+	// Pushes as clients write them take the reflection-free decoder;
+	// anything else (and every malformed push) is decoded strictly by
+	// encoding/json, which names the field at fault.
+	if !utf8.Valid(body) || !devsync.DecodePush(body, &req) {
+		req = devsync.PushRequest{}
+		if err := decodeJSON(body, &req); err != nil {
+			return withMutationIndex(err, body)
+		}
 	}
 	if req.Device == "" {
 		return userError(devsync.CodeBadRequest, "device", "is required: the id of the device that made these entries")

@@ -1,0 +1,336 @@
+// Package jscan is a small, strict JSON scanner for the hub's fast
+// paths: decoding a push and the bodies of the frequent record kinds
+// without reflection. It accepts only the plain form of a document —
+// exact key spellings, no escapes in keys or decoded strings, no nulls,
+// numbers that fit their Go type — and reports anything else as "not
+// plain" (ok == false). The caller then decodes the same bytes with
+// encoding/json, which accepts or rejects them with its usual error, so
+// the fast path never changes what is accepted or how an error reads.
+//
+// Raw values (Value) are fully validated against RFC 8259 (Bray 2017):
+// strings, escapes, numbers, literals, nesting.
+package jscan
+
+import "strconv"
+
+// MaxDepth is the deepest nesting Value accepts; deeper documents are
+// left to encoding/json.
+const MaxDepth = 64
+
+// Scanner reads one JSON document from Buf; Pos is the next byte.
+type Scanner struct {
+	Buf []byte
+	Pos int
+}
+
+// Space skips white space (RFC 8259 §2: space, tab, LF, CR).
+func (s *Scanner) Space() {
+	for s.Pos < len(s.Buf) {
+		switch s.Buf[s.Pos] {
+		case ' ', '\t', '\n', '\r':
+			s.Pos++
+		default:
+			return
+		}
+	}
+}
+
+// Byte consumes c (after white space) if it is next.
+func (s *Scanner) Byte(c byte) bool {
+	s.Space()
+	if s.Pos < len(s.Buf) && s.Buf[s.Pos] == c {
+		s.Pos++
+		return true
+	}
+	return false
+}
+
+// Peek returns the next byte after white space, 0 at the end.
+func (s *Scanner) Peek() byte {
+	s.Space()
+	if s.Pos < len(s.Buf) {
+		return s.Buf[s.Pos]
+	}
+	return 0
+}
+
+// End: nothing but white space is left.
+func (s *Scanner) End() bool {
+	s.Space()
+	return s.Pos == len(s.Buf)
+}
+
+// Object calls member for each key of the object that starts next,
+// with the scanner just after the key's colon; member must consume the
+// value and return false to give up. Keys with escapes are not plain.
+func (s *Scanner) Object(member func(key []byte) bool) bool {
+	if !s.Byte('{') {
+		return false
+	}
+	if s.Byte('}') {
+		return true
+	}
+	for {
+		s.Space()
+		k, ok := s.plainString()
+		if !ok || !s.Byte(':') {
+			return false
+		}
+		s.Space()
+		if !member(k) {
+			return false
+		}
+		if s.Byte(',') {
+			continue
+		}
+		return s.Byte('}')
+	}
+}
+
+// Array calls elem for each element of the array that starts next, with
+// the scanner at the element; elem must consume it.
+func (s *Scanner) Array(elem func() bool) bool {
+	if !s.Byte('[') {
+		return false
+	}
+	if s.Byte(']') {
+		return true
+	}
+	for {
+		s.Space()
+		if !elem() {
+			return false
+		}
+		if s.Byte(',') {
+			continue
+		}
+		return s.Byte(']')
+	}
+}
+
+// String reads a string without escapes or control characters (the
+// caller has checked the document is UTF-8).
+func (s *Scanner) String() (string, bool) {
+	s.Space()
+	b, ok := s.plainString()
+	return string(b), ok
+}
+
+func (s *Scanner) plainString() ([]byte, bool) {
+	if s.Pos >= len(s.Buf) || s.Buf[s.Pos] != '"' {
+		return nil, false
+	}
+	start := s.Pos + 1
+	for i := start; i < len(s.Buf); i++ {
+		switch c := s.Buf[i]; {
+		case c == '"':
+			s.Pos = i + 1
+			return s.Buf[start:i], true
+		case c == '\\' || c < 0x20:
+			return nil, false
+		}
+	}
+	return nil, false
+}
+
+// Bool reads true or false.
+func (s *Scanner) Bool() (v, ok bool) {
+	s.Space()
+	switch {
+	case s.lit("true"):
+		return true, true
+	case s.lit("false"):
+		return false, true
+	}
+	return false, false
+}
+
+// Null consumes a null literal if it is next.
+func (s *Scanner) Null() bool {
+	s.Space()
+	return s.lit("null")
+}
+
+func (s *Scanner) lit(l string) bool {
+	if len(s.Buf)-s.Pos >= len(l) && string(s.Buf[s.Pos:s.Pos+len(l)]) == l {
+		s.Pos += len(l)
+		return true
+	}
+	return false
+}
+
+// number consumes a number of RFC 8259 §6's grammar and returns its text.
+func (s *Scanner) number() ([]byte, bool) {
+	s.Space()
+	b, i := s.Buf, s.Pos
+	start := i
+	if i < len(b) && b[i] == '-' {
+		i++
+	}
+	switch {
+	case i < len(b) && b[i] == '0':
+		i++
+	case i < len(b) && b[i] >= '1' && b[i] <= '9':
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+	default:
+		return nil, false
+	}
+	if i < len(b) && b[i] == '.' {
+		i++
+		d := i
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+		if i == d {
+			return nil, false
+		}
+	}
+	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
+		i++
+		if i < len(b) && (b[i] == '+' || b[i] == '-') {
+			i++
+		}
+		d := i
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+		if i == d {
+			return nil, false
+		}
+	}
+	s.Pos = i
+	return b[start:i], true
+}
+
+// Float reads a number that fits a float64.
+func (s *Scanner) Float() (float64, bool) {
+	t, ok := s.number()
+	if !ok {
+		return 0, false
+	}
+	v, err := strconv.ParseFloat(string(t), 64)
+	return v, err == nil
+}
+
+// Int reads a whole number written without fraction or exponent that
+// fits in bits bits (what encoding/json accepts for an int field).
+func (s *Scanner) Int(bits int) (int64, bool) {
+	t, ok := s.number()
+	if !ok {
+		return 0, false
+	}
+	v, err := strconv.ParseInt(string(t), 10, bits)
+	return v, err == nil
+}
+
+// Uint is Int for unsigned fields.
+func (s *Scanner) Uint(bits int) (uint64, bool) {
+	t, ok := s.number()
+	if !ok {
+		return 0, false
+	}
+	v, err := strconv.ParseUint(string(t), 10, bits)
+	return v, err == nil
+}
+
+// Value consumes any valid JSON value and returns its bytes (without
+// surrounding white space).
+func (s *Scanner) Value() ([]byte, bool) {
+	s.Space()
+	start := s.Pos
+	if !s.value(0) {
+		return nil, false
+	}
+	return s.Buf[start:s.Pos], true
+}
+
+func (s *Scanner) value(depth int) bool {
+	if depth > MaxDepth {
+		return false
+	}
+	s.Space()
+	if s.Pos >= len(s.Buf) {
+		return false
+	}
+	switch c := s.Buf[s.Pos]; {
+	case c == '{':
+		s.Pos++
+		if s.Byte('}') {
+			return true
+		}
+		for {
+			s.Space()
+			if !s.str() || !s.Byte(':') || !s.value(depth+1) {
+				return false
+			}
+			if s.Byte(',') {
+				continue
+			}
+			return s.Byte('}')
+		}
+	case c == '[':
+		s.Pos++
+		if s.Byte(']') {
+			return true
+		}
+		for {
+			if !s.value(depth + 1) {
+				return false
+			}
+			if s.Byte(',') {
+				continue
+			}
+			return s.Byte(']')
+		}
+	case c == '"':
+		return s.str()
+	case c == 't':
+		return s.lit("true")
+	case c == 'f':
+		return s.lit("false")
+	case c == 'n':
+		return s.lit("null")
+	}
+	_, ok := s.number()
+	return ok
+}
+
+// str consumes a string with any valid escapes.
+func (s *Scanner) str() bool {
+	b := s.Buf
+	if s.Pos >= len(b) || b[s.Pos] != '"' {
+		return false
+	}
+	for i := s.Pos + 1; i < len(b); i++ {
+		switch c := b[i]; {
+		case c == '"':
+			s.Pos = i + 1
+			return true
+		case c < 0x20:
+			return false
+		case c == '\\':
+			i++
+			if i >= len(b) {
+				return false
+			}
+			switch b[i] {
+			case '"', '\\', '/', 'b', 'f', 'n', 'r', 't':
+			case 'u':
+				if i+4 >= len(b) {
+					return false
+				}
+				for _, h := range b[i+1 : i+5] {
+					if !(h >= '0' && h <= '9' || h >= 'a' && h <= 'f' || h >= 'A' && h <= 'F') {
+						return false
+					}
+				}
+				i += 4
+			default:
+				return false
+			}
+		}
+	}
+	return false
+}
