@@ -39,6 +39,17 @@ func decodeBody(raw json.RawMessage, dst any, kind string) (map[string]bool, err
 	if len(bytes.TrimSpace(raw)) == 0 || string(bytes.TrimSpace(raw)) == "null" {
 		raw = json.RawMessage("{}")
 	}
+	if kind != KindBout && kind != KindSettings && kind != KindAthlete {
+		if present, ok := fastDecode(raw, dst); ok {
+			return present, nil
+		}
+		reflect.ValueOf(dst).Elem().SetZero()
+	}
+	return slowDecodeBody(raw, dst, kind)
+}
+
+// slowDecodeBody is decodeBody by encoding/json, for any input.
+func slowDecodeBody(raw json.RawMessage, dst any, kind string) (map[string]bool, error) {
 	t := reflect.TypeOf(dst).Elem()
 	// Rare kinds with nested objects (bout paths and weeks, settings maps)
 	// are walked first, so every nested field is spelled exactly. The
@@ -354,6 +365,13 @@ func kindOrPart(kind, path string) string {
 // HTML escaping, no trailing newline. The same body always gives the
 // same bytes, which the last-writer-wins tie-break relies on.
 func canonical(v any) (json.RawMessage, error) {
+	if out, ok := fastCanonical(v); ok {
+		return out, nil
+	}
+	return slowCanonical(v)
+}
+
+func slowCanonical(v any) (json.RawMessage, error) {
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetEscapeHTML(false)
