@@ -3,6 +3,7 @@ package storage_test
 import (
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/google/uuid"
 
@@ -62,4 +63,21 @@ func TestCheckIDForms(t *testing.T) {
 			t.Errorf("CheckID(%q) = %v, want an error saying %q", s, err, want)
 		}
 	}
+}
+
+// A day is accepted exactly when time.Parse accepts it as YYYY-MM-DD,
+// the proleptic Gregorian calendar of ISO 8601 (leap years every 4
+// years except centuries not divisible by 400).
+func FuzzCheckDayMatchesTimeParse(f *testing.F) {
+	for _, s := range []string{"2026-03-02", "2024-02-29", "2026-02-29", "1900-02-29", "2000-02-29", "2026-04-31",
+		"2026-13-01", "2026-00-10", "2026-01-00", "2026-1-010", "+026-01-01", "2026-01-3a", "0000-01-01"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		_, perr := time.Parse(time.DateOnly, s)
+		want := perr == nil && len(s) == 10
+		if err := storage.CheckDay(s); (err == nil) != want {
+			t.Fatalf("CheckDay(%q) = %v; time.Parse: %v", s, err, perr)
+		}
+	})
 }
