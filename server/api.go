@@ -199,7 +199,7 @@ func decodeStrict(w http.ResponseWriter, r *http.Request, limit int64, v any) er
 
 // readBody reads at most limit bytes of a request body.
 func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
-	body, err := io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
+	body, err := readAll(http.MaxBytesReader(w, r.Body, limit), r.ContentLength, limit)
 	if err != nil {
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
@@ -208,6 +208,29 @@ func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, erro
 		return nil, userError(devsync.CodeBadRequest, "body", "could not be read: "+err.Error())
 	}
 	return body, nil
+}
+
+// readAll is io.ReadAll sized by the request's Content-Length (when it
+// declares one within limit), so a large push is read into one buffer
+// rather than a chain of doubling ones.
+func readAll(rd io.Reader, length, limit int64) ([]byte, error) {
+	if length <= 0 || length > limit {
+		return io.ReadAll(rd)
+	}
+	buf := make([]byte, 0, length+1) // +1: room to see the end of the body
+	for {
+		n, err := rd.Read(buf[len(buf):cap(buf)])
+		buf = buf[:len(buf)+n]
+		if err == io.EOF {
+			return buf, nil
+		}
+		if err != nil {
+			return buf, err
+		}
+		if len(buf) == cap(buf) {
+			buf = append(buf, 0)[:len(buf)] // longer than declared: let it grow
+		}
+	}
 }
 
 // decodeJSON decodes one JSON value strictly, naming the field at fault.

@@ -60,8 +60,9 @@ func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 	}
 	var res PushResult
 	err := db.bolt.Update(func(tx *bolt.Tx) error {
-		res = PushResult{Rejected: []devsync.Rejection{}} // [] rather than null in JSON
-		p := pusher{tx: tx, db: db, changed: map[string]int{}}
+		res = PushResult{Rejected: []devsync.Rejection{}, // [] rather than null in JSON
+			Changed: make([]devsync.Record, 0, len(req.Mutations))}
+		p := pusher{tx: tx, db: db, changed: make(map[string]int, len(req.Mutations))}
 		p.open()
 		dev, err := p.device(req.Device)
 		if err != nil {

@@ -3,6 +3,8 @@ package sync
 import (
 	"encoding/json"
 	"strconv"
+
+	"cornerbook/sync/jscan"
 )
 
 // AppendJSON appends r's JSON to dst: the very bytes json.Marshal(r)
@@ -14,6 +16,9 @@ func (r *Record) AppendJSON(dst []byte) ([]byte, error) {
 		!plain(r.At) || !plain(r.Device) || !compactBody(r.Body) {
 		v, err := json.Marshal(r)
 		return append(dst, v...), err
+	}
+	if need := len(dst) + 128 + len(r.ID) + len(r.Kind) + len(r.Athlete) + len(r.Day) + len(r.At) + len(r.Device) + len(r.Body); cap(dst) < need {
+		dst = append(make([]byte, 0, need), dst...)
 	}
 	dst = append(dst, `{"id":"`...)
 	dst = append(dst, r.ID...)
@@ -90,5 +95,9 @@ func compactBody(b json.RawMessage) bool {
 			return false
 		}
 	}
-	return json.Valid(b)
+	s := jscan.Scanner{Buf: b}
+	if _, ok := s.Value(); ok && s.End() {
+		return true
+	}
+	return false // invalid, or deeper than jscan.MaxDepth: left to json.Marshal
 }
