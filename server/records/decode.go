@@ -35,7 +35,7 @@ func fmtNum(v float64) string {
 // value ("body.path[2].mass_kg"). It also reports which top-level fields
 // were present and not null, so a check can say "is required" rather
 // than "got 0".
-func decodeBody(raw json.RawMessage, dst any, kind string) (map[string]bool, error) {
+func decodeBody(raw json.RawMessage, dst any, kind string) (fieldSet, error) {
 	if len(bytes.TrimSpace(raw)) == 0 || string(bytes.TrimSpace(raw)) == "null" {
 		raw = json.RawMessage("{}")
 	}
@@ -45,7 +45,24 @@ func decodeBody(raw json.RawMessage, dst any, kind string) (map[string]bool, err
 		}
 		reflect.ValueOf(dst).Elem().SetZero()
 	}
-	return slowDecodeBody(raw, dst, kind)
+	keys, err := slowDecodeBody(raw, dst, kind)
+	return fieldSet{names: keys}, err
+}
+
+// fieldSet tells which top-level fields of a body were present and not
+// null: a bit per field of the type's plan (fast path) or a map of names.
+type fieldSet struct {
+	plan  *bodyPlan
+	bits  uint64
+	names map[string]bool
+}
+
+func (s fieldSet) has(name string) bool {
+	if s.plan != nil {
+		i, ok := s.plan.byName[name]
+		return ok && s.bits&(1<<i) != 0
+	}
+	return s.names[name]
 }
 
 // slowDecodeBody is decodeBody by encoding/json, for any input.

@@ -44,6 +44,8 @@ type fieldPlan struct {
 type bodyPlan struct {
 	fields []fieldPlan
 	byName map[string]int
+	// how many pointer fields of each kind: the size of their slabs
+	nFloatPtr, nIntPtr, nBoolPtr int
 }
 
 var plans sync.Map // reflect.Type → *bodyPlan (nil: not flat)
@@ -89,6 +91,14 @@ func planOf(t reflect.Type) *bodyPlan {
 		}
 		p.byName[name] = len(p.fields)
 		p.fields = append(p.fields, fp)
+		switch fp.kind {
+		case fFloatPtr:
+			p.nFloatPtr++
+		case fIntPtr:
+			p.nIntPtr++
+		case fBoolPtr:
+			p.nBoolPtr++
+		}
 	}
 	plans.Store(t, p)
 	return p
@@ -105,15 +115,19 @@ func builtin(t reflect.Type) bool {
 // fastDecode decodes a plain flat body into the struct dst points to and
 // returns the top-level fields present; ok is false when the body is not
 // in the plain form (dst is then left partly filled).
-func fastDecode(raw []byte, dst any) (present map[string]bool, ok bool) {
+func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 	v := reflect.ValueOf(dst).Elem()
 	p := planOf(v.Type())
 	if p == nil || !utf8.Valid(raw) {
-		return nil, false // encoding/json replaces bad UTF-8; leave it to it
+		return fieldSet{}, false // encoding/json replaces bad UTF-8; leave it to it
 	}
 	s := jscan.Scanner{Buf: raw}
 	var seen uint64
-	present = make(map[string]bool, len(p.fields))
+	// Pointer fields point into one allocation per body rather than one
+	// each.
+	var slab []float64
+	var islab []int
+	var bslab []bool
 	ok = s.Object(func(k []byte) bool {
 		i, known := p.byName[string(k)]
 		if !known || seen&(1<<i) != 0 {
@@ -129,37 +143,54 @@ func fastDecode(raw []byte, dst any) (present map[string]bool, ok bool) {
 				return false
 			}
 			fv.SetString(x)
-		case fBool, fBoolPtr:
+		case fBool:
 			x, ok := s.Bool()
 			if !ok {
 				return false
 			}
-			if f.kind == fBool {
-				fv.SetBool(x)
-			} else {
-				fv.Set(reflect.ValueOf(&x))
+			fv.SetBool(x)
+		case fBoolPtr:
+			x, ok := s.Bool()
+			if !ok {
+				return false
 			}
-		case fInt, fIntPtr:
+			if bslab == nil {
+				bslab = make([]bool, 0, p.nBoolPtr)
+			}
+			bslab = append(bslab, x)
+			fv.Set(reflect.ValueOf(&bslab[len(bslab)-1]))
+		case fInt:
 			x, ok := s.Int(64)
 			if !ok {
 				return false
 			}
-			if f.kind == fInt {
-				fv.SetInt(x)
-			} else {
-				n := int(x)
-				fv.Set(reflect.ValueOf(&n))
+			fv.SetInt(x)
+		case fIntPtr:
+			x, ok := s.Int(64)
+			if !ok {
+				return false
 			}
-		case fFloat, fFloatPtr:
+			if islab == nil {
+				islab = make([]int, 0, p.nIntPtr)
+			}
+			islab = append(islab, int(x))
+			fv.Set(reflect.ValueOf(&islab[len(islab)-1]))
+		case fFloat:
 			x, ok := s.Float()
 			if !ok {
 				return false
 			}
-			if f.kind == fFloat {
-				fv.SetFloat(x)
-			} else {
-				fv.Set(reflect.ValueOf(&x))
+			fv.SetFloat(x)
+		case fFloatPtr:
+			x, ok := s.Float()
+			if !ok {
+				return false
 			}
+			if slab == nil {
+				slab = make([]float64, 0, p.nFloatPtr)
+			}
+			slab = append(slab, x)
+			fv.Set(reflect.ValueOf(&slab[len(slab)-1]))
 		case fFloats:
 			xs := make([]float64, 0, 8)
 			if !s.Array(func() bool {
@@ -171,10 +202,9 @@ func fastDecode(raw []byte, dst any) (present map[string]bool, ok bool) {
 			}
 			fv.Set(reflect.ValueOf(xs))
 		}
-		present[f.name] = true
 		return true
 	})
-	return present, ok && s.End()
+	return fieldSet{plan: p, bits: seen}, ok && s.End()
 }
 
 // fastCanonical writes v (a pointer to a flat struct) as canonical would:

@@ -79,7 +79,7 @@ type check struct {
 	rec     *devsync.Record
 	at      time.Time  // the record's own timestamp
 	now     *time.Time // the hub's clock, nil under Prepare
-	present map[string]bool
+	present fieldSet
 }
 
 func prepare(rec *devsync.Record, now *time.Time) error {

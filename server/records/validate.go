@@ -70,7 +70,7 @@ func validateAthlete(c *check, raw json.RawMessage) (any, error) {
 	if err := oneOf("body.units", b.Units, Units); err != nil {
 		return nil, err
 	}
-	if present["birth_year"] {
+	if present.has("birth_year") {
 		hi := c.at.Year() - MinAgeYears
 		if c.now != nil && c.now.Year()-MinAgeYears < hi {
 			hi = c.now.Year() - MinAgeYears
@@ -223,7 +223,7 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 	if err := boutLimit(&b, present); err != nil {
 		return nil, err
 	}
-	if !present["start_mass_kg"] {
+	if !present.has("start_mass_kg") {
 		return nil, fe("body.start_mass_kg", "is required: the fighter's morning mass at camp start, %d to %d kg", MinMassKg, MaxMassKg)
 	}
 	if err := between("body.start_mass_kg", b.StartMassKg, MinMassKg, MaxMassKg, "kg"); err != nil {
@@ -277,8 +277,8 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 // limit (filled in exactly when absent); an unlimited class (heavyweight,
 // "+92 kg") has limit_kg 0 or absent, which the flag rules read as "no
 // mass limit"; "custom" or no class takes any limit in range.
-func boutLimit(b *Bout, present map[string]bool) error {
-	hasLimit := present["limit_kg"] && b.LimitKg != 0
+func boutLimit(b *Bout, present fieldSet) error {
+	hasLimit := present.has("limit_kg") && b.LimitKg != 0
 	if b.WeightClass != "" && b.WeightClass != ClassCustom {
 		cl, ok := ClassByID(b.WeightClass)
 		if !ok {
@@ -421,13 +421,13 @@ func validateRound(c *check, raw json.RawMessage) (any, error) {
 	if err := oneOf("body.activity", b.Activity, Activities); err != nil {
 		return nil, err
 	}
-	if !present["seconds"] {
+	if !present.has("seconds") {
 		return nil, fe("body.seconds", "is required: the round's length, %d to %d s", MinRoundS, MaxRoundS)
 	}
 	if err := betweenInt("body.seconds", b.Seconds, MinRoundS, MaxRoundS, "s"); err != nil {
 		return nil, err
 	}
-	if !present["intensity"] {
+	if !present.has("intensity") {
 		return nil, fe("body.intensity", "is required: 1 easy, 2 moderate or 3 hard")
 	}
 	if b.Intensity < 1 || b.Intensity > 3 {
@@ -470,13 +470,13 @@ func validateIntervals(c *check, raw json.RawMessage) (any, error) {
 			return nil, err
 		}
 	}
-	if !present["reps"] {
+	if !present.has("reps") {
 		return nil, fe("body.reps", "is required: repetitions per set, 1 to %d", MaxReps)
 	}
 	if err := betweenInt("body.reps", b.Reps, 1, MaxReps, "repetitions per set"); err != nil {
 		return nil, err
 	}
-	if !present["sets"] {
+	if !present.has("sets") {
 		b.Sets = 1 // one set unless told otherwise
 	}
 	if err := betweenInt("body.sets", b.Sets, 1, MaxSets, "sets"); err != nil {
@@ -505,7 +505,7 @@ func validateIntervals(c *check, raw json.RawMessage) (any, error) {
 			return nil, err
 		}
 	}
-	if !present["minutes"] || b.MinutesDerived {
+	if !present.has("minutes") || b.MinutesDerived {
 		b.Minutes = IntervalsSeconds(b.WorkS, b.RestS, b.Reps, b.Sets, b.SetRestS) / 60
 		b.MinutesDerived = true
 		if b.Minutes > MaxSessionMin {
@@ -539,13 +539,13 @@ func validateSession(c *check, raw json.RawMessage) (any, error) {
 			return nil, err
 		}
 	}
-	if !present["minutes"] {
+	if !present.has("minutes") {
 		return nil, fe("body.minutes", "is required: the session's length, %d to %d min", MinSessionMin, MaxSessionMin)
 	}
 	if err := between("body.minutes", b.Minutes, MinSessionMin, MaxSessionMin, "min"); err != nil {
 		return nil, err
 	}
-	if !present["rpe"] {
+	if !present.has("rpe") {
 		return nil, fe("body.rpe", "is required: the session RPE, 0 to 10 on the CR-10 scale")
 	}
 	if err := rpe("body.rpe", b.RPE); err != nil {
