@@ -67,6 +67,12 @@ export async function getMeta(key) {
   return (await openStore()).get('meta', key);
 }
 
+// getMetas reads several meta keys in one transaction, in the order asked.
+export async function getMetas(keys) {
+  const tx = (await openStore()).transaction('meta');
+  return Promise.all(keys.map((k) => tx.store.get(k)));
+}
+
 export async function setMeta(key, value) {
   const db = await openStore();
   await db.put('meta', value, key);

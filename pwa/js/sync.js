@@ -4,7 +4,7 @@
 // push and pull. This module is also imported by the service worker, so it
 // touches no window or document at load time.
 import {
-  ack, adoptPairing, applyPage, deviceId, getMeta, notify, outboxCount, pushBatch, rejectRows,
+  ack, adoptPairing, applyPage, deviceId, getMeta, getMetas, notify, outboxCount, pushBatch, rejectRows,
   rejectedList, resetForEpoch, restamp, setMeta,
 } from './db.js';
 
@@ -112,24 +112,27 @@ async function pushAll() {
 
 async function pullAll() {
   let resets = 0;
-  let cursor = (await getMeta('cursor')) || 0;
+  // One read for what the loop needs; the epoch changes only through
+  // resetForEpoch (or a pull page, applied below), so it is re-read then.
+  let [cursor, epoch, token] = await getMetas(['cursor', 'epoch', 'token']);
+  cursor = cursor || 0;
   for (;;) {
     const sentAt = Date.now();
     trace('pull-sent');
-    const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}`);
+    const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}`, undefined, token || null);
     trace('pull-answered');
     const gotAt = Date.now();
-    const epoch = await getMeta('epoch');
     if (resets < 1 && ((epoch && page.epoch && page.epoch !== epoch) || (page.maxSeq < cursor))) {
       resets++;
       await resetForEpoch(page.epoch);
       await pushAll();
-      cursor = 0;
+      [cursor, epoch, token] = [0, await getMeta('epoch'), await getMeta('token')];
       continue;
     }
     await applyPage(page, sentAt, gotAt);
     trace('page-applied');
     cursor = page.next;
+    if (page.epoch) epoch = page.epoch;
     if (!page.more) return;
   }
 }
