@@ -239,6 +239,16 @@ export async function rejectedList() {
   return (await openStore()).getAll('rejected');
 }
 
+// counts reads what the status line shows in one transaction.
+export async function counts() {
+  const tx = (await openStore()).transaction(['outbox', 'rejected', 'meta']);
+  const [waiting, rejected, lastSync, offset] = await Promise.all([
+    tx.objectStore('outbox').count(), tx.objectStore('rejected').count(),
+    tx.objectStore('meta').get('lastSync'), tx.objectStore('meta').get('offset'),
+  ]);
+  return { waiting, rejected, lastSync: lastSync || 0, offset: offset || 0 };
+}
+
 // ---- sync steps (each one transaction) ----
 
 // clockIn applies the receive rule for the hub's clock and smooths the

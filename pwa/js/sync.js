@@ -4,8 +4,8 @@
 // push and pull. This module is also imported by the service worker, so it
 // touches no window or document at load time.
 import {
-  ack, adoptPairing, applyPage, deviceId, getMeta, getMetas, notify, outboxCount, pushBatch, rejectRows,
-  rejectedList, resetForEpoch, restamp, setMeta,
+  ack, adoptPairing, applyPage, counts, deviceId, getMeta, getMetas, notify, pushBatch, rejectRows,
+  resetForEpoch, restamp, setMeta,
 } from './db.js';
 
 const PUSH_BATCH = 200;
@@ -59,13 +59,32 @@ function withLock(fn) {
   return run;
 }
 
+// A local write's own screen refresh waits until its push is on the wire
+// (at most LOCAL_REFRESH_MAX_MS): the page's re-render and its IndexedDB
+// reads would otherwise queue ahead of the push, and the coach would hear
+// of the entry later. The "saved on this device" line does not wait.
+const LOCAL_REFRESH_MAX_MS = 150;
+const pushWaiters = [];
+function pushUnderway() {
+  pushWaiters.splice(0).forEach((f) => f());
+}
+function afterPushUnderway() {
+  return new Promise((resolve) => {
+    pushWaiters.push(resolve);
+    setTimeout(resolve, LOCAL_REFRESH_MAX_MS);
+  });
+}
+
 async function pushAll() {
   let skewRetries = 0;
   let pushed = 0;
   let batch = PUSH_BATCH;
   for (;;) {
     const { rows, total, device, epoch, token } = await pushBatch(batch);
-    if (!rows.length) return pushed;
+    if (!rows.length) {
+      pushUnderway();
+      return pushed;
+    }
     const waiting = total - rows.length;
     const body = {
       device: device || await deviceId(),
@@ -77,7 +96,9 @@ async function pushAll() {
     let res;
     trace('push-sent');
     try {
-      res = await api('POST', '/api/push', body, token || null);
+      const answer = api('POST', '/api/push', body, token || null);
+      pushUnderway();
+      res = await answer;
       trace('push-answered');
     } catch (e) {
       const gotAt = Date.now();
@@ -189,10 +210,7 @@ function publish() {
 }
 
 export async function refreshCounts() {
-  status.waiting = await outboxCount();
-  status.rejected = (await rejectedList()).length;
-  status.lastSync = (await getMeta('lastSync')) || 0;
-  status.offset = (await getMeta('offset')) || 0;
+  Object.assign(status, await counts());
   publish();
 }
 
@@ -241,6 +259,7 @@ export async function requestSync(reason) {
   } finally {
     running = false;
     status.syncing = false;
+    pushUnderway();
     await refreshCounts();
   }
 }
@@ -319,8 +338,12 @@ export function startSync(onData) {
         status.received += m.pulled || 0;
         status.sent += m.acked || 0;
       }
-      if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
-      refreshCounts();
+      const deliver = () => {
+        if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
+        refreshCounts();
+      };
+      if (m.type === 'changed' && m.local) afterPushUnderway().then(deliver);
+      else deliver();
     });
   });
   document.addEventListener('visibilitychange', () => {
