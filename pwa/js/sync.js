@@ -59,32 +59,13 @@ function withLock(fn) {
   return run;
 }
 
-// A local write's own screen refresh waits until its push is on the wire
-// (at most LOCAL_REFRESH_MAX_MS): the page's re-render and its IndexedDB
-// reads would otherwise queue ahead of the push, and the coach would hear
-// of the entry later. The "saved on this device" line does not wait.
-const LOCAL_REFRESH_MAX_MS = 150;
-const pushWaiters = [];
-function pushUnderway() {
-  pushWaiters.splice(0).forEach((f) => f());
-}
-function afterPushUnderway() {
-  return new Promise((resolve) => {
-    pushWaiters.push(resolve);
-    setTimeout(resolve, LOCAL_REFRESH_MAX_MS);
-  });
-}
-
 async function pushAll() {
   let skewRetries = 0;
   let pushed = 0;
   let batch = PUSH_BATCH;
   for (;;) {
     const { rows, total, device, epoch, token } = await pushBatch(batch);
-    if (!rows.length) {
-      pushUnderway();
-      return pushed;
-    }
+    if (!rows.length) return pushed;
     const waiting = total - rows.length;
     const body = {
       device: device || await deviceId(),
@@ -96,9 +77,7 @@ async function pushAll() {
     let res;
     trace('push-sent');
     try {
-      const answer = api('POST', '/api/push', body, token || null);
-      pushUnderway();
-      res = await answer;
+      res = await api('POST', '/api/push', body, token || null);
       trace('push-answered');
     } catch (e) {
       const gotAt = Date.now();
@@ -259,7 +238,6 @@ export async function requestSync(reason) {
   } finally {
     running = false;
     status.syncing = false;
-    pushUnderway();
     await refreshCounts();
   }
 }
@@ -338,12 +316,8 @@ export function startSync(onData) {
         status.received += m.pulled || 0;
         status.sent += m.acked || 0;
       }
-      const deliver = () => {
-        if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
-        refreshCounts();
-      };
-      if (m.type === 'changed' && m.local) afterPushUnderway().then(deliver);
-      else deliver();
+      if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
+      refreshCounts();
     });
   });
   document.addEventListener('visibilitychange', () => {
