@@ -133,21 +133,8 @@ func appScreens(h *ringHub) []appScreen {
 			setup: func(ctx context.Context) error {
 				// The screen re-renders as the previous state's dialog closes;
 				// tap until the panel is open (a tap can land on the old view).
-				for i := 0; ; i++ {
-					var open bool
-					if err := pwatest.Eval(ctx, `!!document.querySelector('[data-testid="ringside-incident-panel"]')`, &open); err != nil {
-						return err
-					}
-					if open {
-						break
-					}
-					if i == 20 {
-						return fmt.Errorf("the incident panel did not open after %d taps", i)
-					}
-					if err := pwatest.Click(ctx, "ringside-incident"); err != nil {
-						return err
-					}
-					time.Sleep(250 * time.Millisecond)
+				if err := pwatest.ClickUntil(ctx, "ringside-incident", `document.querySelector('[data-testid="ringside-incident-panel"]')`, 20); err != nil {
+					return err
 				}
 				return pwatest.Click(ctx, "ringside-incident-athlete-"+kofi)
 			}},

@@ -264,9 +264,11 @@ func TestRingsideHoldAndIncident(t *testing.T) {
 	// The incident button, for Kofi.
 	incBefore := len(h.live("incident", kofi, day))
 	require.NoError(t, pwatest.Click(ctx, "round-athlete-"+mateo)) // deselect
-	require.NoError(t, pwatest.Click(ctx, "ringside-incident"))
-	require.NoError(t, pwatest.Click(ctx, "ringside-incident-athlete-"+kofi))
-	require.NoError(t, pwatest.Click(ctx, "ringside-incident-type-knockdown"))
+	// The rounds list re-renders as the round syncs: tap until each tap
+	// has taken (a tap can land on a neighbour while the page shifts).
+	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident", `document.querySelector('[data-testid="ringside-incident-panel"]')`, 10))
+	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident-athlete-"+kofi, `document.querySelector('[data-testid="ringside-incident-athlete-`+kofi+`"][aria-pressed="true"]')`, 10))
+	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident-type-knockdown", `document.querySelector('[data-testid="ringside-incident-type-knockdown"][aria-pressed="true"]')`, 10))
 	require.NoError(t, pwatest.Click(ctx, "ringside-incident-next"))
 	require.NoError(t, pwatest.WaitText(ctx, "ringside-incident-summary", "Kofi Brandt"))
 	n, err = pwatest.Waiting(ctx)

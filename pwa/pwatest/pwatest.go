@@ -263,6 +263,30 @@ func Click(ctx context.Context, testid string) error {
 	return chromedp.Do(ctx, chromedp.Click(chromedp.CSS(sel), chromedp.NodeVisible))
 }
 
+// ClickUntil taps the element with a data-testid until the JavaScript
+// condition holds (at most tries taps, a second apart). A tap is a mouse
+// event at the element's position: when the page shifts under it (a
+// panel scrolling into view, a list re-rendering after a sync), it can
+// land on a neighbour, as a finger would.
+func ClickUntil(ctx context.Context, testid, cond string, tries int) error {
+	for i := 0; i < tries; i++ {
+		var ok bool
+		if err := Eval(ctx, "!!("+cond+")", &ok); err != nil {
+			return err
+		}
+		if ok {
+			return nil
+		}
+		if err := Click(ctx, testid); err != nil {
+			return err
+		}
+		if Poll(ctx, cond, time.Second) == nil {
+			return nil
+		}
+	}
+	return fmt.Errorf("%s: still not %s after %d taps", testid, cond, tries)
+}
+
 // Type replaces the text of the input with a data-testid, typing the new
 // text as keystrokes.
 func Type(ctx context.Context, testid, text string) error {
