@@ -154,7 +154,8 @@ func appScreens(h *ringHub) []appScreen {
 		{name: "session", path: "/session", ready: q("screen-session")},
 		{name: "incident", path: "/incident", ready: q("screen-incident")},
 		{name: "clearance", path: "/clearance?athlete=" + mateo, ready: q("screen-clearance") + ` && document.querySelector('[data-testid^="clearance-incident-"]')`},
-		{name: "today", path: "/today", ready: q("screen-today") + ` && document.querySelectorAll('[data-testid^="entry-"]').length > 0`},
+		// The demo camp ends on demoToday; the browser's own today may be later.
+		{name: "today", path: "/today?day=" + demoToday.Format("2006-01-02"), ready: q("screen-today") + ` && document.querySelectorAll('[data-testid^="entry-"]').length > 0`},
 		{name: "settings", path: "/settings", ready: q("screen-settings") + ` && ` + q("settings-device-id") + `.textContent !== '…'`},
 		{name: "join", path: "/join", ready: q("screen-join")},
 		{name: "camp", path: "/camp", ready: q("camp-add-athlete") + ` && ` + q("camp-devices")},
