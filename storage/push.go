@@ -442,42 +442,16 @@ func CheckID(id string) error {
 // crockford is the ULID alphabet: Crockford's base 32 without I, L, O, U.
 const crockford = "0123456789ABCDEFGHJKMNPQRSTVWXYZ"
 
-// CheckDay accepts a real calendar day written YYYY-MM-DD (what
-// time.Parse accepts for time.DateOnly, checked without it: this runs
-// several times per pushed record).
+// CheckDay accepts a real calendar day written YYYY-MM-DD
+// (devsync.CivilDay).
 func CheckDay(d string) error {
 	if len(d) != 10 || d[4] != '-' || d[7] != '-' {
 		return fmt.Errorf("%q is not a day written YYYY-MM-DD", d)
 	}
-	num := func(s string) int {
-		n := 0
-		for i := 0; i < len(s); i++ {
-			if s[i] < '0' || s[i] > '9' {
-				return -1
-			}
-			n = n*10 + int(s[i]-'0')
-		}
-		return n
-	}
-	y, m, day := num(d[:4]), num(d[5:7]), num(d[8:])
-	if y < 0 || m < 1 || m > 12 || day < 1 || day > daysIn(m, y) {
+	if _, _, _, ok := devsync.CivilDay(d); !ok {
 		return fmt.Errorf("%q is not a calendar day written YYYY-MM-DD", d)
 	}
 	return nil
-}
-
-// daysIn is the length of month m of year y in the Gregorian calendar.
-func daysIn(m, y int) int {
-	switch m {
-	case 2:
-		if y%4 == 0 && (y%100 != 0 || y%400 == 0) {
-			return 29
-		}
-		return 28
-	case 4, 6, 9, 11:
-		return 30
-	}
-	return 31
 }
 
 // checkAthlete: a per-athlete record names an athlete the camp holds (an

@@ -13,6 +13,8 @@ package day
 import (
 	"fmt"
 	"time"
+
+	devsync "cornerbook/sync"
 )
 
 // Number is a calendar day counted from 1970-01-01 (day 0).
@@ -44,40 +46,11 @@ func Valid(s string) bool {
 }
 
 func parse(s string) (Number, bool) {
-	if len(s) != 10 || s[4] != '-' || s[7] != '-' {
-		return 0, false
-	}
-	num := func(b string) (int, bool) {
-		v := 0
-		for i := 0; i < len(b); i++ {
-			c := b[i]
-			if c < '0' || c > '9' {
-				return 0, false
-			}
-			v = v*10 + int(c-'0')
-		}
-		return v, true
-	}
-	y, ok1 := num(s[0:4])
-	m, ok2 := num(s[5:7])
-	d, ok3 := num(s[8:10])
-	if !ok1 || !ok2 || !ok3 || m < 1 || m > 12 || d < 1 || d > daysIn(y, m) {
+	y, m, d, ok := devsync.CivilDay(s)
+	if !ok {
 		return 0, false
 	}
 	return fromCivil(y, m, d), true
-}
-
-func daysIn(y, m int) int {
-	switch m {
-	case 2:
-		if y%4 == 0 && (y%100 != 0 || y%400 == 0) {
-			return 29
-		}
-		return 28
-	case 4, 6, 9, 11:
-		return 30
-	}
-	return 31
 }
 
 // fromCivil is days_from_civil (Hinnant 2013).
