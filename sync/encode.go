@@ -1,6 +1,7 @@
 package sync
 
 import (
+	"bytes"
 	"encoding/json"
 	"strconv"
 
@@ -77,27 +78,11 @@ func compactBody(b json.RawMessage) bool {
 	if len(b) == 0 {
 		return true
 	}
-	in, esc := false, false
-	for i := 0; i < len(b); i++ {
-		c := b[i]
-		switch {
-		case c == '<' || c == '>' || c == '&':
-			return false
-		case c == 0xe2 && i+2 < len(b) && b[i+1] == 0x80 && b[i+2]&^1 == 0xa8:
-			return false
-		case esc:
-			esc = false
-		case in && c == '\\':
-			esc = true
-		case c == '"':
-			in = !in
-		case !in && (c == ' ' || c == '\t' || c == '\n' || c == '\r'):
-			return false
-		}
+	if bytes.ContainsAny(b, "<>&\u2028\u2029") {
+		return false
 	}
 	s := jscan.Scanner{Buf: b}
-	if _, ok := s.Value(); ok && s.End() {
-		return true
-	}
-	return false // invalid, or deeper than jscan.MaxDepth: left to json.Marshal
+	_, ok := s.Value()
+	// Invalid, or deeper than jscan.MaxDepth: left to json.Marshal.
+	return ok && s.End() && !s.Spaced
 }

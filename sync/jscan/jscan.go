@@ -18,9 +18,11 @@ import "strconv"
 const MaxDepth = 64
 
 // Scanner reads one JSON document from Buf; Pos is the next byte.
+// Spaced records whether any white space was skipped.
 type Scanner struct {
-	Buf []byte
-	Pos int
+	Buf    []byte
+	Pos    int
+	Spaced bool
 }
 
 // Space skips white space (RFC 8259 §2: space, tab, LF, CR).
@@ -29,6 +31,7 @@ func (s *Scanner) Space() {
 		switch s.Buf[s.Pos] {
 		case ' ', '\t', '\n', '\r':
 			s.Pos++
+			s.Spaced = true
 		default:
 			return
 		}
@@ -64,47 +67,35 @@ func (s *Scanner) End() bool {
 // with the scanner just after the key's colon; member must consume the
 // value and return false to give up. Keys with escapes are not plain.
 func (s *Scanner) Object(member func(key []byte) bool) bool {
-	if !s.Byte('{') {
-		return false
-	}
-	if s.Byte('}') {
-		return true
-	}
-	for {
-		s.Space()
+	return s.list('{', '}', func() bool {
 		k, ok := s.plainString()
-		if !ok || !s.Byte(':') {
-			return false
-		}
-		s.Space()
-		if !member(k) {
-			return false
-		}
-		if s.Byte(',') {
-			continue
-		}
-		return s.Byte('}')
-	}
+		return ok && s.Byte(':') && member(k)
+	})
 }
 
 // Array calls elem for each element of the array that starts next, with
 // the scanner at the element; elem must consume it.
 func (s *Scanner) Array(elem func() bool) bool {
-	if !s.Byte('[') {
+	return s.list('[', ']', elem)
+}
+
+// list reads open, items separated by commas, close; item starts at the
+// item (white space skipped) and must consume it.
+func (s *Scanner) list(open, close byte, item func() bool) bool {
+	if !s.Byte(open) {
 		return false
 	}
-	if s.Byte(']') {
+	if s.Byte(close) {
 		return true
 	}
 	for {
 		s.Space()
-		if !elem() {
+		if !item() {
 			return false
 		}
-		if s.Byte(',') {
-			continue
+		if !s.Byte(',') {
+			return s.Byte(close)
 		}
-		return s.Byte(']')
 	}
 }
 
@@ -206,33 +197,28 @@ func (s *Scanner) number() ([]byte, bool) {
 
 // Float reads a number that fits a float64.
 func (s *Scanner) Float() (float64, bool) {
-	t, ok := s.number()
-	if !ok {
-		return 0, false
-	}
-	v, err := strconv.ParseFloat(string(t), 64)
+	v, err := strconv.ParseFloat(s.numberText(), 64)
 	return v, err == nil
 }
 
 // Int reads a whole number written without fraction or exponent that
 // fits in bits bits (what encoding/json accepts for an int field).
 func (s *Scanner) Int(bits int) (int64, bool) {
-	t, ok := s.number()
-	if !ok {
-		return 0, false
-	}
-	v, err := strconv.ParseInt(string(t), 10, bits)
+	v, err := strconv.ParseInt(s.numberText(), 10, bits)
 	return v, err == nil
 }
 
 // Uint is Int for unsigned fields.
 func (s *Scanner) Uint(bits int) (uint64, bool) {
-	t, ok := s.number()
-	if !ok {
-		return 0, false
-	}
-	v, err := strconv.ParseUint(string(t), 10, bits)
+	v, err := strconv.ParseUint(s.numberText(), 10, bits)
 	return v, err == nil
+}
+
+// numberText is the next number's text, "" (which no parser takes) if
+// none is next.
+func (s *Scanner) numberText() string {
+	t, _ := s.number()
+	return string(t)
 }
 
 // Value consumes any valid JSON value and returns its bytes (without
@@ -256,34 +242,9 @@ func (s *Scanner) value(depth int) bool {
 	}
 	switch c := s.Buf[s.Pos]; {
 	case c == '{':
-		s.Pos++
-		if s.Byte('}') {
-			return true
-		}
-		for {
-			s.Space()
-			if !s.str() || !s.Byte(':') || !s.value(depth+1) {
-				return false
-			}
-			if s.Byte(',') {
-				continue
-			}
-			return s.Byte('}')
-		}
+		return s.list('{', '}', func() bool { return s.str() && s.Byte(':') && s.value(depth+1) })
 	case c == '[':
-		s.Pos++
-		if s.Byte(']') {
-			return true
-		}
-		for {
-			if !s.value(depth + 1) {
-				return false
-			}
-			if s.Byte(',') {
-				continue
-			}
-			return s.Byte(']')
-		}
+		return s.list('[', ']', func() bool { return s.value(depth + 1) })
 	case c == '"':
 		return s.str()
 	case c == 't':
