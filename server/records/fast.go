@@ -123,9 +123,7 @@ func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 	}
 	s := jscan.Scanner{Buf: raw}
 	var seen uint64
-	// Pointer fields point into one allocation per body rather than one
-	// each.
-	var slab []float64
+	var slab []float64 // backing for the pointer fields (slabbed)
 	var islab []int
 	var bslab []bool
 	ok = s.Object(func(k []byte) bool {
@@ -136,75 +134,59 @@ func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 		seen |= 1 << i
 		f := &p.fields[i]
 		fv := v.Field(f.index)
+		var ok bool
 		switch f.kind {
 		case fString:
-			x, ok := s.String()
-			if !ok {
-				return false
+			var x string
+			if x, ok = s.String(); ok {
+				fv.SetString(x)
 			}
-			fv.SetString(x)
-		case fBool:
-			x, ok := s.Bool()
-			if !ok {
-				return false
+		case fBool, fBoolPtr:
+			var x bool
+			if x, ok = s.Bool(); ok && f.kind == fBool {
+				fv.SetBool(x)
+			} else if ok {
+				fv.Set(reflect.ValueOf(slabbed(&bslab, p.nBoolPtr, x)))
 			}
-			fv.SetBool(x)
-		case fBoolPtr:
-			x, ok := s.Bool()
-			if !ok {
-				return false
+		case fInt, fIntPtr:
+			var x int64
+			if x, ok = s.Int(64); ok && f.kind == fInt {
+				fv.SetInt(x)
+			} else if ok {
+				fv.Set(reflect.ValueOf(slabbed(&islab, p.nIntPtr, int(x))))
 			}
-			if bslab == nil {
-				bslab = make([]bool, 0, p.nBoolPtr)
+		case fFloat, fFloatPtr:
+			var x float64
+			if x, ok = s.Float(); ok && f.kind == fFloat {
+				fv.SetFloat(x)
+			} else if ok {
+				fv.Set(reflect.ValueOf(slabbed(&slab, p.nFloatPtr, x)))
 			}
-			bslab = append(bslab, x)
-			fv.Set(reflect.ValueOf(&bslab[len(bslab)-1]))
-		case fInt:
-			x, ok := s.Int(64)
-			if !ok {
-				return false
-			}
-			fv.SetInt(x)
-		case fIntPtr:
-			x, ok := s.Int(64)
-			if !ok {
-				return false
-			}
-			if islab == nil {
-				islab = make([]int, 0, p.nIntPtr)
-			}
-			islab = append(islab, int(x))
-			fv.Set(reflect.ValueOf(&islab[len(islab)-1]))
-		case fFloat:
-			x, ok := s.Float()
-			if !ok {
-				return false
-			}
-			fv.SetFloat(x)
-		case fFloatPtr:
-			x, ok := s.Float()
-			if !ok {
-				return false
-			}
-			if slab == nil {
-				slab = make([]float64, 0, p.nFloatPtr)
-			}
-			slab = append(slab, x)
-			fv.Set(reflect.ValueOf(&slab[len(slab)-1]))
 		case fFloats:
 			xs := make([]float64, 0, 8)
-			if !s.Array(func() bool {
+			if ok = s.Array(func() bool {
 				x, ok := s.Float()
 				xs = append(xs, x)
 				return ok
-			}) {
-				return false
+			}); ok {
+				fv.Set(reflect.ValueOf(xs))
 			}
-			fv.Set(reflect.ValueOf(xs))
 		}
-		return true
+		return ok
 	})
 	return fieldSet{plan: p, bits: seen}, ok && s.End()
+}
+
+// slabbed appends x to *slab (made with room for n the first time) and
+// returns a pointer to it: one allocation for all the pointer fields of a
+// kind in a body, rather than one each. The slab never outgrows n (each
+// field is read once), so earlier pointers stay valid.
+func slabbed[T any](slab *[]T, n int, x T) *T {
+	if *slab == nil {
+		*slab = make([]T, 0, n)
+	}
+	*slab = append(*slab, x)
+	return &(*slab)[len(*slab)-1]
 }
 
 // fastCanonical writes v (a pointer to a flat struct) as canonical would:
