@@ -12,7 +12,7 @@ import "cornerbook/sync/jscan"
 // must already be known to be UTF-8.
 func DecodePush(body []byte, req *PushRequest) bool {
 	s := jscan.Scanner{Buf: body}
-	var seen uint8
+	var seen uint16
 	ok := s.Object(func(k []byte) bool {
 		var ok bool
 		switch string(k) {
@@ -21,20 +21,17 @@ func DecodePush(body []byte, req *PushRequest) bool {
 				req.Device, ok = s.String()
 			}
 		case "epoch":
-			ok = once(&seen, 2)
-			if ok {
+			if ok = once(&seen, 2); ok {
 				req.Epoch, ok = s.String()
 			}
 		case "waiting":
-			ok = once(&seen, 4)
-			if ok {
+			if ok = once(&seen, 4); ok {
 				var v int64
 				v, ok = s.Int(64)
 				req.Waiting = int(v)
 			}
 		case "mutations":
-			ok = once(&seen, 8)
-			if ok && s.Null() {
+			if ok = once(&seen, 8); ok && s.Null() {
 				return true // encoding/json leaves the list nil
 			}
 			if ok {
@@ -52,7 +49,7 @@ func DecodePush(body []byte, req *PushRequest) bool {
 
 // once marks bit in seen and reports whether it was clear: a repeated
 // key is not plain.
-func once(seen *uint8, bit uint8) bool {
+func once(seen *uint16, bit uint16) bool {
 	if *seen&bit != 0 {
 		return false
 	}
@@ -61,95 +58,77 @@ func once(seen *uint8, bit uint8) bool {
 }
 
 func decodeMutation(s *jscan.Scanner, m *Mutation) bool {
-	var seen uint8
+	var seen uint16
 	return s.Object(func(k []byte) bool {
+		var ok bool
 		switch string(k) {
 		case "n":
-			var ok bool
 			if ok = once(&seen, 1); ok {
 				m.N, ok = s.Uint(64)
 			}
-			return ok
 		case "op":
-			var ok bool
 			if ok = once(&seen, 2); ok {
 				m.Op, ok = s.String()
 			}
-			return ok
 		case "record":
-			return once(&seen, 4) && decodeRecord(s, &m.Record)
+			ok = once(&seen, 4) && decodeRecord(s, &m.Record)
 		}
-		return false
+		return ok
 	})
 }
 
 func decodeRecord(s *jscan.Scanner, r *Record) bool {
 	var seen uint16
 	str := func(bit uint16, dst *string) bool {
-		if seen&bit != 0 {
-			return false
-		}
-		seen |= bit
 		var ok bool
-		*dst, ok = s.String()
+		if ok = once(&seen, bit); ok {
+			*dst, ok = s.String()
+		}
 		return ok
 	}
 	return s.Object(func(k []byte) bool {
+		var ok bool
 		switch string(k) {
 		case "id":
-			return str(1, &r.ID)
+			ok = str(1, &r.ID)
 		case "kind":
-			return str(2, &r.Kind)
+			ok = str(2, &r.Kind)
 		case "athlete":
-			return str(4, &r.Athlete)
+			ok = str(4, &r.Athlete)
 		case "day":
-			return str(8, &r.Day)
+			ok = str(8, &r.Day)
 		case "at":
-			return str(16, &r.At)
+			ok = str(16, &r.At)
 		case "device":
-			return str(32, &r.Device)
-		}
-		var bit uint16
-		switch string(k) {
+			ok = str(32, &r.Device)
 		case "stamp":
-			bit = 64
+			ok = once(&seen, 64) && decodeStamp(s, &r.Stamp)
 		case "gen":
-			bit = 128
-		case "deleted":
-			bit = 256
-		case "body":
-			bit = 512
-		default:
-			return false
-		}
-		if seen&bit != 0 {
-			return false
-		}
-		seen |= bit
-		var ok bool
-		switch bit {
-		case 64:
-			ok = decodeStamp(s, &r.Stamp)
-		case 128:
-			var v int64
-			v, ok = s.Int(64)
-			r.Gen = int(v)
-		case 256:
-			r.Deleted, ok = s.Bool()
-		case 512:
-			var v []byte
-			v, ok = s.Value()
-			if ok && string(v) == "null" {
-				return false // encoding/json keeps the literal null: leave it to it
+			if ok = once(&seen, 128); ok {
+				var v int64
+				v, ok = s.Int(64)
+				r.Gen = int(v)
 			}
-			r.Body = append([]byte(nil), v...)
+		case "deleted":
+			if ok = once(&seen, 256); ok {
+				r.Deleted, ok = s.Bool()
+			}
+		case "body":
+			var v []byte
+			if ok = once(&seen, 512); ok {
+				v, ok = s.Value()
+			}
+			// encoding/json keeps a literal null: leave it to it.
+			if ok = ok && string(v) != "null"; ok {
+				r.Body = append([]byte(nil), v...)
+			}
 		}
 		return ok
 	})
 }
 
 func decodeStamp(s *jscan.Scanner, h *HLC) bool {
-	var seen uint8
+	var seen uint16
 	return s.Object(func(k []byte) bool {
 		var ok bool
 		switch string(k) {

@@ -3,9 +3,9 @@ package sync
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"math/rand/v2"
 	"reflect"
-	"strings"
 	"testing"
 	"unicode/utf8"
 )
@@ -25,7 +25,7 @@ func strictDecode(b []byte) (PushRequest, error) {
 	return req, nil
 }
 
-var errTrailing = json.Unmarshal([]byte("1 2"), new(int))
+var errTrailing = errors.New("more than one JSON value")
 
 func checkSame(t *testing.T, b []byte) bool {
 	t.Helper()
@@ -97,7 +97,7 @@ func TestDecodePushTakesClientPushes(t *testing.T) {
 		if DecodePush([]byte(b), &req) {
 			t.Errorf("DecodePush took %s; only the plain form is its to take", b)
 		}
-		if _, err := strictDecode([]byte(b)); err != nil && !strings.Contains(b, `"device":"q"`) {
+		if _, err := strictDecode([]byte(b)); err != nil {
 			t.Errorf("encoding/json refused %s: %v", b, err)
 		}
 	}
