@@ -39,12 +39,12 @@ func decodeBody(raw json.RawMessage, dst any, kind string) (fieldSet, error) {
 	if len(bytes.TrimSpace(raw)) == 0 || string(bytes.TrimSpace(raw)) == "null" {
 		raw = json.RawMessage("{}")
 	}
-	if kind != KindBout && kind != KindSettings && kind != KindAthlete {
-		if present, ok := fastDecode(raw, dst); ok {
-			return present, nil
-		}
-		reflect.ValueOf(dst).Elem().SetZero()
+	// Flat bodies in their plain form take the fast path (bout and
+	// settings have nested fields and no plan).
+	if present, ok := fastDecode(raw, dst); ok {
+		return present, nil
 	}
+	reflect.ValueOf(dst).Elem().SetZero()
 	keys, err := slowDecodeBody(raw, dst, kind)
 	return fieldSet{names: keys}, err
 }

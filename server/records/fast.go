@@ -12,8 +12,8 @@ import (
 	"cornerbook/sync/jscan"
 )
 
-// The fast path for flat bodies (every kind but athlete, settings and
-// bout): decoding and canonical encoding by a plan made once per type,
+// The fast path for flat bodies (every kind but settings and bout,
+// whose fields nest): decoding and canonical encoding by a plan made once per type,
 // without encoding/json's reflection walk. It takes only the plain form —
 // exact names, each once, no nulls, no escapes in text — and gives way to
 // decodeBody's standard path for anything else, so what is accepted and
