@@ -251,7 +251,11 @@ func Route(ctx context.Context, path string) error {
 	if err := Eval(ctx, fmt.Sprintf(`(() => { history.pushState(null, '', %s); dispatchEvent(new PopStateEvent('popstate')); return true })()`, b), nil); err != nil {
 		return err
 	}
-	return Poll(ctx, fmt.Sprintf(`document.querySelector('#screen') && document.querySelector('#screen').dataset.path === %s.split('?')[0]`, b), 5*time.Second)
+	// Wait for the screen keyed by the whole address (path and query): a
+	// new query on the same path re-mounts the screen, and a tap before
+	// that lands on the old one.
+	return Poll(ctx, fmt.Sprintf(`(() => { const u = new URL(%s, location.href); const e = document.querySelector('#screen');
+		return !!e && e.dataset.address === (u.pathname.replace(/\/+$/, '') || '/') + u.search })()`, b), 5*time.Second)
 }
 
 // Click taps the element with a data-testid.
