@@ -43,7 +43,9 @@ type PushResult struct {
 //     (with the field of a *devsync.RightsError or of a wrapped
 //     *devsync.FieldError), or VALIDATION when the error is itself a
 //     *devsync.FieldError;
-//  5. Options.Prepare for non-deleted records (validation, derived fields);
+//  5. Options.Prepare for non-deleted records (validation, derived fields;
+//     computed ahead, outside the transaction, and used here when allow
+//     left the record unchanged);
 //  6. last-writer-wins against the stored winner (devsync.Compare, sticky
 //     deletes): a winner is written with its history, index and a new
 //     change sequence; a loser is kept in the conflicts audit.
@@ -58,6 +60,7 @@ func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 	if err := checkRequest(&req); err != nil {
 		return PushResult{}, err
 	}
+	pre := db.prepareAhead(req.Mutations)
 	var res PushResult
 	err := db.bolt.Update(func(tx *bolt.Tx) error {
 		res = PushResult{Rejected: []devsync.Rejection{}, // [] rather than null in JSON
@@ -74,7 +77,11 @@ func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 				res.Duplicates++
 				continue
 			}
-			outcome, rej, err := p.apply(m, allow, &res)
+			var pm *prepared
+			if pre != nil {
+				pm = &pre[i]
+			}
+			outcome, rej, err := p.apply(m, pm, allow, &res)
 			if err != nil {
 				return fmt.Errorf("mutation %d (n %d, id %q): %w", i, m.N, m.Record.ID, err)
 			}
@@ -106,8 +113,8 @@ func (db *DB) Push(req devsync.PushRequest, allow Allow) (PushResult, error) {
 // Allow decides whether the pushing device may write incoming over stored
 // (the current winner, tombstones included; nil for a new id). Both are
 // copies: changes to stored are ignored, changes to incoming are kept.
-// Allow and Options.Prepare run inside the push's write transaction: they
-// may read other state but must not write to this store.
+// Allow runs inside the push's write transaction: it may read other state
+// but must not write to this store.
 type Allow func(stored, incoming *devsync.Record) error
 
 // checkRequest refuses a request as a whole.
@@ -210,8 +217,10 @@ func refuse(m *devsync.Mutation, err error) devsync.Rejection {
 	return reject(m, devsync.CodeForbidden, err)
 }
 
-// apply runs one mutation. A non-nil error aborts the whole transaction.
-func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outcome, devsync.Rejection, error) {
+// apply runs one mutation; pre is Prepare's answer for its record from
+// before the transaction (nil: none). A non-nil error aborts the whole
+// transaction.
+func (p *pusher) apply(m *devsync.Mutation, pre *prepared, allow Allow, res *PushResult) (outcome, devsync.Rejection, error) {
 	if err := m.Check(); err != nil {
 		return rejected, reject(m, devsync.CodeValidation, err), nil
 	}
@@ -219,6 +228,7 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 		return rejected, reject(m, devsync.CodeValidation, err), nil
 	}
 	rec := m.Record // the caller's request is not modified
+	var enc []byte  // rec encoded, when it was encoded ahead
 	if rec.Body != nil {
 		rec.Body = append(json.RawMessage(nil), rec.Body...)
 	}
@@ -259,7 +269,13 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 		}
 	}
 	if !rec.Deleted && p.db.prepare != nil {
-		if err := p.db.prepare(&rec); err != nil {
+		var err error
+		if pre != nil && pre.done && sameRecord(&rec, &m.Record) {
+			rec, enc, err = pre.rec, pre.enc, pre.err // allow left the record as it was prepared
+		} else {
+			err = p.db.prepare(&rec)
+		}
+		if err != nil {
 			return rejected, reject(m, devsync.CodeValidation, err), nil
 		}
 		// Prepare may fill fields; it may not move the record to a
@@ -275,13 +291,13 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 
 	if !devsync.Wins(&rec, stored) {
 		if devsync.Compare(&rec, stored) < 0 {
-			if err := p.keepLoser(&rec); err != nil {
+			if err := p.keepLoser(&rec, enc); err != nil {
 				return 0, devsync.Rejection{}, err
 			}
 		}
 		return superseded, devsync.Rejection{}, nil
 	}
-	if err := p.write(&rec, stored); err != nil {
+	if err := p.write(&rec, stored, enc); err != nil {
 		return 0, devsync.Rejection{}, err
 	}
 	if i, ok := p.changed[rec.ID]; ok {
@@ -293,11 +309,24 @@ func (p *pusher) apply(m *devsync.Mutation, allow Allow, res *PushResult) (outco
 	return applied, devsync.Rejection{}, nil
 }
 
-// write stores rec as the new winner over stored (nil if new).
-func (p *pusher) write(rec, stored *devsync.Record) error {
+// encoded is rec as stored: enc when it was encoded ahead, else encoded now.
+func encoded(rec *devsync.Record, enc []byte) ([]byte, error) {
+	if enc != nil {
+		return enc, nil
+	}
 	v, err := rec.AppendJSON(nil)
 	if err != nil {
-		return fmt.Errorf("encode record: %w", err)
+		return nil, fmt.Errorf("encode record: %w", err)
+	}
+	return v, nil
+}
+
+// write stores rec as the new winner over stored (nil if new); enc is rec
+// encoded ahead, or nil.
+func (p *pusher) write(rec, stored *devsync.Record, enc []byte) error {
+	v, err := encoded(rec, enc)
+	if err != nil {
+		return err
 	}
 	id := []byte(rec.ID)
 	if stored != nil {
@@ -343,8 +372,8 @@ func (p *pusher) write(rec, stored *devsync.Record) error {
 
 // keepLoser files a version that lost to the stored winner in the audit
 // bucket, keyed id|u64be counter.
-func (p *pusher) keepLoser(rec *devsync.Record) error {
-	v, err := rec.AppendJSON(nil)
+func (p *pusher) keepLoser(rec *devsync.Record, enc []byte) error {
+	v, err := encoded(rec, enc)
 	if err != nil {
 		return err
 	}

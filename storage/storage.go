@@ -101,7 +101,9 @@ type Options struct {
 	Now func() time.Time
 	// Prepare validates a non-deleted record and fills its derived body
 	// fields. It returns a *devsync.FieldError for bad input. Nil accepts
-	// every record.
+	// every record. Its answer must depend on the record (and the clock)
+	// alone: Push runs it on several records at once, before its write
+	// transaction opens.
 	Prepare func(*devsync.Record) error
 	// CampIntegrity turns on the hub's two rules about athletes: a
 	// per-athlete record must name an athlete record of the store (one

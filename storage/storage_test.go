@@ -374,3 +374,124 @@ func TestExportOrderImportsUnderCampIntegrity(t *testing.T) {
 		t.Fatalf("the imported store differs from the exported one (%d vs %d records)", len(again), len(export))
 	}
 }
+
+// A push large enough to be prepared on several cores ahead of its
+// transaction stores and rejects exactly what the same mutations pushed
+// one at a time (prepared inside the transaction) do.
+func TestPreparedAheadMatchesOneByOne(t *testing.T) {
+	g := storagetest.NewGen(7, "dev-a")
+	athlete := g.ID()
+	var recs []devsync.Record
+	bad := 0
+	for d := 0; d < 150; d++ {
+		r := g.Checkin(athlete, storagetest.Day(d))
+		kg := 20 + 2*d // prepareCheckin takes 25–250 kg
+		if kg < 25 || kg > 250 {
+			bad++
+		}
+		r.Body = []byte(fmt.Sprintf(`{"mass_kg":%d}`, kg))
+		recs = append(recs, r)
+	}
+	recs = append(recs, g.Delete(recs[40]), g.Delete(recs[3]))
+	muts := storagetest.Mutations(1, recs...)
+
+	whole := storagetest.MustOpen(t, storage.Options{Prepare: prepareCheckin})
+	resWhole, err := whole.Push(devsync.PushRequest{Device: "dev-a", Mutations: muts}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	single := storagetest.MustOpen(t, storage.Options{Prepare: prepareCheckin})
+	var rejected []devsync.Rejection
+	for _, m := range muts {
+		res, err := single.Push(devsync.PushRequest{Device: "dev-a", Mutations: []devsync.Mutation{m}}, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rejected = append(rejected, res.Rejected...)
+	}
+	if len(resWhole.Rejected) != bad {
+		t.Fatalf("%d rejected, want %d: %+v", len(resWhole.Rejected), bad, resWhole.Rejected)
+	}
+	if !reflect.DeepEqual(resWhole.Rejected, rejected) {
+		t.Fatalf("rejections differ:\nwhole %+v\none by one %+v", resWhole.Rejected, rejected)
+	}
+	a, b := allRecords(t, whole), allRecords(t, single)
+	if len(a) != 150-bad || !reflect.DeepEqual(a, b) {
+		t.Fatalf("stored %d records in one push, %d one by one, or they differ", len(a), len(b))
+	}
+}
+
+// When allow rewrites the incoming record, the rewrite is what Prepare
+// validates and what is stored, not the record as it was pushed.
+func TestPrepareSeesWhatAllowWrote(t *testing.T) {
+	db := storagetest.MustOpen(t, storage.Options{Prepare: prepareCheckin})
+	g := storagetest.NewGen(8, "dev-a")
+	athlete := g.ID()
+	var recs []devsync.Record
+	for d := 0; d < 40; d++ {
+		r := g.Checkin(athlete, storagetest.Day(d))
+		r.Body = []byte(`{"mass_kg":70}`)
+		recs = append(recs, r)
+	}
+	allow := func(_, in *devsync.Record) error {
+		if in.Day == storagetest.Day(5) {
+			in.Body = []byte(`{"mass_kg":80}`)
+		}
+		if in.Day == storagetest.Day(6) {
+			in.Body = []byte(`{"mass_kg":8}`)
+		}
+		return nil
+	}
+	res, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, recs...)}, allow)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Rejected) != 1 || res.Rejected[0].ID != recs[6].ID || res.Rejected[0].Field != "body.mass_kg" {
+		t.Fatalf("rejected %+v, want the record allow made 8 kg", res.Rejected)
+	}
+	got, err := db.Get(recs[5].ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := `{"mass_kg":80,"mass_lb":176.4}`; string(got.Body) != want { // 80 / 0.45359237 = 176.37 lb (exact factor, 1959 agreement)
+		t.Fatalf("stored %s, want allow's rewrite prepared: %s", got.Body, want)
+	}
+}
+
+// A Prepare that panics on a worker goroutine panics on the caller's, as
+// it would inside the transaction, and nothing is stored.
+func TestPreparePanicReachesTheCaller(t *testing.T) {
+	g := storagetest.NewGen(9, "dev-a")
+	athlete := g.ID()
+	var recs []devsync.Record
+	for d := 0; d < 64; d++ {
+		recs = append(recs, g.Checkin(athlete, storagetest.Day(d)))
+	}
+	last := recs[len(recs)-1].ID // prepared on the last worker
+	db := storagetest.MustOpen(t, storage.Options{Prepare: func(r *devsync.Record) error {
+		if r.ID == last {
+			panic("bad prepare")
+		}
+		return nil
+	}})
+	func() {
+		defer func() {
+			if v := recover(); v != "bad prepare" {
+				t.Fatalf("recovered %v, want the prepare's panic", v)
+			}
+		}()
+		db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, recs...)}, nil)
+	}()
+	if all := allRecords(t, db); len(all) != 0 {
+		t.Fatalf("after the panic the store holds %d records", len(all))
+	}
+}
+
+func allRecords(t *testing.T, db *storage.DB) []devsync.Record {
+	t.Helper()
+	var out []devsync.Record
+	if err := db.All(true, func(r devsync.Record) error { out = append(out, r); return nil }); err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
