@@ -99,8 +99,10 @@ func VerifyFile(path string) (err error) {
 				return fmt.Errorf("%w: it has no %q section", ErrBadBackup, b)
 			}
 		}
-		if v := tx.Bucket(BucketMeta).Get(keySchema); string(v) != schemaVersion {
-			return fmt.Errorf("%w: its layout version is %q, this hub reads %q", ErrBadBackup, v, schemaVersion)
+		// A layout-1 backup is sound too: Open moves it to the current
+		// layout when it is restored.
+		if v := tx.Bucket(BucketMeta).Get(keySchema); string(v) != schemaVersion && string(v) != schemaV1 {
+			return fmt.Errorf("%w: its layout version is %q, this hub reads %q and %q", ErrBadBackup, v, schemaV1, schemaVersion)
 		}
 		var problems []string
 		checkInvariants(tx, func(format string, args ...any) bool {

@@ -18,8 +18,9 @@ const maxCheckProblems = 20
 // (Tx.Check) and the store's invariants:
 //
 //   - the epoch is 32 hex digits;
-//   - every change entry names a stored record whose current sequence is
-//     that entry, and every record has exactly one change entry;
+//   - every record carries its change sequence, every change entry names
+//     a stored record whose current sequence is that entry, and every
+//     record has exactly one change entry;
 //   - no change entry lies above the bucket's sequence;
 //   - every earlier version belongs to a stored record, under a sequence
 //     below the current winner's;
@@ -52,10 +53,38 @@ func (db *DB) Check() error {
 	return errors.Join(problems...)
 }
 
+// storedLayout reads a records value in the file's layout: in layout 2
+// the sequence leads the value; in layout 1 (a backup from before) it
+// sits in the seqs bucket.
+type storedLayout struct{ seqsV1 *bolt.Bucket }
+
+// split returns the record's 8-byte sequence (nil if it has none) and its
+// JSON.
+func (l storedLayout) split(id, v []byte) (seq, js []byte) {
+	if l.seqsV1 != nil {
+		s := l.seqsV1.Get(id)
+		if len(s) != seqLen {
+			s = nil
+		}
+		return s, v
+	}
+	if len(v) <= seqLen {
+		return nil, v
+	}
+	return v[:seqLen], v[seqLen:]
+}
+
 func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 	for _, name := range allBuckets {
 		if tx.Bucket(name) == nil {
 			add("bucket %s is missing", name)
+			return
+		}
+	}
+	var lay storedLayout
+	if string(tx.Bucket(BucketMeta).Get(keySchema)) == schemaV1 {
+		if lay.seqsV1 = tx.Bucket(bucketSeqsV1); lay.seqsV1 == nil {
+			add("bucket %s is missing", bucketSeqsV1)
 			return
 		}
 	}
@@ -67,7 +96,6 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 	}
 
 	records := tx.Bucket(BucketRecords)
-	seqs := tx.Bucket(BucketSeqs)
 	versions := tx.Bucket(BucketVersions)
 	index := tx.Bucket(BucketIndex)
 	changes := tx.Bucket(BucketChanges)
@@ -85,11 +113,11 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 			continue
 		}
 		last = binary.BigEndian.Uint64(k)
-		if records.Get(id) == nil {
+		if v := records.Get(id); v == nil {
 			if !add("change %d names record %q, which is missing", last, id) {
 				return
 			}
-		} else if s := seqs.Get(id); !bytes.Equal(s, k) {
+		} else if s, _ := lay.split(id, v); !bytes.Equal(s, k) {
 			if !add("change %d names record %q, whose current sequence is %x", last, id, s) {
 				return
 			}
@@ -106,7 +134,8 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 	rc := records.Cursor()
 	for k, v := rc.First(); k != nil; k, v = rc.Next() {
 		nRecords++
-		r, err := decode(v)
+		s, js := lay.split(k, v)
+		r, err := decode(js)
 		if err != nil {
 			if !add("record %q is unreadable: %v", k, err) {
 				return
@@ -118,8 +147,7 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 				return
 			}
 		}
-		s := seqs.Get(k)
-		if len(s) != 8 {
+		if s == nil {
 			if !add("record %q has no sequence", k) {
 				return
 			}
@@ -192,7 +220,8 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 			}
 			continue
 		}
-		r, err := decode(v)
+		_, js := lay.split([]byte(id), v)
+		r, err := decode(js)
 		if err != nil {
 			continue // reported above
 		}

@@ -13,7 +13,7 @@ import (
 // the write transaction opened.
 type prepared struct {
 	rec  devsync.Record // the record as Prepare left it
-	enc  []byte         // rec as stored (AppendJSON), when Prepare accepted it
+	enc  []byte         // rec as stored (encodeAhead), when Prepare accepted it
 	err  error          // Prepare's error
 	done bool           // Prepare ran (only for records that are not tombstones)
 }
@@ -46,7 +46,7 @@ func (db *DB) prepareAhead(ms []devsync.Mutation) []prepared {
 			if p.err == nil {
 				// An encoding error is left for the transaction to meet
 				// again, where it aborts the push as it always has.
-				if v, err := r.AppendJSON(nil); err == nil {
+				if v, err := encodeAhead(&r); err == nil {
 					p.enc = v
 				}
 			}

@@ -153,22 +153,20 @@ const (
 )
 
 type pusher struct {
-	tx                                                     *bolt.Tx
-	db                                                     *DB
-	records, seqs, versions, index, changes, devices, conf *bolt.Bucket
-	changed                                                map[string]int  // id → index in res.Changed
-	athletes                                               map[string]bool // athlete ids already checked in this push
+	tx                                               *bolt.Tx
+	db                                               *DB
+	records, versions, index, changes, devices, conf *bolt.Bucket
+	changed                                          map[string]int  // id → index in res.Changed
+	athletes                                         map[string]bool // athlete ids already checked in this push
 }
 
 func (p *pusher) open() {
 	p.records = p.tx.Bucket(BucketRecords)
-	p.seqs = p.tx.Bucket(BucketSeqs)
 	p.versions = p.tx.Bucket(BucketVersions)
 	p.index = p.tx.Bucket(BucketIndex)
 	p.changes = p.tx.Bucket(BucketChanges)
 	p.changes.FillPercent = changesFill
 	p.records.FillPercent = appendFill
-	p.seqs.FillPercent = appendFill
 	p.index.FillPercent = appendFill
 	p.devices = p.tx.Bucket(BucketDevices)
 	p.conf = p.tx.Bucket(BucketConflicts)
@@ -235,7 +233,7 @@ func (p *pusher) apply(m *devsync.Mutation, pre *prepared, allow Allow, res *Pus
 
 	var stored *devsync.Record
 	if v := p.records.Get([]byte(rec.ID)); v != nil {
-		s, err := decode(v)
+		s, err := decodeStored(v)
 		if err != nil {
 			return 0, devsync.Rejection{}, fmt.Errorf("stored record is unreadable: %w", err)
 		}
@@ -309,16 +307,23 @@ func (p *pusher) apply(m *devsync.Mutation, pre *prepared, allow Allow, res *Pus
 	return applied, devsync.Rejection{}, nil
 }
 
-// encoded is rec as stored: enc when it was encoded ahead, else encoded now.
+// encoded is rec as the records bucket holds it, with seqLen bytes free
+// in front for its sequence: enc when it was encoded ahead (encodeAhead),
+// else encoded now.
 func encoded(rec *devsync.Record, enc []byte) ([]byte, error) {
 	if enc != nil {
 		return enc, nil
 	}
-	v, err := rec.AppendJSON(nil)
+	v, err := encodeAhead(rec)
 	if err != nil {
 		return nil, fmt.Errorf("encode record: %w", err)
 	}
 	return v, nil
+}
+
+// encodeAhead encodes rec behind seqLen bytes left for its sequence.
+func encodeAhead(rec *devsync.Record) ([]byte, error) {
+	return rec.AppendJSON(make([]byte, seqLen, seqLen+512))
 }
 
 // write stores rec as the new winner over stored (nil if new); enc is rec
@@ -330,13 +335,12 @@ func (p *pusher) write(rec, stored *devsync.Record, enc []byte) error {
 	}
 	id := []byte(rec.ID)
 	if stored != nil {
-		old := p.seqs.Get(id)
-		if len(old) != 8 {
-			return fmt.Errorf("stored record has no sequence")
+		oldSeq, js, err := splitStored(p.records.Get(id))
+		if err != nil {
+			return fmt.Errorf("stored record: %w", err)
 		}
-		oldSeq := binary.BigEndian.Uint64(old)
 		// The replaced winner joins the history under the sequence it held.
-		if err := p.versions.Put(versionKey(rec.ID, oldSeq), bytes.Clone(p.records.Get(id))); err != nil {
+		if err := p.versions.Put(versionKey(rec.ID, oldSeq), bytes.Clone(js)); err != nil {
 			return err
 		}
 		if err := p.changes.Delete(u64(oldSeq)); err != nil {
@@ -352,11 +356,8 @@ func (p *pusher) write(rec, stored *devsync.Record, enc []byte) error {
 	if err != nil {
 		return err
 	}
-	sk := u64(seq)
-	if err := p.changes.Put(sk, id); err != nil {
-		return err
-	}
-	if err := p.seqs.Put(id, sk); err != nil {
+	binary.BigEndian.PutUint64(v[:seqLen], seq)
+	if err := p.changes.Put(u64(seq), id); err != nil {
 		return err
 	}
 	if err := p.records.Put(id, v); err != nil {
@@ -377,6 +378,7 @@ func (p *pusher) keepLoser(rec *devsync.Record, enc []byte) error {
 	if err != nil {
 		return err
 	}
+	v = v[seqLen:]
 	n, err := p.conf.NextSequence()
 	if err != nil {
 		return err
@@ -498,7 +500,7 @@ func (p *pusher) checkAthlete(rec *devsync.Record) error {
 	if v == nil {
 		return devsync.Invalid("athlete", "no athlete with id %q in this camp; add the athlete first", rec.Athlete)
 	}
-	a, err := decode(v)
+	a, err := decodeStored(v)
 	if err != nil {
 		return err
 	}

@@ -27,7 +27,7 @@ func (db *DB) Get(id string) (devsync.Record, error) {
 			return ErrNotFound
 		}
 		var err error
-		r, err = decode(v)
+		r, err = decodeStored(v)
 		return err
 	})
 	return r, err
@@ -51,7 +51,7 @@ func (db *DB) History(id string) ([]devsync.Record, error) {
 			}
 			out = append(out, r)
 		}
-		r, err := decode(cur)
+		r, err := decodeStored(cur)
 		if err != nil {
 			return err
 		}
@@ -96,7 +96,7 @@ func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) 
 			if v == nil {
 				return fmt.Errorf("change %d names record %q, which is missing", binary.BigEndian.Uint64(k), id)
 			}
-			r, err := decode(v)
+			r, err := decodeStored(v)
 			if err != nil {
 				return fmt.Errorf("record %q: %w", id, err)
 			}
@@ -187,7 +187,7 @@ func emit(records *bolt.Bucket, id []byte, fn func(devsync.Record) error) error 
 	if v == nil {
 		return fmt.Errorf("index names record %q, which is missing", id)
 	}
-	r, err := decode(v)
+	r, err := decodeStored(v)
 	if err != nil {
 		return fmt.Errorf("record %q: %w", id, err)
 	}
@@ -209,16 +209,20 @@ func (db *DB) All(includeDeleted bool, fn func(devsync.Record) error) error {
 				if v == nil {
 					return fmt.Errorf("change %d names record %q, which is missing", binary.BigEndian.Uint64(k), id)
 				}
+				_, js, err := splitStored(v)
+				if err != nil {
+					return fmt.Errorf("record %q: %w", id, err)
+				}
 				var head struct {
 					Kind string `json:"kind"`
 				}
-				if err := json.Unmarshal(v, &head); err != nil {
+				if err := json.Unmarshal(js, &head); err != nil {
 					return fmt.Errorf("record %q: %w", id, err)
 				}
 				if (head.Kind == athleteKind) != (pass == 0) {
 					continue
 				}
-				r, err := decode(v)
+				r, err := decode(js)
 				if err != nil {
 					return fmt.Errorf("record %q: %w", id, err)
 				}

@@ -10,9 +10,9 @@
 //
 // Layout (keys big-endian where numeric, so byte order is numeric order):
 //
-//	meta       "epoch" → 32 hex digits, "schema" → "1"
-//	records    id → record JSON (current winner, tombstones included)
-//	seqs       id → u64be change sequence of the current winner
+//	meta       "epoch" → 32 hex digits, "schema" → "2"
+//	records    id → u64be change sequence ‖ record JSON (current winner,
+//	           tombstones included)
 //	versions   id "|" u64be seq → record JSON (earlier winners, under the
 //	           sequence each held; with records, the full history)
 //	index      athlete "|" kind "|" day "|" id → empty (live records only)
@@ -22,6 +22,10 @@
 //
 // Ids, athlete ids, kinds and days are validated before they reach a key,
 // so none of them contains the "|" separator.
+//
+// Layout 1 kept the sequence in a bucket of its own ("seqs": id → u64be),
+// one more put per record; Open moves a layout-1 file to layout 2 in one
+// transaction, and VerifyFile and RestoreFile accept layout-1 backups.
 package storage
 
 import (
@@ -48,7 +52,6 @@ import (
 var (
 	BucketMeta      = []byte("meta")
 	BucketRecords   = []byte("records")
-	BucketSeqs      = []byte("seqs")
 	BucketVersions  = []byte("versions")
 	BucketIndex     = []byte("index")
 	BucketChanges   = []byte("changes")
@@ -56,7 +59,10 @@ var (
 	BucketConflicts = []byte("conflicts")
 )
 
-var allBuckets = [][]byte{BucketMeta, BucketRecords, BucketSeqs, BucketVersions, BucketIndex, BucketChanges, BucketDevices, BucketConflicts}
+var allBuckets = [][]byte{BucketMeta, BucketRecords, BucketVersions, BucketIndex, BucketChanges, BucketDevices, BucketConflicts}
+
+// bucketSeqsV1 is layout 1's id → sequence bucket.
+var bucketSeqsV1 = []byte("seqs")
 
 var (
 	keyEpoch  = []byte("epoch")
@@ -65,7 +71,10 @@ var (
 
 // schemaVersion is the layout above. A file written by a later layout is
 // refused rather than misread.
-const schemaVersion = "1"
+const (
+	schemaVersion = "2"
+	schemaV1      = "1"
+)
 
 // changesFill is the fill percent of the append-only changes bucket (bbolt
 // README: sequential inserts pack well at 0.9–1.0). It is not persisted,
@@ -199,8 +208,9 @@ func createAtomically(path string) error {
 	return syncDir(dir)
 }
 
-// initBuckets creates the buckets, schema and epoch of a new store and
-// checks the schema of an existing one.
+// initBuckets creates the buckets, schema and epoch of a new store,
+// checks the schema of an existing one and moves a layout-1 file to the
+// current layout.
 func initBuckets(tx *bolt.Tx) error {
 	for _, name := range allBuckets {
 		if _, err := tx.CreateBucketIfNotExists(name); err != nil {
@@ -208,12 +218,17 @@ func initBuckets(tx *bolt.Tx) error {
 		}
 	}
 	meta := tx.Bucket(BucketMeta)
-	if v := meta.Get(keySchema); v == nil {
+	switch v := meta.Get(keySchema); {
+	case v == nil:
 		if err := meta.Put(keySchema, []byte(schemaVersion)); err != nil {
 			return err
 		}
-	} else if string(v) != schemaVersion {
-		return fmt.Errorf("the data file has layout %q; this cornerbook reads layout %s — use a newer cornerbook", v, schemaVersion)
+	case string(v) == schemaV1:
+		if err := migrateV1(tx); err != nil {
+			return fmt.Errorf("move the data file from layout 1 to layout %s: %w", schemaVersion, err)
+		}
+	case string(v) != schemaVersion:
+		return fmt.Errorf("the data file has layout %q; this cornerbook reads layouts %s and %s — use a newer cornerbook", v, schemaV1, schemaVersion)
 	}
 	if meta.Get(keyEpoch) == nil {
 		return meta.Put(keyEpoch, []byte(newEpoch()))
@@ -328,8 +343,76 @@ func parseIndexKey(k []byte) (athlete, kind, day, id string, ok bool) {
 	return string(parts[0]), string(parts[1]), string(parts[2]), string(parts[3]), true
 }
 
-// decode unmarshals a stored record; the JSON decoder copies every byte,
-// so the result is safe to use after the transaction.
+// seqLen is the length of the sequence in front of a records value.
+const seqLen = 8
+
+// splitStored splits a records value into the change sequence of the
+// record and its JSON.
+func splitStored(v []byte) (seq uint64, js []byte, err error) {
+	if len(v) <= seqLen {
+		return 0, nil, fmt.Errorf("stored value of %d bytes holds no sequence and record", len(v))
+	}
+	return binary.BigEndian.Uint64(v[:seqLen]), v[seqLen:], nil
+}
+
+// decodeStored decodes a records value (sequence ‖ JSON).
+func decodeStored(v []byte) (devsync.Record, error) {
+	_, js, err := splitStored(v)
+	if err != nil {
+		return devsync.Record{}, err
+	}
+	return decode(js)
+}
+
+// migrateV1 moves a layout-1 file to layout 2 inside the caller's
+// transaction: each record value takes its sequence from the seqs bucket
+// in front, and the seqs bucket goes. A record without a sequence stops
+// the move, and the transaction rolls back with the file as it was.
+func migrateV1(tx *bolt.Tx) error {
+	records, seqs := tx.Bucket(BucketRecords), tx.Bucket(bucketSeqsV1)
+	if seqs == nil {
+		return fmt.Errorf("the %q bucket is missing", bucketSeqsV1)
+	}
+	// Values are rewritten in chunks, the cursor sought again after each:
+	// bbolt cursors are not stable across puts.
+	const chunk = 4096
+	var from []byte
+	for {
+		type kv struct{ k, v []byte }
+		var batch []kv
+		c := records.Cursor()
+		k, v := c.First()
+		if from != nil {
+			if k, v = c.Seek(from); k != nil && bytes.Equal(k, from) {
+				k, v = c.Next()
+			}
+		}
+		for ; k != nil && len(batch) < chunk; k, v = c.Next() {
+			s := seqs.Get(k)
+			if len(s) != seqLen {
+				return fmt.Errorf("record %q has no sequence", k)
+			}
+			nv := make([]byte, 0, seqLen+len(v))
+			batch = append(batch, kv{bytes.Clone(k), append(append(nv, s...), v...)})
+		}
+		if len(batch) == 0 {
+			break
+		}
+		for _, e := range batch {
+			if err := records.Put(e.k, e.v); err != nil {
+				return err
+			}
+		}
+		from = batch[len(batch)-1].k
+	}
+	if err := tx.DeleteBucket(bucketSeqsV1); err != nil {
+		return err
+	}
+	return tx.Bucket(BucketMeta).Put(keySchema, []byte(schemaVersion))
+}
+
+// decode unmarshals a stored record's JSON; the JSON decoder copies every
+// byte, so the result is safe to use after the transaction.
 func decode(v []byte) (devsync.Record, error) {
 	var r devsync.Record
 	err := json.Unmarshal(v, &r)
