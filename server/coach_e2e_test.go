@@ -472,6 +472,8 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	// Edit week 4 by hand, then save through the device's store.
 	require.NoError(t, coachSet(ctx, "plan-week-4-level", "rest"))
 	require.NoError(t, coachSet(ctx, "plan-week-4-cap", "0"))
+	// What was typed first is still there (nothing reloaded the form).
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-name"]').value === 'Invented rematch'`, time.Second))
 	require.NoError(t, pwatest.Click(ctx, "plan-save"))
 	require.NoError(t, pwatest.WaitText(ctx, "saved", "Plan saved on this device"))
 	require.NoError(t, pwatest.WaitSynced(ctx))
@@ -484,7 +486,10 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 		}
 		return nil
 	}))
-	require.NotNil(t, got, "the new bout reached the hub")
+	if got == nil {
+		rej, _ := pwatest.ReadIDB(ctx, "rejected")
+		t.Fatalf("the new bout did not reach the hub; entries the hub rejected: %v", rej)
+	}
 	var b struct {
 		CampStart   string  `json:"camp_start"`
 		BoutDay     string  `json:"bout_day"`

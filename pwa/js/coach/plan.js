@@ -156,6 +156,12 @@ export function Plan() {
   }, [bouts, a, aid, boutId]);
 
   const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  // A new bout starts blank at once, so what is typed next stays even if
+  // the fighter's bouts finish loading afterwards.
+  const pickBout = (id) => {
+    setBoutId(id);
+    if (id === 'new') { setF(blank()); setLoadedFor(aid + '|new'); setState(null); } else setLoadedFor('');
+  };
   const { body, errs } = bodyFromForm(f, units);
 
   // Ask the hub to check the plan as it is edited.
@@ -207,7 +213,7 @@ export function Plan() {
           <option value="">Choose…</option>${(list || []).map((x) => html`<option value=${x.id}>${x.name}</option>`)}
         </select></div>
       ${a && html`<div class="field"><label for="plan-bout">Bout</label>
-        <select id="plan-bout" data-testid="plan-bout" value=${boutId || 'new'} onChange=${(e) => { setBoutId(e.target.value); setLoadedFor(''); }}>
+        <select id="plan-bout" data-testid="plan-bout" value=${boutId || 'new'} onChange=${(e) => pickBout(e.target.value)}>
           ${(bouts || []).map((r) => html`<option value=${r.id}>${r.body.name || 'Bout'} — ${r.body.bout_day}</option>`)}
           <option value="new">Set up a new bout…</option>
         </select></div>`}
