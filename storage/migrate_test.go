@@ -230,3 +230,80 @@ func TestLayout1MoveStopsOnAMissingSequence(t *testing.T) {
 		t.Fatal("a refused move changed the file")
 	}
 }
+
+// toLayout1 rewrites a closed layout-2 file as layout 1 wrote it: the
+// sequence moves from the front of each records value into a seqs bucket.
+func toLayout1(t *testing.T, path string) {
+	t.Helper()
+	b, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: time.Second})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer b.Close()
+	err = b.Update(func(tx *bolt.Tx) error {
+		seqs, err := tx.CreateBucket([]byte("seqs"))
+		if err != nil {
+			return err
+		}
+		recs := tx.Bucket(storage.BucketRecords)
+		type kv struct{ k, v []byte }
+		var all []kv
+		recs.ForEach(func(k, v []byte) error { all = append(all, kv{bytes.Clone(k), bytes.Clone(v)}); return nil })
+		for _, e := range all {
+			if err := seqs.Put(e.k, e.v[:8]); err != nil {
+				return err
+			}
+			if err := recs.Put(e.k, e.v[8:]); err != nil {
+				return err
+			}
+		}
+		return tx.Bucket(storage.BucketMeta).Put([]byte("schema"), []byte("1"))
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+// A layout-1 file larger than one rewrite chunk (4,096 records) moves
+// whole: every answer is the same after the move.
+func TestOpenMovesALargeLayout1File(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "hub.db")
+	db, err := storage.Open(path, storage.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs := storagetest.Records(31, 10, 500)
+	for i := 0; i < len(recs); i += devsync.MaxMutationsPerPush {
+		batch := recs[i:min(i+devsync.MaxMutationsPerPush, len(recs))]
+		if _, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(uint64(i+1), batch...)}, nil); err != nil {
+			t.Fatal(err)
+		}
+	}
+	g := storagetest.NewGen(32, "dev-b")
+	if _, err := db.Push(devsync.PushRequest{Device: "dev-b", Mutations: storagetest.Mutations(1, g.Edit(recs[4200]), g.Delete(recs[17]))}, nil); err != nil {
+		t.Fatal(err)
+	}
+	before := dumpText(t, dumpStore(t, db, []string{"dev-a", "dev-b"}))
+	db.Close()
+
+	toLayout1(t, path)
+	if err := storage.VerifyFile(path); err != nil {
+		t.Fatalf("the rewritten file is not a sound layout-1 file: %v", err)
+	}
+	start := time.Now()
+	db, err = storage.Open(path, storage.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	t.Logf("moved %d records in %v", len(recs), time.Since(start))
+	if schema, seqs := schemaOf(t, db); schema != "2" || seqs {
+		t.Fatalf("after the move: layout %q, seqs bucket kept %v", schema, seqs)
+	}
+	if err := db.Check(); err != nil {
+		t.Fatal(err)
+	}
+	if after := dumpText(t, dumpStore(t, db, []string{"dev-a", "dev-b"})); after != before {
+		t.Fatal("the moved store answers differently")
+	}
+}

@@ -24,12 +24,14 @@ const prepareChunk = 16
 
 // prepareAhead runs Options.Prepare on a copy of every non-deleted record
 // of a push and encodes what it accepts, spread over the machine's cores,
-// before the push's write transaction opens. bbolt allows one writer at a time, so validation done
-// here overlaps with another push's commit and fsync instead of holding
-// the writer. Prepare is a function of the record and the clock alone
-// (Options.Prepare), so its answer here is the answer it would give inside
-// the transaction; apply uses it only when the record reaching step 5 is
-// the one prepared here, and otherwise prepares again.
+// before the push's write transaction opens. bbolt allows one writer at a
+// time, so validation done here overlaps with another push's commit and
+// fsync instead of holding the writer. Prepare is a function of the record
+// and the clock alone (Options.Prepare), so its answer here is the answer
+// it would give inside the transaction; apply uses it only when the record
+// reaching step 5 is the one prepared here, and otherwise prepares again.
+// Records the transaction then skips (duplicates, bad shapes) were
+// prepared for nothing; that costs time, never a different outcome.
 func (db *DB) prepareAhead(ms []devsync.Mutation) []prepared {
 	if db.prepare == nil || len(ms) == 0 {
 		return nil
