@@ -162,37 +162,38 @@ func (s *Scanner) number() ([]byte, bool) {
 	case i < len(b) && b[i] == '0':
 		i++
 	case i < len(b) && b[i] >= '1' && b[i] <= '9':
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
+		i = digits(b, i)
 	default:
 		return nil, false
 	}
 	if i < len(b) && b[i] == '.' {
-		i++
-		d := i
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
+		d := digits(b, i+1)
+		if d == i+1 {
+			return nil, false // a fraction needs a digit
 		}
-		if i == d {
-			return nil, false
-		}
+		i = d
 	}
 	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
 		i++
 		if i < len(b) && (b[i] == '+' || b[i] == '-') {
 			i++
 		}
-		d := i
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
+		d := digits(b, i)
+		if d == i {
+			return nil, false // so does an exponent
 		}
-		if i == d {
-			return nil, false
-		}
+		i = d
 	}
 	s.Pos = i
 	return b[start:i], true
+}
+
+// digits returns the index after the run of decimal digits at b[i:].
+func digits(b []byte, i int) int {
+	for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+		i++
+	}
+	return i
 }
 
 // Float reads a number that fits a float64.
