@@ -1,6 +1,10 @@
 package sync
 
-import "cornerbook/sync/jscan"
+import (
+	"strconv"
+
+	"cornerbook/sync/jscan"
+)
 
 // DecodePush decodes a push body in its plain form — what every client
 // sends: exact field names, each once, no nulls, no escapes outside
@@ -14,35 +18,27 @@ func DecodePush(body []byte, req *PushRequest) bool {
 	s := jscan.Scanner{Buf: body}
 	var seen uint16
 	ok := s.Object(func(k []byte) bool {
-		var ok bool
 		switch string(k) {
 		case "device":
-			if ok = once(&seen, 1); ok {
-				req.Device, ok = s.String()
-			}
+			return once(&seen, 1) && str(&s, &req.Device)
 		case "epoch":
-			if ok = once(&seen, 2); ok {
-				req.Epoch, ok = s.String()
-			}
+			return once(&seen, 2) && str(&s, &req.Epoch)
 		case "waiting":
-			if ok = once(&seen, 4); ok {
-				var v int64
-				v, ok = s.Int(64)
-				req.Waiting = int(v)
-			}
+			return once(&seen, 4) && integer(&s, &req.Waiting)
 		case "mutations":
-			if ok = once(&seen, 8); ok && s.Null() {
+			if !once(&seen, 8) {
+				return false
+			}
+			if s.Null() {
 				return true // encoding/json leaves the list nil
 			}
-			if ok {
-				req.Mutations = make([]Mutation, 0, 100)
-				ok = s.Array(func() bool {
-					req.Mutations = append(req.Mutations, Mutation{})
-					return decodeMutation(&s, &req.Mutations[len(req.Mutations)-1])
-				})
-			}
+			req.Mutations = make([]Mutation, 0, 100)
+			return s.Array(func() bool {
+				req.Mutations = append(req.Mutations, Mutation{})
+				return decodeMutation(&s, &req.Mutations[len(req.Mutations)-1])
+			})
 		}
-		return ok
+		return false
 	})
 	return ok && s.End()
 }
@@ -57,92 +53,97 @@ func once(seen *uint16, bit uint16) bool {
 	return true
 }
 
+// str, integer and uinteger read one value into a field.
+func str(s *jscan.Scanner, dst *string) bool {
+	v, ok := s.String()
+	*dst = v
+	return ok
+}
+
+func integer(s *jscan.Scanner, dst *int) bool {
+	v, ok := s.Int(strconv.IntSize)
+	*dst = int(v)
+	return ok
+}
+
+func uinteger[T uint32 | uint64](s *jscan.Scanner, dst *T, bits int) bool {
+	v, ok := s.Uint(bits)
+	*dst = T(v)
+	return ok
+}
+
 func decodeMutation(s *jscan.Scanner, m *Mutation) bool {
 	var seen uint16
 	return s.Object(func(k []byte) bool {
-		var ok bool
 		switch string(k) {
 		case "n":
-			if ok = once(&seen, 1); ok {
-				m.N, ok = s.Uint(64)
-			}
+			return once(&seen, 1) && uinteger(s, &m.N, 64)
 		case "op":
-			if ok = once(&seen, 2); ok {
-				m.Op, ok = s.String()
-			}
+			return once(&seen, 2) && str(s, &m.Op)
 		case "record":
-			ok = once(&seen, 4) && decodeRecord(s, &m.Record)
+			return once(&seen, 4) && decodeRecord(s, &m.Record)
 		}
-		return ok
+		return false
 	})
 }
 
 func decodeRecord(s *jscan.Scanner, r *Record) bool {
 	var seen uint16
-	str := func(bit uint16, dst *string) bool {
-		var ok bool
-		if ok = once(&seen, bit); ok {
-			*dst, ok = s.String()
-		}
-		return ok
-	}
 	return s.Object(func(k []byte) bool {
-		var ok bool
 		switch string(k) {
 		case "id":
-			ok = str(1, &r.ID)
+			return once(&seen, 1) && str(s, &r.ID)
 		case "kind":
-			ok = str(2, &r.Kind)
+			return once(&seen, 2) && str(s, &r.Kind)
 		case "athlete":
-			ok = str(4, &r.Athlete)
+			return once(&seen, 4) && str(s, &r.Athlete)
 		case "day":
-			ok = str(8, &r.Day)
+			return once(&seen, 8) && str(s, &r.Day)
 		case "at":
-			ok = str(16, &r.At)
+			return once(&seen, 16) && str(s, &r.At)
 		case "device":
-			ok = str(32, &r.Device)
+			return once(&seen, 32) && str(s, &r.Device)
 		case "stamp":
-			ok = once(&seen, 64) && decodeStamp(s, &r.Stamp)
+			return once(&seen, 64) && decodeStamp(s, &r.Stamp)
 		case "gen":
-			if ok = once(&seen, 128); ok {
-				var v int64
-				v, ok = s.Int(64)
-				r.Gen = int(v)
-			}
+			return once(&seen, 128) && integer(s, &r.Gen)
 		case "deleted":
-			if ok = once(&seen, 256); ok {
-				r.Deleted, ok = s.Bool()
+			if !once(&seen, 256) {
+				return false
 			}
+			var ok bool
+			r.Deleted, ok = s.Bool()
+			return ok
 		case "body":
-			var v []byte
-			if ok = once(&seen, 512); ok {
-				v, ok = s.Value()
+			if !once(&seen, 512) {
+				return false
 			}
+			v, ok := s.Value()
 			// encoding/json keeps a literal null: leave it to it.
-			if ok = ok && string(v) != "null"; ok {
-				r.Body = append([]byte(nil), v...)
+			if !ok || string(v) == "null" {
+				return false
 			}
+			r.Body = append([]byte(nil), v...)
+			return true
 		}
-		return ok
+		return false
 	})
 }
 
 func decodeStamp(s *jscan.Scanner, h *HLC) bool {
 	var seen uint16
 	return s.Object(func(k []byte) bool {
-		var ok bool
 		switch string(k) {
 		case "l":
-			if ok = once(&seen, 1); ok {
-				h.L, ok = s.Int(64)
+			if !once(&seen, 1) {
+				return false
 			}
+			var ok bool
+			h.L, ok = s.Int(64)
+			return ok
 		case "c":
-			if ok = once(&seen, 2); ok {
-				var v uint64
-				v, ok = s.Uint(32)
-				h.C = uint32(v)
-			}
+			return once(&seen, 2) && uinteger(s, &h.C, 32)
 		}
-		return ok
+		return false
 	})
 }
