@@ -143,24 +143,18 @@ func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 			}
 		case fBool, fBoolPtr:
 			var x bool
-			if x, ok = s.Bool(); ok && f.kind == fBool {
-				fv.SetBool(x)
-			} else if ok {
-				fv.Set(reflect.ValueOf(slabbed(&bslab, p.nBoolPtr, x)))
+			if x, ok = s.Bool(); ok {
+				setField(fv, f.kind == fBoolPtr, &bslab, p.nBoolPtr, x)
 			}
 		case fInt, fIntPtr:
 			var x int64
-			if x, ok = s.Int(64); ok && f.kind == fInt {
-				fv.SetInt(x)
-			} else if ok {
-				fv.Set(reflect.ValueOf(slabbed(&islab, p.nIntPtr, int(x))))
+			if x, ok = s.Int(strconv.IntSize); ok {
+				setField(fv, f.kind == fIntPtr, &islab, p.nIntPtr, int(x))
 			}
 		case fFloat, fFloatPtr:
 			var x float64
-			if x, ok = s.Float(); ok && f.kind == fFloat {
-				fv.SetFloat(x)
-			} else if ok {
-				fv.Set(reflect.ValueOf(slabbed(&slab, p.nFloatPtr, x)))
+			if x, ok = s.Float(); ok {
+				setField(fv, f.kind == fFloatPtr, &slab, p.nFloatPtr, x)
 			}
 		case fFloats:
 			xs := make([]float64, 0, 8)
@@ -175,6 +169,16 @@ func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 		return ok
 	})
 	return fieldSet{plan: p, bits: seen}, ok && s.End()
+}
+
+// setField stores x in the addressable field fv of type T, or, when ptr,
+// of type *T, pointing into the body's slab of Ts (slabbed).
+func setField[T any](fv reflect.Value, ptr bool, slab *[]T, n int, x T) {
+	if ptr {
+		*fv.Addr().Interface().(**T) = slabbed(slab, n, x)
+		return
+	}
+	*fv.Addr().Interface().(*T) = x
 }
 
 // slabbed appends x to *slab (made with room for n the first time) and
