@@ -38,7 +38,7 @@ func dumpStore(t *testing.T, db *storage.DB, devices []string) storeDump {
 	if d.MaxSeq, err = db.MaxSeq(); err != nil {
 		t.Fatal(err)
 	}
-	d.All = allRecords(t, db)
+	d.All = dumpAll(t, db)
 	if d.Pull, _, _, _, err = db.Pull(0, devsync.MaxPullLimit, nil); err != nil {
 		t.Fatal(err)
 	}
@@ -149,7 +149,9 @@ func TestOpenMovesLayout1AndKeepsEveryAnswer(t *testing.T) {
 	// Editing a moved record files the old version under the sequence it
 	// held in layout 1.
 	var d storeDump
-	json.Unmarshal([]byte(got), &d)
+	if err := json.Unmarshal([]byte(got), &d); err != nil {
+		t.Fatal(err)
+	}
 	old := d.All[0]
 	g := storagetest.NewGen(21, "dev-c")
 	edit := g.Edit(old)
@@ -273,16 +275,9 @@ func TestOpenMovesALargeLayout1File(t *testing.T) {
 		t.Fatal(err)
 	}
 	recs := storagetest.Records(31, 10, 500)
-	for i := 0; i < len(recs); i += devsync.MaxMutationsPerPush {
-		batch := recs[i:min(i+devsync.MaxMutationsPerPush, len(recs))]
-		if _, err := db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(uint64(i+1), batch...)}, nil); err != nil {
-			t.Fatal(err)
-		}
-	}
+	pushRecs(t, db, "dev-a", 1, recs)
 	g := storagetest.NewGen(32, "dev-b")
-	if _, err := db.Push(devsync.PushRequest{Device: "dev-b", Mutations: storagetest.Mutations(1, g.Edit(recs[4200]), g.Delete(recs[17]))}, nil); err != nil {
-		t.Fatal(err)
-	}
+	pushRecs(t, db, "dev-b", 1, []devsync.Record{g.Edit(recs[4200]), g.Delete(recs[17])})
 	before := dumpText(t, dumpStore(t, db, []string{"dev-a", "dev-b"}))
 	db.Close()
 

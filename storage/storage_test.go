@@ -415,7 +415,7 @@ func TestPreparedAheadMatchesOneByOne(t *testing.T) {
 	if !reflect.DeepEqual(resWhole.Rejected, rejected) {
 		t.Fatalf("rejections differ:\nwhole %+v\none by one %+v", resWhole.Rejected, rejected)
 	}
-	a, b := allRecords(t, whole), allRecords(t, single)
+	a, b := dumpAll(t, whole), dumpAll(t, single)
 	if len(a) != 150-bad || !reflect.DeepEqual(a, b) {
 		t.Fatalf("stored %d records in one push, %d one by one, or they differ", len(a), len(b))
 	}
@@ -482,16 +482,7 @@ func TestPreparePanicReachesTheCaller(t *testing.T) {
 		}()
 		db.Push(devsync.PushRequest{Device: "dev-a", Mutations: storagetest.Mutations(1, recs...)}, nil)
 	}()
-	if all := allRecords(t, db); len(all) != 0 {
+	if all := dumpAll(t, db); len(all) != 0 {
 		t.Fatalf("after the panic the store holds %d records", len(all))
 	}
-}
-
-func allRecords(t *testing.T, db *storage.DB) []devsync.Record {
-	t.Helper()
-	var out []devsync.Record
-	if err := db.All(true, func(r devsync.Record) error { out = append(out, r); return nil }); err != nil {
-		t.Fatal(err)
-	}
-	return out
 }
