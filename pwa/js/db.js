@@ -220,10 +220,6 @@ export async function athletes() {
     .sort((a, b) => a.name.localeCompare(b.name));
 }
 
-export async function outboxCount() {
-  return (await openStore()).count('outbox');
-}
-
 export async function outboxBatch(limit) {
   const db = await openStore();
   const rows = [];

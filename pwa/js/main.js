@@ -114,7 +114,7 @@ function App() {
       <${Link} to="/settings" class="gear" data-testid="nav-settings">Settings</${Link}>
     </header>
     <${StatusBar} />
-    <main id="screen" data-path=${path} data-address=${path + location.search}><${Screen} key=${path + location.search} build=${build} /></main>`;
+    <main id="screen" data-address=${path + location.search}><${Screen} key=${path + location.search} build=${build} /></main>`;
 }
 
 function NotFound() {

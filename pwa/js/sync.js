@@ -126,7 +126,8 @@ async function pullAll() {
       resets++;
       await resetForEpoch(page.epoch);
       await pushAll();
-      [cursor, epoch, token] = [0, await getMeta('epoch'), await getMeta('token')];
+      cursor = 0;
+      [epoch, token] = await getMetas(['epoch', 'token']);
       continue;
     }
     await applyPage(page, sentAt, gotAt);
