@@ -130,29 +130,7 @@ func appScreens(h *ringHub) []appScreen {
 				return nil
 			}},
 		{name: "rounds-incident", path: "/rounds?state=incident", ready: q("ringside-incident-panel") + ` && ` + q("ringside-incident-athlete-"+kofi) + `.getAttribute('aria-pressed') === 'true'`,
-			setup: func(ctx context.Context) error {
-				// The screen re-renders as the previous state's dialog
-				// closes, and a tap can land on the old view: open the
-				// panel and pick the athlete until both hold, and say
-				// what the page showed when a try did not take.
-				pwatest.Eval(ctx, `(() => { window.__taps = []; document.addEventListener('click', (e) => { const t = e.target.closest('[data-testid]'); window.__taps.push((t ? t.dataset.testid : e.target.tagName) + '@' + Math.round(e.clientX) + ',' + Math.round(e.clientY)); }, true); return true })()`, nil)
-				picked := q("ringside-incident-athlete-"+kofi) + `?.getAttribute('aria-pressed') === 'true'`
-				for try := 0; try < 3; try++ {
-					if err := pwatest.ClickUntil(ctx, "ringside-incident", `document.querySelector('[data-testid="ringside-incident-panel"]')`, 20); err != nil {
-						return err
-					}
-					if err := pwatest.Click(ctx, "ringside-incident-athlete-"+kofi); err != nil {
-						return err
-					}
-					if pwatest.Poll(ctx, picked, 3*time.Second) == nil {
-						return nil
-					}
-					var seen string
-					pwatest.Eval(ctx, `JSON.stringify({ taps: window.__taps, open: !!document.querySelector('[data-testid="ringside-incident-panel"]'), scrollY })`, &seen)
-					fmt.Printf("a11y rounds-incident: try %d did not take: %s\n", try+1, seen)
-				}
-				return fmt.Errorf("the incident panel did not keep the athlete picked")
-			}},
+			setup: func(ctx context.Context) error { return openIncidentFor(ctx, kofi) }},
 		{name: "jumps-typed", path: "/jumps?state=typed", ready: q("jump-rel-" + kofi),
 			setup: func(ctx context.Context) error {
 				if err := pwatest.Poll(ctx, `document.querySelector('[data-testid="jump-baseline-`+kofi+`"][data-baseline]')`, 10*time.Second); err != nil {
