@@ -13,7 +13,7 @@ import (
 // the write transaction opened.
 type prepared struct {
 	rec  devsync.Record // the record as Prepare left it
-	enc  []byte         // rec as stored (encodeAhead), when Prepare accepted it
+	enc  []byte         // rec as stored (encodeStored), when Prepare accepted it
 	err  error          // Prepare's error
 	done bool           // Prepare ran (only for records that are not tombstones)
 }
@@ -48,7 +48,7 @@ func (db *DB) prepareAhead(ms []devsync.Mutation) []prepared {
 			if p.err == nil {
 				// An encoding error is left for the transaction to meet
 				// again, where it aborts the push as it always has.
-				if v, err := encodeAhead(&r); err == nil {
+				if v, err := encodeStored(&r); err == nil {
 					p.enc = v
 				}
 			}

@@ -308,21 +308,21 @@ func (p *pusher) apply(m *devsync.Mutation, pre *prepared, allow Allow, res *Pus
 }
 
 // encoded is rec as the records bucket holds it, with seqLen bytes free
-// in front for its sequence: enc when it was encoded ahead (encodeAhead),
+// in front for its sequence: enc when it was encoded ahead,
 // else encoded now.
 func encoded(rec *devsync.Record, enc []byte) ([]byte, error) {
 	if enc != nil {
 		return enc, nil
 	}
-	v, err := encodeAhead(rec)
+	v, err := encodeStored(rec)
 	if err != nil {
 		return nil, fmt.Errorf("encode record: %w", err)
 	}
 	return v, nil
 }
 
-// encodeAhead encodes rec behind seqLen bytes left for its sequence.
-func encodeAhead(rec *devsync.Record) ([]byte, error) {
+// encodeStored encodes rec behind seqLen bytes left for its sequence.
+func encodeStored(rec *devsync.Record) ([]byte, error) {
 	return rec.AppendJSON(make([]byte, seqLen, seqLen+512))
 }
 
