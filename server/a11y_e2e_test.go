@@ -118,17 +118,7 @@ func appScreens(h *ringHub) []appScreen {
 				return pwatest.Click(ctx, "clock-settings")
 			}},
 		{name: "rounds-hold-ask", path: "/rounds?state=hold", ready: q("round-hold-ask"),
-			setup: func(ctx context.Context) error {
-				if err := pwatest.Poll(ctx, q("ringside-hold-"+mateo), 10*time.Second); err != nil {
-					return err
-				}
-				for _, id := range []string{"round-athlete-" + mateo, "round-activity-spar", "round-done"} {
-					if err := pwatest.Click(ctx, id); err != nil {
-						return err
-					}
-				}
-				return nil
-			}},
+			setup: func(ctx context.Context) error { return askSparHold(ctx, mateo) }},
 		{name: "rounds-incident", path: "/rounds?state=incident", ready: q("ringside-incident-panel") + ` && ` + q("ringside-incident-athlete-"+kofi) + `.getAttribute('aria-pressed') === 'true'`,
 			setup: func(ctx context.Context) error { return openIncidentFor(ctx, kofi) }},
 		{name: "jumps-typed", path: "/jumps?state=typed", ready: q("jump-rel-" + kofi),

@@ -115,6 +115,37 @@ func openIncidentFor(ctx context.Context, athlete string) error {
 	return fmt.Errorf("the incident panel did not keep %s picked", athlete)
 }
 
+// askSparHold picks athlete (who must be on hold), picks sparring and taps
+// "Round done" until the hold question opens. Each tap is checked by what
+// it should change, since a chip row re-rendering under the finger (the
+// standing arriving from the hub) can take a tap.
+func askSparHold(ctx context.Context, athlete string) error {
+	if err := pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector(%q)`, pwatest.Q("ringside-hold-"+athlete)), 10*time.Second); err != nil {
+		return err
+	}
+	pressed := func(id string) string {
+		return fmt.Sprintf(`document.querySelector('[data-testid=%q][aria-pressed="true"]')`, id)
+	}
+	ask := `document.querySelector('[data-testid="round-hold-ask"]')`
+	for try := 1; try <= 3; try++ {
+		err := pwatest.ClickUntil(ctx, "round-athlete-"+athlete, pressed("round-athlete-"+athlete), 3)
+		if err == nil {
+			err = pwatest.ClickUntil(ctx, "round-activity-spar", pressed("round-activity-spar"), 3)
+		}
+		if err == nil {
+			err = pwatest.ClickUntil(ctx, "round-done", ask+` || !`+pressed("round-athlete-"+athlete), 3)
+		}
+		var ok bool
+		if err == nil && pwatest.Eval(ctx, "!!"+ask, &ok) == nil && ok {
+			return nil
+		}
+		var seen string
+		pwatest.Eval(ctx, `JSON.stringify({ pressed: [...document.querySelectorAll('[aria-pressed="true"]')].map((e) => e.dataset.testid), address: document.querySelector('#screen').dataset.address })`, &seen)
+		fmt.Printf("hold question: try %d did not open (%v): %s\n", try, err, seen)
+	}
+	return fmt.Errorf("the hold question did not open for %s", athlete)
+}
+
 func attr(t testing.TB, ctx context.Context, testid, name string) string {
 	var s string
 	require.NoError(t, pwatest.Eval(ctx, fmt.Sprintf(`(document.querySelector(%q) || { getAttribute: () => '' }).getAttribute(%q) || ''`, pwatest.Q(testid), name), &s))
@@ -272,9 +303,7 @@ func TestRingsideHoldAndIncident(t *testing.T) {
 
 	// Sparring for Mateo: asked first; cancel writes nothing, confirm writes one.
 	before := len(h.live("round", mateo, day))
-	require.NoError(t, pwatest.Click(ctx, "round-athlete-"+mateo))
-	require.NoError(t, pwatest.Click(ctx, "round-activity-spar"))
-	require.NoError(t, pwatest.Click(ctx, "round-done"))
+	require.NoError(t, askSparHold(ctx, mateo))
 	require.NoError(t, pwatest.WaitText(ctx, "round-hold-ask", holdText))
 	require.NoError(t, pwatest.Click(ctx, "round-hold-cancel"))
 	n, err := pwatest.Waiting(ctx)
