@@ -109,13 +109,15 @@ func appScreens(h *ringHub) []appScreen {
 		// Ringside's other states: the clock running, its settings, the
 		// question before sparring an athlete on hold, the incident panel.
 		{name: "rounds-running", path: "/rounds?state=running", ready: `document.querySelector('[data-testid="clock"][data-running="true"]')`,
-			setup: func(ctx context.Context) error { return pwatest.Click(ctx, "clock-start") }},
+			setup: func(ctx context.Context) error {
+				return pwatest.ClickUntil(ctx, "clock-start", `document.querySelector('[data-testid="clock"][data-running="true"]')`, 3)
+			}},
 		{name: "rounds-settings", path: "/rounds?state=settings", ready: q("clock-settings-panel"),
 			setup: func(ctx context.Context) error {
 				if err := pwatest.Eval(ctx, `import('/js/ringside/clock.js').then((m) => { m.reset(); return true })`, nil); err != nil {
 					return err
 				}
-				return pwatest.Click(ctx, "clock-settings")
+				return pwatest.ClickUntil(ctx, "clock-settings", q("clock-settings-panel"), 3)
 			}},
 		{name: "rounds-hold-ask", path: "/rounds?state=hold", ready: q("round-hold-ask"),
 			setup: func(ctx context.Context) error { return askSparHold(ctx, mateo) }},
