@@ -24,7 +24,7 @@ func DecodePush(body []byte, req *PushRequest) bool {
 		case "epoch":
 			return once(&seen, 2) && str(&s, &req.Epoch)
 		case "waiting":
-			return once(&seen, 4) && integer(&s, &req.Waiting)
+			return once(&seen, 4) && integer(&s, &req.Waiting, strconv.IntSize)
 		case "mutations":
 			if !once(&seen, 8) {
 				return false
@@ -53,16 +53,22 @@ func once(seen *uint16, bit uint16) bool {
 	return true
 }
 
-// str, integer and uinteger read one value into a field.
+// str, boolean, integer and uinteger read one value into a field.
 func str(s *jscan.Scanner, dst *string) bool {
 	v, ok := s.String()
 	*dst = v
 	return ok
 }
 
-func integer(s *jscan.Scanner, dst *int) bool {
-	v, ok := s.Int(strconv.IntSize)
-	*dst = int(v)
+func boolean(s *jscan.Scanner, dst *bool) bool {
+	v, ok := s.Bool()
+	*dst = v
+	return ok
+}
+
+func integer[T int | int64](s *jscan.Scanner, dst *T, bits int) bool {
+	v, ok := s.Int(bits)
+	*dst = T(v)
 	return ok
 }
 
@@ -106,14 +112,9 @@ func decodeRecord(s *jscan.Scanner, r *Record) bool {
 		case "stamp":
 			return once(&seen, 64) && decodeStamp(s, &r.Stamp)
 		case "gen":
-			return once(&seen, 128) && integer(s, &r.Gen)
+			return once(&seen, 128) && integer(s, &r.Gen, strconv.IntSize)
 		case "deleted":
-			if !once(&seen, 256) {
-				return false
-			}
-			var ok bool
-			r.Deleted, ok = s.Bool()
-			return ok
+			return once(&seen, 256) && boolean(s, &r.Deleted)
 		case "body":
 			if !once(&seen, 512) {
 				return false
@@ -135,12 +136,7 @@ func decodeStamp(s *jscan.Scanner, h *HLC) bool {
 	return s.Object(func(k []byte) bool {
 		switch string(k) {
 		case "l":
-			if !once(&seen, 1) {
-				return false
-			}
-			var ok bool
-			h.L, ok = s.Int(64)
-			return ok
+			return once(&seen, 1) && integer(s, &h.L, 64)
 		case "c":
 			return once(&seen, 2) && uinteger(s, &h.C, 32)
 		}
