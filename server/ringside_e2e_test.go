@@ -91,26 +91,45 @@ func (h *ringHub) live(kind, athlete, day string) []devsync.Record {
 	return out
 }
 
+// pressed is a JavaScript expression, truthy while the toggle with this
+// data-testid is pressed.
+func pressed(testid string) string {
+	return fmt.Sprintf(`document.querySelector('[data-testid=%q][aria-pressed="true"]')`, testid)
+}
+
+// logTaps starts the page's record of where each tap landed (the listener
+// is added once per page; the record starts afresh on each call), for a
+// helper to print when a try did not take.
+func logTaps(ctx context.Context) {
+	pwatest.Eval(ctx, `(() => { window.__taps = []; if (!window.__tapsLogged) { window.__tapsLogged = true;
+		document.addEventListener('click', (e) => { const t = e.target.closest('[data-testid]'); window.__taps.push((t ? t.dataset.testid : e.target.tagName) + '@' + Math.round(e.clientX) + ',' + Math.round(e.clientY)); }, true); } return true })()`, nil)
+}
+
+// tapsSeen is what the page looked like to the taps: where they landed,
+// the toggles pressed, the scroll position and the screen's address.
+func tapsSeen(ctx context.Context) string {
+	var seen string
+	pwatest.Eval(ctx, `JSON.stringify({ taps: window.__taps, pressed: [...document.querySelectorAll('[aria-pressed="true"]')].map((e) => e.dataset.testid), scrollY, address: document.querySelector('#screen').dataset.address })`, &seen)
+	return seen
+}
+
 // openIncidentFor opens ringside's incident panel and picks the athlete.
 // The rounds screen re-renders as a round syncs or a dialog closes, and a
 // tap can land on a neighbour while the page shifts, as a finger would:
 // it taps until the panel is open with the athlete picked (three tries),
 // and prints the taps and page state of a try that did not take.
 func openIncidentFor(ctx context.Context, athlete string) error {
-	pwatest.Eval(ctx, `(() => { window.__taps = []; document.addEventListener('click', (e) => { const t = e.target.closest('[data-testid]'); window.__taps.push((t ? t.dataset.testid : e.target.tagName) + '@' + Math.round(e.clientX) + ',' + Math.round(e.clientY)); }, true); return true })()`, nil)
+	logTaps(ctx)
 	button := "ringside-incident-athlete-" + athlete
 	open := `document.querySelector('[data-testid="ringside-incident-panel"]')`
-	picked := fmt.Sprintf(`document.querySelector('[data-testid=%q][aria-pressed="true"]')`, button)
 	for try := 1; try <= 3; try++ {
 		if err := pwatest.ClickUntil(ctx, "ringside-incident", open, 20); err != nil {
 			return err
 		}
-		if err := pwatest.ClickUntil(ctx, button, picked, 3); err == nil {
+		if err := pwatest.ClickUntil(ctx, button, pressed(button), 3); err == nil {
 			return nil
 		}
-		var seen string
-		pwatest.Eval(ctx, `JSON.stringify({ taps: window.__taps, open: !!`+open+`, scrollY })`, &seen)
-		fmt.Printf("incident panel: try %d did not take: %s\n", try, seen)
+		fmt.Printf("incident panel: try %d did not take: %s\n", try, tapsSeen(ctx))
 	}
 	return fmt.Errorf("the incident panel did not keep %s picked", athlete)
 }
@@ -123,25 +142,22 @@ func askSparHold(ctx context.Context, athlete string) error {
 	if err := pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector(%q)`, pwatest.Q("ringside-hold-"+athlete)), 10*time.Second); err != nil {
 		return err
 	}
-	pressed := func(id string) string {
-		return fmt.Sprintf(`document.querySelector('[data-testid=%q][aria-pressed="true"]')`, id)
-	}
+	logTaps(ctx)
+	chip := "round-athlete-" + athlete
 	ask := `document.querySelector('[data-testid="round-hold-ask"]')`
 	for try := 1; try <= 3; try++ {
-		err := pwatest.ClickUntil(ctx, "round-athlete-"+athlete, pressed("round-athlete-"+athlete), 3)
+		err := pwatest.ClickUntil(ctx, chip, pressed(chip), 3)
 		if err == nil {
 			err = pwatest.ClickUntil(ctx, "round-activity-spar", pressed("round-activity-spar"), 3)
 		}
 		if err == nil {
-			err = pwatest.ClickUntil(ctx, "round-done", ask+` || !`+pressed("round-athlete-"+athlete), 3)
+			// Stop tapping if the chip was let go: the round would log without the question.
+			err = pwatest.ClickUntil(ctx, "round-done", ask+` || !`+pressed(chip), 3)
 		}
-		var ok bool
-		if err == nil && pwatest.Eval(ctx, "!!"+ask, &ok) == nil && ok {
+		if err == nil && pwatest.Poll(ctx, ask, 0) == nil {
 			return nil
 		}
-		var seen string
-		pwatest.Eval(ctx, `JSON.stringify({ pressed: [...document.querySelectorAll('[aria-pressed="true"]')].map((e) => e.dataset.testid), address: document.querySelector('#screen').dataset.address })`, &seen)
-		fmt.Printf("hold question: try %d did not open (%v): %s\n", try, err, seen)
+		fmt.Printf("hold question: try %d did not open (%v): %s\n", try, err, tapsSeen(ctx))
 	}
 	return fmt.Errorf("the hold question did not open for %s", athlete)
 }
@@ -320,7 +336,7 @@ func TestRingsideHoldAndIncident(t *testing.T) {
 	require.NoError(t, openIncidentFor(ctx, kofi))
 	// The rounds list re-renders as the round syncs: tap until the tap
 	// has taken (a tap can land on a neighbour while the page shifts).
-	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident-type-knockdown", `document.querySelector('[data-testid="ringside-incident-type-knockdown"][aria-pressed="true"]')`, 10))
+	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident-type-knockdown", pressed("ringside-incident-type-knockdown"), 10))
 	require.NoError(t, pwatest.Click(ctx, "ringside-incident-next"))
 	require.NoError(t, pwatest.WaitText(ctx, "ringside-incident-summary", "Kofi Brandt"))
 	n, err = pwatest.Waiting(ctx)
