@@ -250,7 +250,9 @@ func toLayout1(t *testing.T, path string) {
 		recs := tx.Bucket(storage.BucketRecords)
 		type kv struct{ k, v []byte }
 		var all []kv
-		recs.ForEach(func(k, v []byte) error { all = append(all, kv{bytes.Clone(k), bytes.Clone(v)}); return nil })
+		if err := recs.ForEach(func(k, v []byte) error { all = append(all, kv{bytes.Clone(k), bytes.Clone(v)}); return nil }); err != nil {
+			return err
+		}
 		for _, e := range all {
 			if err := seqs.Put(e.k, e.v[:8]); err != nil {
 				return err
