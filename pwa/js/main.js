@@ -84,18 +84,20 @@ function StatusBar() {
   useEffect(() => onStatus(setS), []);
   useEffect(() => { const fn = (x) => setU(x); sw.subs.add(fn); fn({ waiting: sw.waiting, build: sw.build }); return () => sw.subs.delete(fn); }, []);
   useEffect(() => { const t = setInterval(() => tick((x) => x + 1), 20000); return () => clearInterval(t); }, []);
-  if (!s) return null;
+  // The bar holds its row from the first frame, so the screen below does
+  // not jump as the first status arrives.
+  if (!s) return html`<div class="status" data-testid="status" role="status" aria-live="polite"></div>`;
   const secure = window.isSecureContext;
   return html`<div class="status" data-testid="status" role="status" aria-live="polite"
       data-waiting=${s.waiting} data-rejected=${s.rejected} data-reachable=${String(s.reachable)} data-syncing=${String(s.syncing)} data-last-sync=${s.lastSync}>
     ${!secure && html`<span class="pill warn" data-testid="status-insecure">Open the https address / install the certificate — on this address the app cannot work offline.</span>`}
     ${navigator.standalone === false && html`<span class="pill warn" data-testid="status-install">On iPhone, install first: Share → Add to Home Screen. Entries made in a Safari tab stay in that tab, apart from the installed app.</span>`}
     ${u.waiting && html`<button class="pill warn" type="button" data-testid="status-update" onClick=${applyUpdate}>Update ready — tap to reload</button>`}
-    ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync</span>`}
+    ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync${s.syncing && html`<span data-testid="status-syncing"> · syncing</span>`}</span>`}
     ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this phone</span>`}
-    ${s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…${s.sent ? ` ${s.sent} sent` : ''}${s.received ? ` ${s.received} received` : ''}</span>`}
+    ${s.waiting === 0 && s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…${s.received ? ` ${s.received} received` : ''}</span>`}
     ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
-    ${s.waiting === 0 && !s.lastSync && s.reachable === null && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
+    ${s.waiting === 0 && !s.lastSync && s.reachable === null && !s.syncing && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
     ${s.reachable === true && s.error && html`<span class="pill warn" data-testid="status-error">Sync stopped: ${s.error}</span>`}
     ${Math.abs(s.offset || 0) > 120000 && html`<span class="pill warn" data-testid="status-clock">This phone's clock is ${clockWords(s.offset)} — entries use the hub's time; please correct the phone's date and time</span>`}
     ${s.rejected > 0 && html`<button class="pill warn" type="button" data-testid="status-rejected" onClick=${() => navigate('/settings#rejected')}>${plural(s.rejected, 'entry', 'entries')} rejected — tap to see why</button>`}

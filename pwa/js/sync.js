@@ -176,7 +176,6 @@ export const status = {
   error: '',
   clockFixed: false,
   received: 0, // records taken in during the running sync (progress)
-  sent: 0, // mutations acknowledged during the running sync
 };
 const subs = new Set();
 export function onStatus(fn) {
@@ -212,7 +211,6 @@ export async function requestSync(reason) {
   running = true;
   status.syncing = true;
   status.received = 0;
-  status.sent = 0;
   publish();
   try {
     do {
@@ -313,10 +311,8 @@ export function startSync(onData) {
     onChange((m) => {
       if (m.type === 'changed' && m.local) { syncSoon(); registerBackgroundSync(); }
       if (m.paired && ws) { try { ws.close(); } catch (_) { /* reconnects with the new pass */ } }
-      if (status.syncing && (m.pulled || m.acked)) {
-        status.received += m.pulled || 0;
-        status.sent += m.acked || 0;
-      }
+      // The waiting count shows a push's progress; received shows a pull's.
+      if (status.syncing && m.pulled) status.received += m.pulled;
       if (onData && (m.type === 'changed' || m.type === 'synced')) onData(m);
       refreshCounts();
     });
