@@ -121,7 +121,7 @@ func appScreens(h *ringHub) []appScreen {
 			}},
 		{name: "rounds-hold-ask", path: "/rounds?state=hold", ready: q("round-hold-ask"),
 			setup: func(ctx context.Context) error { return askSparHold(ctx, mateo) }},
-		{name: "rounds-incident", path: "/rounds?state=incident", ready: q("ringside-incident-panel") + ` && ` + pressed("ringside-incident-athlete-"+kofi),
+		{name: "rounds-incident", path: "/rounds?state=incident", ready: q("ringside-incident-panel") + ` && ` + pwatest.Pressed("ringside-incident-athlete-"+kofi),
 			setup: func(ctx context.Context) error { return openIncidentFor(ctx, kofi) }},
 		{name: "jumps-typed", path: "/jumps?state=typed", ready: q("jump-rel-" + kofi),
 			setup: func(ctx context.Context) error {

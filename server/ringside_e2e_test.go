@@ -91,12 +91,6 @@ func (h *ringHub) live(kind, athlete, day string) []devsync.Record {
 	return out
 }
 
-// pressed is a JavaScript expression, truthy while the toggle with this
-// data-testid is pressed.
-func pressed(testid string) string {
-	return fmt.Sprintf(`document.querySelector('[data-testid=%q][aria-pressed="true"]')`, testid)
-}
-
 // logTaps starts the page's record of where each tap landed (the listener
 // is added once per page; the record starts afresh on each call), for a
 // helper to print when a try did not take.
@@ -126,7 +120,7 @@ func openIncidentFor(ctx context.Context, athlete string) error {
 		if err := pwatest.ClickUntil(ctx, "ringside-incident", open, 20); err != nil {
 			return err
 		}
-		if err := pwatest.ClickUntil(ctx, button, pressed(button), 3); err == nil {
+		if err := pwatest.ClickUntil(ctx, button, pwatest.Pressed(button), 3); err == nil {
 			return nil
 		}
 		fmt.Printf("incident panel: try %d did not take: %s\n", try, tapsSeen(ctx))
@@ -146,13 +140,13 @@ func askSparHold(ctx context.Context, athlete string) error {
 	chip := "round-athlete-" + athlete
 	ask := `document.querySelector('[data-testid="round-hold-ask"]')`
 	for try := 1; try <= 3; try++ {
-		err := pwatest.ClickUntil(ctx, chip, pressed(chip), 3)
+		err := pwatest.ClickUntil(ctx, chip, pwatest.Pressed(chip), 3)
 		if err == nil {
-			err = pwatest.ClickUntil(ctx, "round-activity-spar", pressed("round-activity-spar"), 3)
+			err = pwatest.ClickUntil(ctx, "round-activity-spar", pwatest.Pressed("round-activity-spar"), 3)
 		}
 		if err == nil {
 			// Stop tapping if the chip was let go: the round would log without the question.
-			err = pwatest.ClickUntil(ctx, "round-done", ask+` || !`+pressed(chip), 3)
+			err = pwatest.ClickUntil(ctx, "round-done", ask+` || !`+pwatest.Pressed(chip), 3)
 		}
 		if err == nil && pwatest.Poll(ctx, ask, 0) == nil {
 			return nil
@@ -336,7 +330,7 @@ func TestRingsideHoldAndIncident(t *testing.T) {
 	require.NoError(t, openIncidentFor(ctx, kofi))
 	// The rounds list re-renders as the round syncs: tap until the tap
 	// has taken (a tap can land on a neighbour while the page shifts).
-	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident-type-knockdown", pressed("ringside-incident-type-knockdown"), 10))
+	require.NoError(t, pwatest.ClickUntil(ctx, "ringside-incident-type-knockdown", pwatest.Pressed("ringside-incident-type-knockdown"), 10))
 	require.NoError(t, pwatest.Click(ctx, "ringside-incident-next"))
 	require.NoError(t, pwatest.WaitText(ctx, "ringside-incident-summary", "Kofi Brandt"))
 	n, err = pwatest.Waiting(ctx)

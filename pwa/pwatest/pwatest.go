@@ -217,6 +217,12 @@ func Poll(ctx context.Context, expr string, timeout time.Duration) error {
 // Q is a CSS selector for a data-testid.
 func Q(testid string) string { return fmt.Sprintf(`[data-testid=%q]`, testid) }
 
+// Pressed is a JavaScript expression, truthy while the toggle with this
+// data-testid is pressed.
+func Pressed(testid string) string {
+	return fmt.Sprintf(`document.querySelector('%s[aria-pressed="true"]')`, Q(testid))
+}
+
 // Open loads the app at url (e.g. "http://127.0.0.1:8080/") and waits
 // until it has rendered.
 func Open(ctx context.Context, url string) error {
@@ -417,26 +423,45 @@ func LogRound(ctx context.Context, athleteNames []string, activity string, inten
 	if err := Route(ctx, "/rounds"); err != nil {
 		return err
 	}
+	// Each tap is checked by what it changes: a tap can land on a
+	// neighbour while the screen settles, as a finger's can. Every chip
+	// ends pressed exactly when its athlete is named.
+	want := map[string]bool{}
 	for _, name := range athleteNames {
 		id, err := athleteID(ctx, "round-athlete-", name)
 		if err != nil {
 			return err
 		}
-		var pressed string
-		if err := Eval(ctx, fmt.Sprintf(`document.querySelector(%q).getAttribute('aria-pressed')`, Q("round-athlete-"+id)), &pressed); err != nil {
+		want["round-athlete-"+id] = true
+	}
+	var chips []string
+	if err := Eval(ctx, `[...document.querySelectorAll('[data-testid^="round-athlete-"]')].map((e) => e.dataset.testid)`, &chips); err != nil {
+		return err
+	}
+	for _, chip := range chips {
+		cond := Pressed(chip)
+		if !want[chip] {
+			cond = "!" + cond
+		}
+		if err := ClickUntil(ctx, chip, cond, 3); err != nil {
 			return err
 		}
-		if pressed != "true" {
-			if err := Click(ctx, "round-athlete-"+id); err != nil {
-				return err
-			}
+	}
+	var picked []string
+	if err := Eval(ctx, `[...document.querySelectorAll('[data-testid^="round-athlete-"][aria-pressed="true"]')].map((e) => e.dataset.testid)`, &picked); err != nil {
+		return err
+	}
+	ok := len(picked) == len(want)
+	for _, p := range picked {
+		ok = ok && want[p]
+	}
+	if !ok {
+		return fmt.Errorf("round for %v: the chips pressed are %v", athleteNames, picked)
+	}
+	for _, choice := range []string{"round-activity-" + activity, fmt.Sprintf("round-intensity-%d", intensity)} {
+		if err := ClickUntil(ctx, choice, Pressed(choice), 3); err != nil {
+			return err
 		}
-	}
-	if err := Click(ctx, "round-activity-"+activity); err != nil {
-		return err
-	}
-	if err := Click(ctx, fmt.Sprintf("round-intensity-%d", intensity)); err != nil {
-		return err
 	}
 	return SaveAndWait(ctx, "round-done")
 }
