@@ -4,7 +4,7 @@
 // every control is at least 44×44 CSS px (WCAG 2.2, 2.5.8 target size
 // minimum is 24 px; 2.5.5 enhanced is 44 px, which we hold to); axe-core
 // finds no serious or critical violation, light and dark. Screenshots go
-// to testdata/screenshots.
+// to a temporary folder, or to -screenshots DIR when asked.
 //
 // axe-core is not part of the app: the test fetches it from the npm
 // registry with npm into a temp dir. Without npm (or the registry) the
@@ -162,8 +162,7 @@ func TestA11yScreensFitAPhoneAndPassAxe(t *testing.T) {
 	require.NoError(t, pwatest.Eval(ctx, `axe.version`, &ver))
 	require.Equal(t, axeVersion, ver)
 
-	dir := filepath.Join("..", "testdata", "screenshots")
-	require.NoError(t, os.MkdirAll(dir, 0o755))
+	dir := pwatest.ShotDir(t)
 	sizes := []struct{ w, h int64 }{{360, 740}, {1280, 800}}
 	for _, scheme := range []string{"light", "dark"} {
 		_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}}})

@@ -538,13 +538,12 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 // screen scrolls sideways, every control is at least 44×44 CSS px
 // (WCAG 2.2 target size) and axe-core finds nothing serious or critical;
 // screenshots of each screen at 360×740 and
-// 1280×800, light and dark, go to testdata/screenshots.
+// 1280×800, light and dark, go to a temporary folder (or -screenshots DIR).
 func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 	h := startCoachHub(t)
 	ids := h.ids()
 	ctx := coachBrowser(t, h, "/review?day="+coachDay)
-	dir := filepath.Join("..", "testdata", "screenshots")
-	require.NoError(t, os.MkdirAll(dir, 0o755))
+	dir := pwatest.ShotDir(t)
 	// axe-core (the accessibility rules engine, run as in a11y_e2e_test.go).
 	require.NoError(t, pwatest.Eval(ctx, "(() => { "+axeSource(t)+"\n; return typeof axe === 'object' })()", nil))
 	screens := []struct{ name, path, ready, more string }{
@@ -633,7 +632,7 @@ func TestCoachWallSheetPrintsOnOnePage(t *testing.T) {
 	t.Logf("printed sheet height %.0f px of 1047", tall)
 	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100))
 	require.NoError(t, err)
-	require.NoError(t, os.WriteFile(filepath.Join("..", "testdata", "screenshots", "coach-sheet-print-A4.png"), png, 0o644))
+	require.NoError(t, os.WriteFile(filepath.Join(pwatest.ShotDir(t), "coach-sheet-print-A4.png"), png, 0o644))
 	for _, paper := range []struct {
 		name string
 		w, h float64 // inches

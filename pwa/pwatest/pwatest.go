@@ -10,6 +10,7 @@ package pwatest
 import (
 	"context"
 	"encoding/json"
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -21,6 +22,30 @@ import (
 	"github.com/chromedp/cdproto/runtime"
 	"github.com/chromedp/chromedp"
 )
+
+// screenshots is where browser tests write their pictures when asked
+// (go test ./server -screenshots ../testdata/screenshots refreshes the
+// committed set deliberately); by default they go to a temporary folder,
+// so a test run never rewrites tracked files.
+var screenshots = flag.String("screenshots", "", "folder for the browser tests' screenshots (default: a temporary folder)")
+
+// ShotDir is the folder a test writes its screenshots to: the
+// -screenshots folder (or $CORNERBOOK_SCREENSHOTS) when given, else a
+// temporary folder removed after the test.
+func ShotDir(t testing.TB) string {
+	t.Helper()
+	dir := *screenshots
+	if dir == "" {
+		dir = os.Getenv("CORNERBOOK_SCREENSHOTS")
+	}
+	if dir == "" {
+		return t.TempDir()
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatalf("screenshots folder: %v", err)
+	}
+	return dir
+}
 
 // DefaultExecPath is where Debian's chromium package installs the browser.
 const DefaultExecPath = "/usr/bin/chromium"
