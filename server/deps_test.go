@@ -16,7 +16,7 @@ func TestDependencyDirection(t *testing.T) {
 		t.Fatalf("go list: %v", err)
 	}
 	pure := map[string]bool{"cornerbook/server/records": true, "cornerbook/server/flags": true,
-		"cornerbook/server/plan": true, "cornerbook/server/series": true}
+		"cornerbook/server/plan": true, "cornerbook/server/series": true, "cornerbook/server/fitness": true}
 	for _, line := range strings.Split(strings.TrimSpace(string(out)), "\n") {
 		f := strings.Fields(line)
 		pkg, imports := f[0], f[1:]
