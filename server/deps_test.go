@@ -16,7 +16,8 @@ func TestDependencyDirection(t *testing.T) {
 		t.Fatalf("go list: %v", err)
 	}
 	pure := map[string]bool{"cornerbook/server/records": true, "cornerbook/server/flags": true,
-		"cornerbook/server/plan": true, "cornerbook/server/series": true, "cornerbook/server/fitness": true}
+		"cornerbook/server/plan": true, "cornerbook/server/series": true, "cornerbook/server/fitness": true,
+		"cornerbook/server/fightweek": true, "cornerbook/server/medical": true}
 	for _, line := range strings.Split(strings.TrimSpace(string(out)), "\n") {
 		f := strings.Fields(line)
 		pkg, imports := f[0], f[1:]

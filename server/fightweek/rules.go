@@ -1,0 +1,222 @@
+// Package fightweek computes a fighter's last days before the bout: the
+// weigh-in rule sets a coach picks per bout (kept as data, each with its
+// source and how sure that source is), the morning mass a week before the
+// official weigh-in, the acute loss to the official mass, the regain from
+// it to the fight-day mass, the hours from the official weigh-in to the
+// bout in zoned times, and each check weight and fight-day weigh-in
+// against its cap.
+//
+// The package is pure: no I/O and no clock; records and the bout are
+// passed in. It shows numbers and never prescribes a cut: every figure it
+// gives is a prompt for the coach's judgement, the medical team's plan and
+// the sanctioning body's rules (REFERENCES.md §6.6).
+package fightweek
+
+import (
+	"fmt"
+	"math"
+	"strings"
+)
+
+// Rules is a bout's weigh-in rules (the bout's `rules` field): the check
+// weights before the official weigh-in, and the cap of a second weigh-in
+// on fight day.
+type Rules struct {
+	CheckWeights []CheckWeight `json:"check_weights,omitempty"`
+	FightDay     *FightDayCap  `json:"fight_day,omitempty"`
+	// Preset is the id of the preset the rules came from; empty for a
+	// custom set (or a preset the coach then edited).
+	Preset string `json:"preset,omitempty"`
+}
+
+// CheckWeight is one check weight: so many days before the official
+// weigh-in, at most so many percent over the division limit.
+type CheckWeight struct {
+	DaysBefore   int     `json:"days_before"`
+	OverLimitPct float64 `json:"over_limit_pct"`
+}
+
+// FightDayCap is the cap of a weigh-in on the day of the bout: either so
+// many pounds over the division limit or so many percent over the official
+// weigh-in mass (exactly one is set).
+type FightDayCap struct {
+	OverLimitLb     *float64 `json:"over_limit_lb,omitempty"`
+	OverOfficialPct *float64 `json:"over_official_pct,omitempty"`
+}
+
+// How sure a preset's source is, after the tags of REFERENCES.md.
+const (
+	SureVerified  = "verified"  // read in the rule or paper itself [V]
+	SureSecondary = "secondary" // read only in a secondary or news copy [V2]
+)
+
+// SureWords says in a coach's words how sure a source is.
+func SureWords(tag string) string {
+	switch tag {
+	case SureVerified:
+		return "read in the published rule; its current version may differ"
+	case SureSecondary:
+		return "read only in a secondary copy of the rule; check it before relying on it"
+	}
+	return "source not checked"
+}
+
+// CautionRules goes with every preset: rules change and bodies differ.
+const CautionRules = "Check the sanctioning body's current rules for this bout before relying on these numbers; " +
+	"bodies change their rules and a commission may add its own."
+
+// Preset is a named set of weigh-in rules a coach can pick for a bout.
+type Preset struct {
+	ID   string `json:"id"`
+	Name string `json:"name"` // in a coach's words
+	// WeighInType is the weigh-in the scheme assumes: day_before or same_day.
+	WeighInType string `json:"weigh_in_type"`
+	Rules       Rules  `json:"rules"`
+	Summary     string `json:"summary"` // the rules in words
+	Source      string `json:"source"`
+	Sure        string `json:"sure"`
+	Caution     string `json:"caution"`
+}
+
+func pct(v float64) *float64 { return &v }
+
+// Presets are the weigh-in schemes of REFERENCES.md §14.1 and the amateur
+// same-day weigh-in. They are named by what they ask, not by the body that
+// asks it, since the coach picks the rule that the bout's contract names.
+var Presets = []Preset{
+	{
+		ID: "check_weights_30_14_7", Name: "Check weights at 30, 14 and 7 days; fight day ≤ 10 % over the weigh-in mass",
+		WeighInType: "day_before",
+		Rules: Rules{Preset: "check_weights_30_14_7", CheckWeights: []CheckWeight{
+			{DaysBefore: 30, OverLimitPct: 10}, {DaysBefore: 14, OverLimitPct: 5}, {DaysBefore: 7, OverLimitPct: 3}},
+			FightDay: &FightDayCap{OverOfficialPct: pct(10)}},
+		Source: "A professional body's check-weight programme announced in 2019 (REFERENCES §14.1); " +
+			"the fight-day cap is 10 % over the official weigh-in mass.",
+		Sure: SureVerified,
+	},
+	{
+		ID: "fight_day_10lb", Name: "Second weigh-in on fight day, at most 10 lb over the limit",
+		WeighInType: "day_before",
+		Rules:       Rules{Preset: "fight_day_10lb", FightDay: &FightDayCap{OverLimitLb: pct(10)}},
+		Source:      "A professional body's rule: a second weigh-in 08:00–10:00 on the day of the bout (REFERENCES §14.1, §6.3).",
+		Sure:        SureSecondary,
+	},
+	{
+		ID: "fight_night_10pct", Name: "Fight-night weight check, gain over 10 % of the weigh-in mass noted",
+		WeighInType: "day_before",
+		Rules:       Rules{Preset: "fight_night_10pct", FightDay: &FightDayCap{OverOfficialPct: pct(10)}},
+		Source: "A state commission's plan of 2017: a fight-night weight check; a gain above 10 % may lead to a " +
+			"recommendation to move up a class; IV rehydration banned since 2016 (REFERENCES §14.1).",
+		Sure: SureVerified,
+	},
+	{
+		ID: "amateur_same_day", Name: "Amateur: weigh-in on the day of the bout",
+		WeighInType: "same_day",
+		Rules:       Rules{Preset: "amateur_same_day"},
+		Source:      "Amateur boxing weighs in on the day of the bout (REFERENCES §14.1; Reale et al. 2017: 3–24 h before competition).",
+		Sure:        SureVerified,
+	},
+}
+
+func init() {
+	for i := range Presets {
+		Presets[i].Summary = Presets[i].Rules.Words()
+		Presets[i].Caution = CautionRules
+	}
+}
+
+// PresetByID returns the preset with that id.
+func PresetByID(id string) (Preset, bool) {
+	for _, p := range Presets {
+		if p.ID == id {
+			return p, true
+		}
+	}
+	return Preset{}, false
+}
+
+// Words states a rule set in a coach's words.
+func (r Rules) Words() string {
+	var parts []string
+	for _, c := range r.CheckWeights {
+		parts = append(parts, fmt.Sprintf("%d days out ≤ %s %% over the limit", c.DaysBefore, num(c.OverLimitPct)))
+	}
+	if f := r.FightDay; f != nil {
+		switch {
+		case f.OverLimitLb != nil:
+			parts = append(parts, fmt.Sprintf("fight day ≤ %s lb over the limit", num(*f.OverLimitLb)))
+		case f.OverOfficialPct != nil:
+			parts = append(parts, fmt.Sprintf("fight day ≤ %s %% over the official weigh-in mass", num(*f.OverOfficialPct)))
+		}
+	}
+	if len(parts) == 0 {
+		return "Official weigh-in only."
+	}
+	s := strings.Join(parts, "; ")
+	return strings.ToUpper(s[:1]) + s[1:] + "."
+}
+
+// num prints a rule's number without trailing zeros (10, 2.5).
+func num(v float64) string {
+	if v == math.Trunc(v) {
+		return fmt.Sprintf("%.0f", v)
+	}
+	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.2f", v), "0"), ".")
+}
+
+// Problem is a rule set's field that cannot be used, with the reason.
+type Problem struct {
+	Field  string // JSON path under the bout's rules, e.g. "check_weights[1].over_limit_pct"
+	Reason string
+}
+
+// Check lists what is wrong with a custom rule set, in words. Bounds are
+// common practice, no source: no scheme asks a check weight more than 60
+// days out or allows more than 25 % over the limit; a fight-day cap of
+// more than 30 lb or 25 % would not be a cap.
+func (r Rules) Check() []Problem {
+	var out []Problem
+	seen := map[int]bool{}
+	for i, c := range r.CheckWeights {
+		f := fmt.Sprintf("check_weights[%d]", i)
+		if c.DaysBefore < 1 || c.DaysBefore > 60 {
+			out = append(out, Problem{f + ".days_before", fmt.Sprintf("days before the weigh-in must be 1–60, not %d", c.DaysBefore)})
+		} else if seen[c.DaysBefore] {
+			out = append(out, Problem{f + ".days_before", fmt.Sprintf("a check weight %d days out is already set", c.DaysBefore)})
+		}
+		seen[c.DaysBefore] = true
+		if !(c.OverLimitPct >= 0 && c.OverLimitPct <= 25) {
+			out = append(out, Problem{f + ".over_limit_pct", fmt.Sprintf("percent over the limit must be 0–25, not %s", num(c.OverLimitPct))})
+		}
+	}
+	if f := r.FightDay; f != nil {
+		switch {
+		case f.OverLimitLb != nil && f.OverOfficialPct != nil:
+			out = append(out, Problem{"fight_day", "give either pounds over the limit or percent over the weigh-in mass, not both"})
+		case f.OverLimitLb != nil:
+			if v := *f.OverLimitLb; !(v >= 0 && v <= 30) {
+				out = append(out, Problem{"fight_day.over_limit_lb", fmt.Sprintf("pounds over the limit must be 0–30, not %s", num(v))})
+			}
+		case f.OverOfficialPct != nil:
+			if v := *f.OverOfficialPct; !(v >= 0 && v <= 25) {
+				out = append(out, Problem{"fight_day.over_official_pct", fmt.Sprintf("percent over the weigh-in mass must be 0–25, not %s", num(v))})
+			}
+		default:
+			out = append(out, Problem{"fight_day", "give pounds over the limit or percent over the weigh-in mass"})
+		}
+	}
+	return out
+}
+
+// Cautions go with every fight-week number and flag (REFERENCES.md §6.6;
+// the wording is Cornerbook's). They defer to the medical team and the
+// sanctioning body and never suggest losing faster.
+var Cautions = []string{
+	"These numbers are a prompt for the coach's judgement, never a reason to cut faster. " +
+		"Any acute weight loss is planned and supervised by a sports dietitian and a physician, " +
+		"within the sanctioning body's rules and local law.",
+	"Rapid weight loss is common in combat sports and has killed athletes; " +
+		"a loss of about 5 % of body mass within a week has raised markers of kidney stress in most studies reviewed.",
+	"Never use diuretics, laxatives, vomiting, saunas or sweat suits, or fluid restriction in the heat. " +
+		"No dehydration-based cutting for minors.",
+}
