@@ -481,22 +481,11 @@ func addDays(day string, n int) (string, error) {
 	return t.AddDate(0, 0, n).Format("2006-01-02"), nil
 }
 
-// sortFlags orders a camp's flags most serious first (alert, watch, info,
-// then "not enough data yet"), keeping each athlete's own order within a level.
+// sortFlags orders a camp's flags as flags.Rank does: stand-downs in
+// force first, then alert, watch, info and "not enough data yet", keeping
+// each athlete's own order within a rank.
 func sortFlags(fs []flags.Flag) {
-	rank := func(f *flags.Flag) int {
-		if f.Status == flags.StatusForming {
-			return 3
-		}
-		switch f.Level {
-		case flags.LevelAlert:
-			return 0
-		case flags.LevelWatch:
-			return 1
-		}
-		return 2
-	}
-	sort.SliceStable(fs, func(i, j int) bool { return rank(&fs[i]) < rank(&fs[j]) })
+	sort.SliceStable(fs, func(i, j int) bool { return flags.Rank(&fs[i]) < flags.Rank(&fs[j]) })
 }
 
 // Flags returns the flags of one day (all athletes when athlete is ""),

@@ -13,6 +13,7 @@ import (
 
 	"cornerbook/server"
 	"cornerbook/server/dataio"
+	"cornerbook/server/flags"
 	"cornerbook/server/records"
 	"cornerbook/storage"
 )
@@ -121,14 +122,61 @@ func runFlags(args []string, stdout io.Writer) error {
 		}
 		return enc.Encode(fl)
 	}
-	names := srv.AthleteNames()
-	for _, f := range fl {
-		fmt.Fprintf(stdout, "%-6s %-16s %-18s %s\n", strings.ToUpper(f.Level), names[f.Athlete], f.Rule, f.Reason)
-	}
-	if len(fl) == 0 {
-		fmt.Fprintln(stdout, "no flags for this day")
-	}
+	writeFlagsText(stdout, fl, srv.AthleteNames())
 	return nil
+}
+
+// levelWords names a flag's standing as the screens do: a stand-down in
+// force first, then the levels in a coach's words.
+func levelWords(f *flags.Flag) string {
+	switch {
+	case f.Restriction != nil:
+		return "Stand-down"
+	case f.Status == flags.StatusForming:
+		return "Not enough data yet"
+	case f.Level == flags.LevelAlert:
+		return "Act today"
+	case f.Level == flags.LevelWatch:
+		return "Keep an eye on"
+	}
+	return "Worth knowing"
+}
+
+// writeFlagsText writes one day's flags in words: per flag its standing,
+// the athlete's name, the title and the reason; a stand-down's rule and
+// end; a decision with who recorded it. Ids stay in --json.
+func writeFlagsText(w io.Writer, fl []flags.Flag, names map[string]string) {
+	if len(fl) == 0 {
+		fmt.Fprintln(w, "No flags for this day.")
+		return
+	}
+	for i := range fl {
+		f := &fl[i]
+		name := names[f.Athlete]
+		if name == "" {
+			name = "(athlete without a name)"
+		}
+		fmt.Fprintf(w, "%-19s  %s — %s\n", levelWords(f), name, f.Title)
+		fmt.Fprintf(w, "%-19s  %s\n", "", f.Reason)
+		if r := f.Restriction; r != nil {
+			end := "no earliest end: only a clearance ends it"
+			if r.EarliestEnd != "" {
+				end = "not before " + r.EarliestEnd
+			}
+			fmt.Fprintf(w, "%-19s  Since %s. %s; %s; until %s.\n", "", r.StartedDay, r.Rule, end, r.Until)
+		}
+		if d := f.Decision; d != nil {
+			who := ""
+			if d.By != "" {
+				who = " (" + d.By + ")"
+			}
+			what := "Decision"
+			if d.Scope == flags.ScopeDay {
+				what = "Decision for the whole day"
+			}
+			fmt.Fprintf(w, "%-19s  %s%s: %s\n", "", what, who, d.Note)
+		}
+	}
 }
 
 func runBackup(args []string, stdout io.Writer) error {

@@ -19,6 +19,7 @@ const (
 	kindIncident  = "incident"
 	kindClearance = "clearance"
 	kindDecision  = "decision"
+	kindNote      = "note"
 )
 
 // CheckinBody is the part of a check-in the rules read.

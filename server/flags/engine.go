@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"math"
 	"sort"
+	"strconv"
+	"strings"
 	"time"
 
 	"cornerbook/server/flags/day"
@@ -53,6 +55,23 @@ type incident struct {
 	kind string
 }
 
+// sparRound is a sparring round anywhere in the history given (stand-downs
+// can outlast the indexed window).
+type sparRound struct {
+	id  string
+	at  string
+	day day.Number
+}
+
+// decision is a decision record as the engine reads it.
+type decision struct {
+	id   string
+	at   string
+	day  day.Number
+	body decisionBody
+	rec  *devsync.Record
+}
+
 type recent struct {
 	checkins []checkin
 	jumps    []jump
@@ -72,7 +91,8 @@ type engine struct {
 	incidents  []incident
 	clearances map[string]string // incident id → clearance record id (on or before today)
 	clearedBy  map[string]string
-	decisions  []devsync.Record // today's decisions
+	decisions  []decision  // every decision up to today (today's acknowledge flags; spar_on_hold ones answer rounds)
+	sparLog    []sparRound // every sparring round up to today
 
 	bout  *plan
 	out   []Flag
@@ -99,7 +119,7 @@ func newEngine(in *Input) (*engine, bool) {
 			continue
 		}
 		d, ok := dayOf(r.Day)
-		if ok && d < e.first && d >= today-maxHistoryDays && r.Kind != kindAthlete && r.Kind != kindBout && r.Kind != kindSettings {
+		if ok && d < e.first && d >= today-maxHistoryDays && countsAsActivity(r.Kind) {
 			e.first = d
 		}
 	}
@@ -134,10 +154,13 @@ func newEngine(in *Input) (*engine, bool) {
 				}
 			}
 		case kindRound:
-			if age < recentDays {
-				var b RoundBody
-				if json.Unmarshal(r.Body, &b) == nil {
+			var b RoundBody
+			if json.Unmarshal(r.Body, &b) == nil {
+				if age < recentDays {
 					e.recent[age].rounds = append(e.recent[age].rounds, round{r.ID, r.At, b})
+				}
+				if b.Activity == "spar" {
+					e.sparLog = append(e.sparLog, sparRound{r.ID, r.At, d})
 				}
 			}
 		case kindSession:
@@ -173,13 +196,21 @@ func newEngine(in *Input) (*engine, bool) {
 				e.clearedBy[b.Incident] = b.By
 			}
 		case kindDecision:
-			if d == today {
-				e.decisions = append(e.decisions, *r)
+			var b decisionBody
+			if json.Unmarshal(r.Body, &b) == nil {
+				e.decisions = append(e.decisions, decision{r.ID, r.At, d, b, r})
 			}
 		}
 	}
 	sort.Slice(e.sessions, func(i, j int) bool { return e.sessions[i].day < e.sessions[j].day })
 	sort.Slice(e.incidents, func(i, j int) bool { return e.incidents[i].day < e.incidents[j].day })
+	sort.Slice(e.sparLog, func(i, j int) bool {
+		a, b := &e.sparLog[i], &e.sparLog[j]
+		if a.day != b.day {
+			return a.day < b.day
+		}
+		return before(a.at, b.at)
+	})
 	if in.Bout != nil && !in.Bout.Deleted {
 		e.bout = parsePlan(in.Bout)
 	}
@@ -298,8 +329,8 @@ func (e *engine) add(f Flag) {
 	e.out = append(e.out, f)
 }
 
-func (e *engine) forming(rule, reason string, inputs []string) {
-	e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Reason: reason, Inputs: inputs})
+func (e *engine) forming(rule, title, reason string, inputs []string) {
+	e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: title, Reason: reason, Inputs: inputs})
 }
 
 // has reports whether a flag of rule at level was raised today.
@@ -312,28 +343,77 @@ func (e *engine) has(rule, level string) bool {
 	return false
 }
 
-// attachDecisions marks flags acknowledged by a decision recorded the same
-// day for the same rule; with several, the latest version stamp wins.
-func (e *engine) attachDecisions() {
-	if len(e.decisions) == 0 {
-		return
+// countsAsActivity reports whether a record of kind marks the athlete as
+// active ("first record"): every kind but athlete, settings, bout and note.
+func countsAsActivity(kind string) bool {
+	return kind != kindAthlete && kind != kindSettings && kind != kindBout && kind != kindNote
+}
+
+// newer reports whether decision a supersedes b: the later version stamp,
+// then the larger id.
+func newer(a, b *decision) bool {
+	if c := a.rec.Stamp.Compare(b.rec.Stamp); c != 0 {
+		return c > 0
 	}
-	latest := map[string]*devsync.Record{}
-	refs := map[string]*DecisionRef{}
+	return a.id > b.id
+}
+
+func (d *decision) ref(scope string) *DecisionRef {
+	return &DecisionRef{ID: d.id, Note: d.body.Note, By: d.body.By, At: d.at, Scope: scope}
+}
+
+// todaysDecisions returns today's latest decision per rule and the latest
+// whole-day decision (a decision without a rule).
+func (e *engine) todaysDecisions() (byRule map[string]*decision, whole *decision) {
+	byRule = map[string]*decision{}
 	for i := range e.decisions {
-		r := &e.decisions[i]
-		var b decisionBody
-		if json.Unmarshal(r.Body, &b) != nil || b.Rule == "" {
+		dc := &e.decisions[i]
+		if dc.day != e.today {
 			continue
 		}
-		if old := latest[b.Rule]; old == nil || r.Stamp.Compare(old.Stamp) > 0 || (r.Stamp == old.Stamp && r.ID > old.ID) {
-			latest[b.Rule] = r
-			refs[b.Rule] = &DecisionRef{ID: r.ID, Note: b.Note, By: b.By}
+		if dc.body.Rule == "" {
+			if whole == nil || newer(dc, whole) {
+				whole = dc
+			}
+			continue
+		}
+		if old := byRule[dc.body.Rule]; old == nil || newer(dc, old) {
+			byRule[dc.body.Rule] = dc
 		}
 	}
+	return byRule, whole
+}
+
+// attachDecisions marks flags acknowledged by a decision recorded the same
+// day: one naming the flag's rule (scope "flag") or, failing that, one for
+// the whole day (scope "day"); with several, the latest version wins.
+// Flags that chose their decision themselves (sparring during a
+// stand-down) keep it.
+func (e *engine) attachDecisions() {
+	byRule, whole := e.todaysDecisions()
 	for i := range e.out {
-		if ref := refs[e.out[i].Rule]; ref != nil {
-			e.out[i].Decision = ref
+		f := &e.out[i]
+		if f.ownDecision {
+			continue
+		}
+		if dc := byRule[f.Rule]; dc != nil {
+			f.Decision = dc.ref(ScopeFlag)
+		} else if whole != nil {
+			f.Decision = whole.ref(ScopeDay)
 		}
 	}
+}
+
+// num writes v with the given decimals.
+func num(v float64, decimals int) string { return strconv.FormatFloat(v, 'f', decimals, 64) }
+
+// levelWords names a planned load level as a coach says it.
+func levelWords(level string) string {
+	switch level {
+	case "medium_heavy":
+		return "medium-heavy"
+	case "":
+		return "unplanned"
+	}
+	return strings.ReplaceAll(level, "_", " ")
 }

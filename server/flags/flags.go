@@ -45,6 +45,7 @@
 package flags
 
 import (
+	"fmt"
 	"sort"
 	"time"
 
@@ -116,6 +117,9 @@ type Flag struct {
 	Rule    string `json:"rule"`
 	Level   string `json:"level"`  // info | watch | alert
 	Status  string `json:"status"` // "flag" or "forming" (not enough data yet — never reported as clean)
+	// Title is a short heading in the coach's words, unique among one
+	// athlete-day's flags (never a rule id or a setting key).
+	Title string `json:"title"`
 	// Value, Reference and Threshold share Unit. Reference is what the
 	// value is compared against (a baseline or a plan), nil where the rule
 	// has none; Threshold is the crossing point the level came from.
@@ -130,13 +134,42 @@ type Flag struct {
 	// Details carries extra numbers (e.g. best_cm, drop_te, strain).
 	Details  map[string]float64 `json:"details,omitempty"`
 	Decision *DecisionRef       `json:"decision,omitempty"` // the coach's acknowledgement, if recorded that day
+	// Restriction is set on the flag of a running stand-down (spar_on_hold
+	// at level info), on every day it runs.
+	Restriction *Restriction `json:"restriction,omitempty"`
+
+	ownDecision bool // the rule chose Decision itself
 }
+
+// Restriction describes a stand-down in force: what started it, the rule
+// that sets its minimum and what ends it.
+type Restriction struct {
+	Incident     string `json:"incident"`      // the incident record id
+	IncidentType string `json:"incident_type"` // head_knock, knockdown, stoppage, knockout, knockout_loc
+	StartedDay   string `json:"started_day"`   // YYYY-MM-DD
+	StartedAt    string `json:"started_at"`    // RFC 3339, the incident's at
+	// Rule names, in words, what sets the minimum, e.g. "Knockout: at
+	// least 60 days".
+	Rule string `json:"rule"`
+	// EarliestEnd is the first day the dated minimum no longer holds
+	// (YYYY-MM-DD), "" when only a clearance ends it.
+	EarliestEnd string `json:"earliest_end"`
+	Until       string `json:"until"` // what ends it in every case
+}
+
+// Decision scopes.
+const (
+	ScopeFlag = "flag" // a decision naming the flag's rule
+	ScopeDay  = "day"  // a decision for the athlete's whole day (no rule)
+)
 
 // DecisionRef points at the decision record that acknowledged a flag.
 type DecisionRef struct {
-	ID   string `json:"id"`
-	Note string `json:"note"`
-	By   string `json:"by,omitempty"`
+	ID    string `json:"id"`
+	Note  string `json:"note"`
+	By    string `json:"by"`
+	At    string `json:"at"`    // the decision record's at (RFC 3339)
+	Scope string `json:"scope"` // "flag" (named this flag's rule) or "day" (the whole day)
 }
 
 // Compute evaluates every rule for in.Athlete on in.Day. The result is
@@ -162,8 +195,19 @@ func Compute(in Input) []Flag {
 	e.offPlan()
 	e.residualGap()
 	e.attachDecisions()
+	uniqueTitles(e.out)
 	sortFlags(e.out)
 	return e.out
+}
+
+// Rank orders flags for every list a coach reads: a stand-down in force
+// first (a restriction, not a prompt), then alert, watch, info, and
+// "forming" last. Lower ranks come first.
+func Rank(f *Flag) int {
+	if f.Restriction != nil {
+		return -1
+	}
+	return rank(f)
 }
 
 func rank(f *Flag) int {
@@ -179,9 +223,36 @@ func rank(f *Flag) int {
 	return 2
 }
 
+// uniqueTitles keeps one athlete-day's titles distinct: a stand-down
+// title repeated (two incidents of one type) names its start day; any
+// other repeat is numbered.
+func uniqueTitles(fs []Flag) {
+	seen := map[string]int{}
+	for i := range fs {
+		seen[fs[i].Title]++
+	}
+	for i := range fs {
+		f := &fs[i]
+		if seen[f.Title] < 2 {
+			continue
+		}
+		if f.Restriction != nil {
+			f.Title += " on " + f.Restriction.StartedDay
+		}
+	}
+	used := map[string]int{}
+	for i := range fs {
+		f := &fs[i]
+		used[f.Title]++
+		if n := used[f.Title]; n > 1 {
+			f.Title = fmt.Sprintf("%s (%d)", f.Title, n)
+		}
+	}
+}
+
 func sortFlags(fs []Flag) {
 	sort.SliceStable(fs, func(i, j int) bool {
-		ri, rj := rank(&fs[i]), rank(&fs[j])
+		ri, rj := Rank(&fs[i]), Rank(&fs[j])
 		if ri != rj {
 			return ri < rj
 		}

@@ -20,13 +20,13 @@ func TestComputeSortsMostSeriousFirst(t *testing.T) {
 	if len(fs) < 4 {
 		t.Fatalf("too few flags: %s", describe(fs))
 	}
-	last := -1
+	last := -2
 	for i := range fs {
-		r := rank(&fs[i])
+		r := Rank(&fs[i])
 		if r < last {
 			t.Fatalf("not sorted: %s", describe(fs))
 		}
-		if r == last && fs[i-1].Rule > fs[i].Rule {
+		if i > 0 && r == last && fs[i-1].Rule > fs[i].Rule {
 			t.Fatalf("rule order: %s", describe(fs))
 		}
 		last = r
@@ -34,8 +34,13 @@ func TestComputeSortsMostSeriousFirst(t *testing.T) {
 			t.Fatalf("flag identity: %+v", fs[i])
 		}
 	}
-	if fs[0].Rule != RuleWellnessDrop || fs[0].Level != LevelAlert {
+	// A stand-down in force is a restriction: it comes before every
+	// prompt, alerts included, while its JSON level stays info.
+	if fs[0].Rule != RuleSparOnHold || fs[0].Level != LevelInfo || fs[0].Restriction == nil {
 		t.Errorf("first flag %s %s", fs[0].Rule, fs[0].Level)
+	}
+	if fs[1].Rule != RuleWellnessDrop || fs[1].Level != LevelAlert {
+		t.Errorf("second flag %s %s", fs[1].Rule, fs[1].Level)
 	}
 	// Forming flags come last.
 	if fs[len(fs)-1].Status != StatusForming {

@@ -68,7 +68,7 @@ func (e *engine) wellnessDrop() {
 			}
 		}
 		if len(worst) > 0 {
-			e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(itemMin)), Threshold: f64(float64(itemMin)),
+			e.add(Flag{Rule: rule, Level: LevelWatch, Title: "Wellness item at its worst", Value: f64(float64(itemMin)), Threshold: f64(float64(itemMin)),
 				ThresholdName: rule + ".item_min", Unit: "points", Inputs: ids,
 				Reason: fmt.Sprintf("Wellness item at its worst (%d of 5) today: %s.", itemMin, strings.Join(worst, ", "))})
 		}
@@ -88,7 +88,7 @@ func (e *engine) wellnessDrop() {
 		}
 	}
 	if len(base) < minN || len(base) < 2 {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Value: f64(total), Unit: "points", Inputs: inputs,
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: "Wellness baseline forming", Value: f64(total), Unit: "points", Inputs: inputs,
 			Reason: fmt.Sprintf("Wellness %.0f of 25 today; baseline forming: %d of %d check-ins in the last %d days.", total, len(base), minN, window)})
 		return
 	}
@@ -105,7 +105,7 @@ func (e *engine) wellnessDrop() {
 		return
 	}
 	thrZ := e.param(rule, name)
-	e.add(Flag{Rule: rule, Level: level, Value: f64(total), Reference: f64(mean), Threshold: f64(mean + thrZ*sdUsed),
+	e.add(Flag{Rule: rule, Level: level, Title: "Wellness down", Value: f64(total), Reference: f64(mean), Threshold: f64(mean + thrZ*sdUsed),
 		ThresholdName: rule + "." + name, Unit: "points", Inputs: inputs,
 		Details: map[string]float64{"z": z, "sd": sd, "sd_used": sdUsed, "threshold_z": thrZ, "baseline_checkins": float64(len(base))},
 		Reason: fmt.Sprintf("Wellness %.0f of 25, %.1f SD below the %d-day mean of %.1f (SD %.1f, %d check-ins).",
@@ -138,7 +138,7 @@ func (e *engine) hydration() {
 		return
 	}
 	watch, alert := e.param(rule, "watch_usg"), e.param(rule, "alert_usg")
-	f := Flag{Rule: rule, Value: f64(usg), Unit: "USG", Inputs: []string{id}, Caution: CautionHydration}
+	f := Flag{Rule: rule, Title: "Concentrated urine", Value: f64(usg), Unit: "USG", Inputs: []string{id}, Caution: CautionHydration}
 	switch {
 	case usg > alert:
 		f.Level, f.Threshold, f.ThresholdName = LevelAlert, f64(alert), rule+".alert_usg"
@@ -174,6 +174,6 @@ func (e *engine) missingCheckin() {
 	}
 	h := int(hour)
 	m := int(math.Round((hour - float64(h)) * 60))
-	e.add(Flag{Rule: rule, Level: LevelInfo, Threshold: f64(hour), ThresholdName: rule + ".hour", Unit: "h",
+	e.add(Flag{Rule: rule, Level: LevelInfo, Title: "No morning check-in", Threshold: f64(hour), ThresholdName: rule + ".hour", Unit: "h",
 		Reason: fmt.Sprintf("No morning check-in for %s by %02d:%02d camp time.", e.in.Day, h, m)})
 }

@@ -73,7 +73,7 @@ func (e *engine) jumpDrop() {
 	}
 	details := map[string]float64{"best_cm": today.best, "attempts": float64(today.n), "baseline_days": float64(len(daily))}
 	if len(daily) < minDays || len(daily) < 2 {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming,
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: "Jump baseline forming",
 			Value: f64(today.mean), Unit: "cm", Inputs: inputs, Details: details,
 			Reason: fmt.Sprintf("CMJ %.1f cm (best %.1f cm); baseline forming: %d of %d test days in the last %d days.",
 				today.mean, today.best, len(daily), minDays, window)})
@@ -104,7 +104,7 @@ func (e *engine) jumpDrop() {
 		return
 	}
 	details["threshold_pct"] = thr
-	e.add(Flag{Rule: rule, Level: level,
+	e.add(Flag{Rule: rule, Level: level, Title: "Jump height down",
 		Value: f64(today.mean), Reference: f64(base), Threshold: f64(base * (1 - thr/100)),
 		ThresholdName: rule + "." + name, Unit: "cm", Inputs: inputs, Details: details,
 		Reason: fmt.Sprintf("CMJ %.1f cm, %.1f %% below the %d-day baseline of %.1f cm (%.1f typical errors); usual day-to-day noise %.1f %%; best today %.1f cm.",

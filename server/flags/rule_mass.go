@@ -34,14 +34,14 @@ func (e *engine) trend() (trend, latest float64, latestDay day.Number, ids []str
 // campTrend is the mass trend for a rule that applies from camp start to
 // weigh-in: ok false outside that span, and also when no morning mass is
 // logged yet, in which case it reports the rule as forming.
-func (e *engine) campTrend(rule, what string) (trend, latest float64, latestDay day.Number, ids []string, ok bool) {
+func (e *engine) campTrend(rule, what, title string) (trend, latest float64, latestDay day.Number, ids []string, ok bool) {
 	p := e.bout
 	if !p.massReady() || e.today < p.campStart || e.today > p.weighIn {
 		return 0, 0, 0, nil, false
 	}
 	trend, latest, latestDay, ids, ok = e.trend()
 	if !ok {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: []string{p.id},
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: title, Caution: CautionMass, Inputs: []string{p.id},
 			Reason: what + " forming: no morning mass logged in this camp yet."})
 	}
 	return trend, latest, latestDay, ids, ok
@@ -51,7 +51,7 @@ func (e *engine) campTrend(rule, what string) (trend, latest float64, latestDay 
 func (e *engine) massAbovePath() {
 	const rule = RuleMassAbovePath
 	p := e.bout
-	trend, latest, latestDay, ids, ok := e.campTrend(rule, "Mass trend")
+	trend, latest, latestDay, ids, ok := e.campTrend(rule, "Mass trend", "Mass trend forming")
 	if !ok {
 		return
 	}
@@ -69,7 +69,7 @@ func (e *engine) massAbovePath() {
 		return
 	}
 	thr := planned + e.param(rule, name)/100*limit
-	e.add(Flag{Rule: rule, Level: level, Value: f64(trend), Reference: f64(planned), Threshold: f64(thr),
+	e.add(Flag{Rule: rule, Level: level, Title: "Mass above the planned path", Value: f64(trend), Reference: f64(planned), Threshold: f64(thr),
 		ThresholdName: rule + "." + name, Unit: "kg", Inputs: append(ids, p.id), Caution: CautionMass,
 		Details: map[string]float64{"excess_kg": excess, "excess_pct_of_limit": pct, "latest_kg": latest, "limit_kg": limit},
 		Reason: fmt.Sprintf("Mass trend %s is %s (%.1f %% of the %s limit) above the planned %s for today; latest morning mass %s on %s.",
@@ -94,7 +94,7 @@ func (e *engine) massLossFast() {
 	minN := int(e.param(rule, "min_checkins"))
 	days, kg, ids := e.massSeries(e.today - day.Number(window) + 1)
 	if len(kg) < minN {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Caution: CautionMass, Inputs: ids,
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: "Rate of loss forming", Caution: CautionMass, Inputs: ids,
 			Reason: fmt.Sprintf("Rate of loss forming: %d of %d morning masses in the last %d days.", len(kg), minN, window)})
 		return
 	}
@@ -114,7 +114,7 @@ func (e *engine) massLossFast() {
 	default:
 		return
 	}
-	e.add(Flag{Rule: rule, Level: level, Value: f64(loss), Threshold: f64(e.param(rule, name)),
+	e.add(Flag{Rule: rule, Level: level, Title: "Losing mass fast", Value: f64(loss), Threshold: f64(e.param(rule, name)),
 		ThresholdName: rule + "." + name, Unit: "%/week", Inputs: ids, Caution: CautionMass,
 		Details: map[string]float64{"slope_kg_week": slope * 7, "trend_kg": trend, "checkins": float64(len(kg))},
 		Reason: fmt.Sprintf("Morning mass falling %s a week over the last %d days (%d check-ins), %.1f %% of the %s trend per week, above %.1f %%/week; 0.7 %%/week preserved lean mass better in trained athletes (Garthe et al. 2011).",
@@ -126,7 +126,7 @@ func (e *engine) massLossFast() {
 func (e *engine) cutAtRisk() {
 	const rule = RuleCutAtRisk
 	p := e.bout
-	trend, _, _, ids, ok := e.campTrend(rule, "Cut projection")
+	trend, _, _, ids, ok := e.campTrend(rule, "Cut projection", "Cut projection forming")
 	if !ok {
 		return
 	}
@@ -155,7 +155,7 @@ func (e *engine) cutAtRisk() {
 		reason = fmt.Sprintf("In the final %.0f days, today's %s trend is %s (%.1f %%) above the %s limit, above %.1f %% for a %s weigh-in.",
 			e.param(rule, "final_days"), e.mass(trend, 1), e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
 	}
-	e.add(Flag{Rule: rule, Level: level, Value: f64(pct), Threshold: f64(e.param(rule, name)),
+	e.add(Flag{Rule: rule, Level: level, Title: "Weight cut at risk", Value: f64(pct), Threshold: f64(e.param(rule, name)),
 		ThresholdName: rule + "." + name, Unit: "%", Inputs: append(ids, p.id), Caution: CautionMass, Reason: reason,
 		Details: map[string]float64{"projected_kg": projected, "still_kg": still, "limit_kg": p.body.LimitKg, "trend_kg": trend, "days_to_final": ahead},
 	})

@@ -40,7 +40,11 @@ func (e *engine) offPlan() {
 		if cut > maxCut {
 			thr, name = maxCut, "taper_max_pct"
 		}
-		e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(cut), Threshold: f64(thr), ThresholdName: rule + "." + name,
+		more := "too little"
+		if cut > maxCut {
+			more = "too much"
+		}
+		e.add(Flag{Rule: rule, Level: LevelInfo, Title: fmt.Sprintf("Taper in week %d cuts %s", k, more), Value: f64(cut), Threshold: f64(thr), ThresholdName: rule + "." + name,
 			Unit: "%", Inputs: []string{p.id},
 			Details: map[string]float64{"week": float64(k), "planned_au": taperFrac * ref, "band_low_au": lo, "band_high_au": hi},
 			Reason: fmt.Sprintf("Planned taper in week %d cuts load by %.0f %% of the %.0f AU reference week (%.0f AU); a cut of %.0f–%.0f %% (%.0f–%.0f AU) worked best (Bosquet et al. 2007).",
@@ -62,8 +66,8 @@ func (e *engine) offPlan() {
 	elapsed := int(e.today-start) + 1
 	inputs := e.sessionIDs(start)
 	if elapsed < int(e.param(rule, "min_days")) {
-		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Reference: f64(planned), Unit: "AU", Inputs: inputs,
-			Reason: fmt.Sprintf("Week %d load forming: day %d of 7, planned %s week of %.0f AU.", k, elapsed, w.Level, planned)})
+		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: "Week load forming", Reference: f64(planned), Unit: "AU", Inputs: inputs,
+			Reason: fmt.Sprintf("Week %d load forming: day %d of 7, planned %s week of %.0f AU.", k, elapsed, levelWords(w.Level), planned)})
 		return
 	}
 	soFar := 0.0
@@ -80,11 +84,11 @@ func (e *engine) offPlan() {
 	if dev < 0 {
 		dir, thr = "below", planned*(1-tol/100)
 	}
-	e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(projected), Reference: f64(planned), Threshold: f64(thr),
+	e.add(Flag{Rule: rule, Level: LevelInfo, Title: "Week load " + dir + " the plan", Value: f64(projected), Reference: f64(planned), Threshold: f64(thr),
 		ThresholdName: rule + ".tolerance_pct", Unit: "AU", Inputs: inputs,
 		Details: map[string]float64{"so_far_au": soFar, "days": float64(elapsed), "deviation_pct": dev, "week": float64(k)},
 		Reason: fmt.Sprintf("Week %d: %.0f AU in %d days projects to %.0f AU, %.0f %% %s the planned %s week of %.0f AU (tolerance %.0f %%).",
-			k, soFar, elapsed, projected, math.Abs(dev), dir, w.Level, planned, tol)})
+			k, soFar, elapsed, projected, math.Abs(dev), dir, levelWords(w.Level), planned, tol)})
 }
 
 // residualGap: days since the last session of a quality whose training
@@ -97,13 +101,14 @@ func (e *engine) residualGap() {
 	}
 	type quality struct {
 		name   string
+		title  string
 		foci   []string
 		param  string
 		effect string
 	}
 	for _, q := range []quality{
-		{"max strength", []string{"max_strength"}, "max_strength_days", "30 ± 5"},
-		{"speed or plyometric", []string{"speed", "plyometric"}, "speed_days", "5 ± 3"},
+		{"max strength", "Max strength", []string{"max_strength"}, "max_strength_days", "30 ± 5"},
+		{"speed or plyometric", "Speed and plyometrics", []string{"speed", "plyometric"}, "speed_days", "5 ± 3"},
 	} {
 		limit := e.param(rule, q.param)
 		var last session
@@ -118,7 +123,7 @@ func (e *engine) residualGap() {
 			if gap <= limit {
 				continue
 			}
-			e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(gap), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
+			e.add(Flag{Rule: rule, Level: LevelInfo, Title: q.title + " not trained lately", Value: f64(gap), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
 				Unit: "days", Inputs: []string{last.id},
 				Reason: fmt.Sprintf("%.0f days since the last %s session (%s), over %.0f; its training effect lasts about %s days.",
 					gap, q.name, last.day, limit, q.effect)})
@@ -126,12 +131,12 @@ func (e *engine) residualGap() {
 		}
 		span := float64(e.historyDays() - 1)
 		if span > limit {
-			e.add(Flag{Rule: rule, Level: LevelInfo, Value: f64(span), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
+			e.add(Flag{Rule: rule, Level: LevelInfo, Title: q.title + " not trained lately", Value: f64(span), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
 				Unit: "days", Details: map[string]float64{"lower_bound": 1},
 				Reason: fmt.Sprintf("No %s session in the %.0f days on record, over %.0f; its training effect lasts about %s days.",
 					q.name, span, limit, q.effect)})
 			continue
 		}
-		e.forming(rule, fmt.Sprintf("No %s session yet in the %.0f days on record (window %.0f days).", q.name, span, limit), nil)
+		e.forming(rule, q.title+" not trained yet", fmt.Sprintf("No %s session yet in the %s on record (window %s).", q.name, count(int(span), "day", "days"), count(int(limit), "day", "days")), nil)
 	}
 }

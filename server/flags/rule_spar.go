@@ -41,38 +41,42 @@ func (e *engine) sparDensity() {
 		all, hard, ids = all+a, hard+h, append(ids, i...)
 	}
 	capRounds, capName := e.param(rule, "cap_rounds"), rule+".cap_rounds"
+	capWords := "the cap"
 	if p := e.bout; p != nil {
 		if k, _, ok := p.week(e.today); ok {
 			if w, ok := p.weekByIndex[k]; ok && w.SparCapRounds != nil {
 				capRounds, capName = float64(*w.SparCapRounds), fmt.Sprintf("bout.weeks[%d].spar_cap_rounds", k)
+				capWords = fmt.Sprintf("week %d's planned cap", k)
 			}
 		}
 	}
+	const title = "Sparring rounds over the cap"
 	raised := false
 	alertAt := e.param(rule, "alert_factor") * capRounds
 	switch {
 	case float64(all) > alertAt:
 		raised = true
-		e.add(Flag{Rule: rule, Level: LevelAlert, Value: f64(float64(all)), Reference: f64(capRounds), Threshold: f64(alertAt),
+		e.add(Flag{Rule: rule, Level: LevelAlert, Title: title, Value: f64(float64(all)), Reference: f64(capRounds), Threshold: f64(alertAt),
 			ThresholdName: rule + ".alert_factor", Unit: "rounds", Inputs: ids,
 			Details: map[string]float64{"hard_rounds": float64(hard)},
-			Reason: fmt.Sprintf("%d sparring rounds in the %d days ending today, over %.0f (%.2f × the cap of %.0f).",
-				all, window, alertAt, e.param(rule, "alert_factor"), capRounds)})
+			Reason: fmt.Sprintf("%s in the %d days ending today, over %s (%s × %s of %s).",
+				count(all, "sparring round", "sparring rounds"), window, num(alertAt, 0), num(e.param(rule, "alert_factor"), 2), capWords, num(capRounds, 0))})
 	case float64(all) > capRounds:
 		raised = true
-		e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(all)), Reference: f64(capRounds), Threshold: f64(capRounds),
+		e.add(Flag{Rule: rule, Level: LevelWatch, Title: title, Value: f64(float64(all)), Reference: f64(capRounds), Threshold: f64(capRounds),
 			ThresholdName: capName, Unit: "rounds", Inputs: ids,
 			Details: map[string]float64{"hard_rounds": float64(hard)},
-			Reason:  fmt.Sprintf("%d sparring rounds in the %d days ending today, over the cap of %.0f.", all, window, capRounds)})
+			Reason:  fmt.Sprintf("%s in the %d days ending today, over %s of %s.", count(all, "sparring round", "sparring rounds"), window, capWords, num(capRounds, 0))})
 	}
 	if hardCap := e.param(rule, "hard_cap_rounds"); float64(hard) > hardCap {
 		raised = true
-		e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(hard)), Threshold: f64(hardCap),
+		e.add(Flag{Rule: rule, Level: LevelWatch, Title: "Hard sparring rounds over the cap", Value: f64(float64(hard)), Threshold: f64(hardCap),
 			ThresholdName: rule + ".hard_cap_rounds", Unit: "hard rounds", Inputs: ids,
-			Reason: fmt.Sprintf("%d hard sparring rounds in the %d days ending today, over the hard cap of %.0f.", hard, window, hardCap)})
+			Reason: fmt.Sprintf("%s in the %d days ending today, over the hard-round cap of %s.", count(hard, "hard sparring round", "hard sparring rounds"), window, num(hardCap, 0))})
 	}
 	if !raised && e.historyDays() < window {
-		e.forming(rule, fmt.Sprintf("Sparring count forming: %d sparring rounds so far, over %d of %d days on record.", all, e.historyDays(), window), ids)
+		e.forming(rule, "Sparring count forming", fmt.Sprintf("Sparring count forming: %s so far, with %s of %d on record.",
+			count(all, "sparring round", "sparring rounds"), count(e.historyDays(), "day", "days"), window), ids)
 	}
 }
 
@@ -97,9 +101,14 @@ func (e *engine) sparSpacing() {
 		prev := hardDays[len(hardDays)-2]
 		if int(e.today-prev) < gap {
 			raised = true
-			e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(e.today - prev)), Threshold: f64(float64(gap)),
+			apart := int(e.today - prev)
+			title := "Hard sparring on back-to-back days"
+			if apart > 1 {
+				title = fmt.Sprintf("Hard sparring %d days apart", apart)
+			}
+			e.add(Flag{Rule: rule, Level: LevelWatch, Title: title, Value: f64(float64(apart)), Threshold: f64(float64(gap)),
 				ThresholdName: rule + ".min_gap_days", Unit: "days", Inputs: ids,
-				Reason: fmt.Sprintf("Hard sparring on %s and again today, under %d days apart.", prev, gap)})
+				Reason: fmt.Sprintf("Hard sparring on %s and again today, under %s apart.", prev, count(gap, "day", "days"))})
 		}
 	}
 	if maxDays := e.param(rule, "max_hard_days"); float64(len(hardDays)) > maxDays {
@@ -108,32 +117,79 @@ func (e *engine) sparSpacing() {
 		for i, d := range hardDays {
 			names[i] = d.String()
 		}
-		e.add(Flag{Rule: rule, Level: LevelWatch, Value: f64(float64(len(hardDays))), Threshold: f64(maxDays),
+		e.add(Flag{Rule: rule, Level: LevelWatch, Title: fmt.Sprintf("Hard sparring on %d of the last %d days", len(hardDays), window),
+			Value: f64(float64(len(hardDays))), Threshold: f64(maxDays),
 			ThresholdName: rule + ".max_hard_days", Unit: "days", Inputs: ids,
-			Reason: fmt.Sprintf("Hard sparring on %d of the last %d days (%s).", len(hardDays), window, strings.Join(names, ", "))})
+			Reason: fmt.Sprintf("Hard sparring on %d of the last %d days (%s), more than %s.", len(hardDays), window, joinWords(names), count(int(maxDays), "day", "days"))})
 	}
 	if hardToday {
-		var which []string
-		if e.has(RuleJumpDrop, LevelAlert) {
-			which = append(which, "a jump_drop alert")
+		jump, well := e.has(RuleJumpDrop, LevelAlert), e.has(RuleWellnessDrop, LevelAlert)
+		which := ""
+		switch {
+		case jump && well:
+			which = "jump height and wellness alerts"
+		case jump:
+			which = "a jump height alert"
+		case well:
+			which = "a wellness alert"
 		}
-		if e.has(RuleWellnessDrop, LevelAlert) {
-			which = append(which, "a wellness_drop alert")
-		}
-		if len(which) > 0 {
+		if which != "" {
 			raised = true
 			_, _, todayIDs := e.sparRounds(e.today, hi)
-			e.add(Flag{Rule: rule, Level: LevelWatch, Unit: "", Inputs: todayIDs,
-				Reason: fmt.Sprintf("Hard sparring today on a day with %s.", strings.Join(which, " and "))})
+			e.add(Flag{Rule: rule, Level: LevelWatch, Title: "Hard sparring despite " + which, Unit: "", Inputs: todayIDs,
+				Reason: fmt.Sprintf("Hard sparring today, a day with %s.", which)})
 		}
 	}
 	if !raised && e.historyDays() < window {
-		e.forming(rule, fmt.Sprintf("Sparring spacing forming: %d hard sparring days over %d of %d days on record.", len(hardDays), e.historyDays(), window), ids)
+		e.forming(rule, "Sparring spacing forming", fmt.Sprintf("Sparring spacing forming: %s with hard sparring, %s of %d on record.",
+			count(len(hardDays), "day", "days"), count(e.historyDays(), "day", "days"), window), ids)
 	}
 }
 
-// sparOnHold: a stand-down after each head incident; info while it runs,
-// alert for any sparring round logged inside it.
+// incidentWords names an incident type in the coach's words.
+func incidentWords(kind string) string {
+	switch kind {
+	case "head_knock":
+		return "head knock"
+	case "knockout_loc":
+		return "knockout with loss of consciousness"
+	}
+	return strings.ReplaceAll(kind, "_", " ")
+}
+
+func capitalize(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// UntilCleared is what ends every stand-down.
+const UntilCleared = "cleared in writing by a doctor"
+
+// duringStandDown reports whether a sparring round falls inside the
+// stand-down that inc started: on a later day, or on the incident's day
+// after the incident's time.
+func duringStandDown(r *sparRound, inc *incident) bool {
+	if r.day != inc.day {
+		return r.day > inc.day
+	}
+	return before(inc.at, r.at)
+}
+
+// answers reports whether decision dc, recorded on or after the round,
+// answers it: on a later day, or the same day at or after the round's time.
+func answers(dc *decision, r *sparRound) bool {
+	if dc.day != r.day {
+		return dc.day > r.day
+	}
+	return !before(dc.at, r.at)
+}
+
+// sparOnHold: a stand-down after each head incident. While it runs, a
+// restriction (level info) every day; and any sparring round logged inside
+// it is an alert on every day of the stand-down until a coach records a
+// decision on this rule after it.
 func (e *engine) sparOnHold() {
 	const rule = RuleSparOnHold
 	stop := int(e.atLeast(rule, "stoppage_days"))
@@ -154,56 +210,145 @@ func (e *engine) sparOnHold() {
 	if len(active) == 0 {
 		return
 	}
-	sort.SliceStable(active, func(i, j int) bool { return active[i].day < active[j].day })
-	var sparIDs []string
-	var incIDs []string
-	if r := e.at(e.today); r != nil {
-		for _, rd := range r.rounds {
-			if rd.body.Activity != "spar" {
-				continue
-			}
-			for _, inc := range active {
-				if inc.day == e.today && before(rd.at, inc.at) {
-					continue // sparred earlier the same day, before the incident
-				}
-				sparIDs = append(sparIDs, rd.id)
-				break
-			}
+	sort.SliceStable(active, func(i, j int) bool {
+		if active[i].day != active[j].day {
+			return active[i].day < active[j].day
 		}
-	}
+		return before(active[i].at, active[j].at)
+	})
+	var incIDs []string
 	for _, inc := range active {
 		incIDs = append(incIDs, inc.id)
 		sd := StandDownFor(inc.kind, stop, ko, koLOC)
 		since := float64(e.today - inc.day)
+		what := incidentWords(inc.kind)
 		f := Flag{Rule: rule, Level: LevelInfo, Value: f64(since), Unit: "days", Inputs: []string{inc.id}, Caution: CautionHead,
+			Title:   "Stand-down after a " + what,
 			Details: map[string]float64{"days_since": since}}
+		res := &Restriction{Incident: inc.id, IncidentType: inc.kind, StartedDay: inc.day.String(), StartedAt: inc.at, Until: UntilCleared}
 		_, cleared := e.clearances[inc.id]
-		what := strings.ReplaceAll(inc.kind, "_", " ")
-		if inc.kind == "knockout_loc" {
-			what = "knockout with loss of consciousness"
-		}
 		if sd.Dated {
 			end := inc.day + day.Number(sd.Days)
 			left := float64(end - e.today)
 			f.Threshold = f64(float64(sd.Days))
 			f.ThresholdName = rule + "." + inc.kind + "_days"
 			f.Details["days_left"] = left
-			clearNote := ", and not until cleared in writing by a doctor"
+			res.Rule = fmt.Sprintf("%s: at least %d days", capitalize(what), sd.Days)
+			res.EarliestEnd = end.String()
+			clearNote := ", and not until " + UntilCleared
 			if cleared {
 				clearNote = " (clearance recorded; the minimum still runs)"
 			}
 			f.Reason = fmt.Sprintf("Stand-down after the %s on %s, day %.0f of at least %d: no sparring or contact before %s%s.",
 				what, inc.day, since, sd.Days, end, clearNote)
 		} else {
-			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (suspected concussion), day %.0f: no sparring or contact until cleared in writing by a doctor.", what, inc.day, since)
+			res.Rule = capitalize(what) + ": treated as suspected concussion"
+			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (treated as suspected concussion), day %.0f: no sparring or contact until %s.", what, inc.day, since, UntilCleared)
 		}
+		f.Restriction = res
 		e.add(f)
 	}
-	if len(sparIDs) > 0 {
-		e.add(Flag{Rule: rule, Level: LevelAlert, Value: f64(float64(len(sparIDs))), Unit: "rounds",
-			Inputs: append(sparIDs, incIDs...), Caution: CautionHead,
-			Reason: fmt.Sprintf("%d sparring round(s) logged today during a stand-down; no sparring or contact until cleared in writing by a doctor.", len(sparIDs))})
+	// Sparring rounds inside a running stand-down, not yet answered by a
+	// decision on this rule recorded before today.
+	byRule, whole := e.todaysDecisions()
+	var spar []sparRound
+	for i := range e.sparLog {
+		r := &e.sparLog[i]
+		if r.day > e.today {
+			continue
+		}
+		inside := false
+		for k := range active {
+			if duringStandDown(r, &active[k]) {
+				inside = true
+				break
+			}
+		}
+		if !inside {
+			continue
+		}
+		answered := false
+		for k := range e.decisions {
+			dc := &e.decisions[k]
+			if dc.body.Rule == rule && dc.day < e.today && answers(dc, r) {
+				answered = true
+				break
+			}
+		}
+		if !answered {
+			spar = append(spar, *r)
+		}
 	}
+	if len(spar) == 0 {
+		return
+	}
+	var ids []string
+	var days []string
+	today := 0
+	for _, r := range spar {
+		ids = append(ids, r.id)
+		if r.day == e.today {
+			today++
+		} else if len(days) == 0 || days[len(days)-1] != r.day.String() {
+			days = append(days, r.day.String())
+		}
+	}
+	when := ""
+	switch {
+	case len(days) == 0:
+		when = "today"
+	case today == 0:
+		when = "on " + joinWords(days)
+	default:
+		when = "on " + joinWords(days) + " and today"
+	}
+	f := Flag{Rule: rule, Level: LevelAlert, Value: f64(float64(len(spar))), Unit: "rounds",
+		Title:  "Sparring during a stand-down",
+		Inputs: append(ids, incIDs...), Caution: CautionHead, ownDecision: true,
+		Reason: fmt.Sprintf("%s logged %s during a stand-down; no sparring or contact until %s.",
+			count(len(spar), "sparring round", "sparring rounds"), when, UntilCleared)}
+	// Today's decision acknowledges the alert only if it came after every
+	// round it lists.
+	for _, dc := range []*decision{byRule[rule], whole} {
+		if dc == nil {
+			continue
+		}
+		all := true
+		for k := range spar {
+			if !answers(dc, &spar[k]) {
+				all = false
+				break
+			}
+		}
+		if all {
+			scope := ScopeFlag
+			if dc.body.Rule == "" {
+				scope = ScopeDay
+			}
+			f.Decision = dc.ref(scope)
+			break
+		}
+	}
+	e.add(f)
+}
+
+// count writes n with the singular or plural noun: "1 day", "2 days".
+func count(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
+}
+
+// joinWords joins items as "a", "a and b", "a, b and c".
+func joinWords(items []string) string {
+	switch len(items) {
+	case 0:
+		return ""
+	case 1:
+		return items[0]
+	}
+	return strings.Join(items[:len(items)-1], ", ") + " and " + items[len(items)-1]
 }
 
 // before reports whether RFC 3339 instant a is before b; false if either

@@ -105,7 +105,7 @@ func TestSparSpacingAfterAlerts(t *testing.T) {
 	fs := c.run(d(40))
 	wantLevel(t, one(t, fs, RuleJumpDrop), LevelAlert, StatusFlag)
 	f := one(t, fs, RuleSparSpacing)
-	if !strings.Contains(f.Reason, "jump_drop alert") {
+	if !strings.Contains(f.Reason, "jump height alert") {
 		t.Errorf("reason %q", f.Reason)
 	}
 	// A jump_drop watch is not enough.
@@ -119,7 +119,7 @@ func TestSparSpacingAfterAlerts(t *testing.T) {
 	wellnessBaseline(c)
 	c.wellness(d(30), 3, 2, 3, 4, 3)
 	c.rounds(d(30), 2, 3)
-	if f := one(t, c.run(d(30)), RuleSparSpacing); !strings.Contains(f.Reason, "wellness_drop alert") {
+	if f := one(t, c.run(d(30)), RuleSparSpacing); !strings.Contains(f.Reason, "wellness alert") {
 		t.Errorf("reason %q", f.Reason)
 	}
 }
@@ -148,7 +148,10 @@ func TestSparOnHold(t *testing.T) {
 	// A clearance ends it from its day on.
 	c.add(kindClearance, d(14), map[string]any{"incident": inc, "by": "Dr. A. Example"})
 	none(t, c.run(d(14)), RuleSparOnHold)
-	wantLevel(t, one(t, c.run(d(13)), RuleSparOnHold), LevelInfo, StatusFlag)
+	// The day before the clearance the round of d(12) is still an alert.
+	if fs := rule(c.run(d(13)), RuleSparOnHold); len(fs) != 2 {
+		t.Fatalf("want the restriction and the alert on d(13): %s", describe(fs))
+	}
 }
 
 func TestSparOnHoldDatedMinimums(t *testing.T) {

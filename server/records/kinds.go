@@ -176,9 +176,10 @@ type Clearance struct {
 	Note     string `json:"note,omitempty"`
 }
 
-// Decision is a coach's acknowledgement of a flag.
+// Decision is a coach's acknowledgement of a flag (Rule names its rule)
+// or of every flag of the athlete's day (Rule empty).
 type Decision struct {
-	Rule string `json:"rule"`
+	Rule string `json:"rule,omitempty"`
 	Note string `json:"note"`
 	By   string `json:"by,omitempty"`
 }

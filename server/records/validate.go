@@ -594,8 +594,11 @@ func validateDecision(c *check, raw json.RawMessage) (any, error) {
 	if _, err := decodeBody(raw, &b, KindDecision); err != nil {
 		return nil, err
 	}
-	if err := oneOf("body.rule", b.Rule, RuleIDs); err != nil {
-		return nil, err
+	// No rule: a decision for the athlete's whole day.
+	if b.Rule != "" {
+		if err := oneOf("body.rule", b.Rule, RuleIDs); err != nil {
+			return nil, err
+		}
 	}
 	if strings.TrimSpace(b.Note) == "" {
 		return nil, fe("body.note", "is required: what was decided, up to %d characters", MaxNoteLen)
