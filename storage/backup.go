@@ -16,10 +16,24 @@ import (
 )
 
 // BackupFile writes a consistent hot copy of the store to path: into a
-// temporary file beside it, synced, then renamed over path and the folder
-// synced, so a crash leaves either the old file or the whole new one.
+// temporary file beside it, synced, checked whole (VerifyFile's check),
+// then renamed over path and the folder synced, so a crash leaves either
+// the old file or the whole new one, and a copy of a damaged store is
+// never kept as a backup or snapshot.
 func BackupFile(db *DB, path string) (int64, error) {
-	return writeAtomically(path, func(f *os.File) (int64, error) { return db.WriteTo(f) })
+	return writeAtomically(path, func(f *os.File) (int64, error) {
+		n, err := db.WriteTo(f)
+		if err != nil {
+			return n, err
+		}
+		if err := f.Sync(); err != nil {
+			return n, err
+		}
+		if err := checkFile(f.Name(), time.Second); err != nil {
+			return n, fmt.Errorf("the copy failed its check, so the store itself is damaged: %v", err)
+		}
+		return n, nil
+	})
 }
 
 func writeAtomically(path string, write func(*os.File) (int64, error)) (n int64, err error) {
@@ -67,42 +81,60 @@ var ErrBadBackup = errors.New("not a usable Cornerbook backup")
 
 // VerifyFile checks that path is a sound Cornerbook database: bbolt's page
 // check, the expected buckets and schema, and the application invariants.
-func VerifyFile(path string) (err error) {
+func VerifyFile(path string) error {
+	if err := checkFile(path, time.Second); err != nil {
+		if errors.Is(err, ErrLocked) {
+			return err
+		}
+		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+	}
+	return nil
+}
+
+// checkFile is VerifyFile's check, its problem in plain words. A file
+// that another process holds answers ErrLocked.
+func checkFile(path string, lock time.Duration) (err error) {
 	st, err := os.Stat(path)
 	if err != nil {
-		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+		return err
 	}
 	if st.Size() == 0 {
-		return fmt.Errorf("%w: the file is empty", ErrBadBackup)
+		return errors.New("the file is empty (0 bytes)")
 	}
 	if err := checkExtent(path, st.Size()); err != nil {
-		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+		return err
 	}
 	defer func() {
 		// bbolt may panic on a badly damaged file; that is a refusal too.
 		if r := recover(); r != nil {
-			err = fmt.Errorf("%w: the file is damaged (%v)", ErrBadBackup, r)
+			err = fmt.Errorf("the file is damaged (%v)", r)
 		}
 	}()
-	bdb, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: time.Second, ReadOnly: true})
+	bdb, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: lock, ReadOnly: true})
 	if err != nil {
-		return fmt.Errorf("%w: %v", ErrBadBackup, err)
+		if errors.Is(err, berrors.ErrTimeout) {
+			return &lockedError{cause: err}
+		}
+		return err
 	}
 	defer bdb.Close()
 	return bdb.View(func(tx *bolt.Tx) error {
 		// Pages first, so no lookup follows a damaged page pointer.
 		for err := range tx.Check() {
-			return fmt.Errorf("%w: the file is damaged: %v", ErrBadBackup, err)
+			return fmt.Errorf("the file is damaged: %v", err)
+		}
+		if tx.Bucket(BucketMeta) == nil || tx.Bucket(BucketMeta).Get(keySchema) == nil {
+			return errors.New("it is a database file, but not one Cornerbook wrote (it has no Cornerbook layout)")
 		}
 		for _, b := range allBuckets {
 			if tx.Bucket(b) == nil {
-				return fmt.Errorf("%w: it has no %q section", ErrBadBackup, b)
+				return fmt.Errorf("it has no %q section", b)
 			}
 		}
 		// A layout-1 backup is sound too: Open moves it to the current
 		// layout when it is restored.
 		if v := tx.Bucket(BucketMeta).Get(keySchema); string(v) != schemaVersion && string(v) != schemaV1 {
-			return fmt.Errorf("%w: its layout version is %q, this hub reads %q and %q", ErrBadBackup, v, schemaV1, schemaVersion)
+			return fmt.Errorf("the data file has layout %q; this cornerbook reads layouts %s and %s — use a newer cornerbook", v, schemaV1, schemaVersion)
 		}
 		var problems []string
 		checkInvariants(tx, func(format string, args ...any) bool {
@@ -110,7 +142,10 @@ func VerifyFile(path string) (err error) {
 			return len(problems) < 5
 		})
 		if len(problems) > 0 {
-			return fmt.Errorf("%w: %s", ErrBadBackup, strings.Join(problems, "; "))
+			if string(tx.Bucket(BucketMeta).Get(keySchema)) == schemaV1 {
+				return errors.New("a layout 1 file: " + strings.Join(problems, "; "))
+			}
+			return errors.New(strings.Join(problems, "; "))
 		}
 		return nil
 	})
@@ -184,15 +219,15 @@ func RestoreFile(src, dst string) (epoch string, err error) {
 		return "", err
 	}
 	if _, err := os.Stat(dst); err == nil {
-		cur, err := bolt.Open(dst, 0o600, &bolt.Options{Timeout: time.Second})
+		// The lock alone, not an open: the store being replaced may be
+		// the damaged file the hub refused to serve.
+		unlock, err := lockFile(dst, time.Second)
 		if err != nil {
-			if errors.Is(err, berrors.ErrTimeout) {
-				return "", &lockedError{cause: err}
-			}
-			return "", fmt.Errorf("open %s: %w", dst, err)
+			return "", err
 		}
-		defer cur.Close() // after the swap: no hub can open the old file meanwhile
+		defer unlock() // after the swap: no hub can open the old file meanwhile
 	}
+	removeRestoreLeftovers(dst)
 	in, err := os.Open(src)
 	if err != nil {
 		return "", err
@@ -236,6 +271,17 @@ func RestoreFile(src, dst string) (epoch string, err error) {
 		return "", err
 	}
 	return epoch, syncDir(filepath.Dir(dst))
+}
+
+// removeRestoreLeftovers deletes what a restore killed part-way leaves
+// beside dst (its copy in progress); Open and RestoreFile call it while
+// they hold dst, so no restore is running.
+func removeRestoreLeftovers(dst string) {
+	names, _ := filepath.Glob(filepath.Join(filepath.Dir(dst), "."+filepath.Base(dst)+".restoring.tmp-*"))
+	names = append(names, dst+".restoring")
+	for _, n := range names {
+		os.Remove(n)
+	}
 }
 
 // ReplacedPath is the newest store a RestoreFile into dst kept aside, or

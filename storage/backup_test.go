@@ -21,7 +21,7 @@ func dumpAll(t *testing.T, db *storage.DB) []devsync.Record {
 	return out
 }
 
-func pushRecs(t *testing.T, db *storage.DB, device string, n uint64, recs []devsync.Record) {
+func pushRecs(t testing.TB, db *storage.DB, device string, n uint64, recs []devsync.Record) {
 	t.Helper()
 	if _, err := db.Push(devsync.PushRequest{Device: device, Mutations: storagetest.Mutations(n, recs...)}, nil); err != nil {
 		t.Fatal(err)

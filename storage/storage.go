@@ -96,6 +96,23 @@ var (
 	ErrNotFound = errors.New("not found")
 )
 
+// DamagedError is returned by Open for an existing file that fails the
+// check (bbolt's page check, the layout and its invariants): a damaged
+// file, an empty one or a bbolt file Cornerbook did not write.
+type DamagedError struct {
+	Path    string
+	Problem error
+}
+
+func (e *DamagedError) Error() string {
+	return fmt.Sprintf("%s cannot be used: %v", e.Path, e.Problem)
+}
+
+// ErrDamaged matches every *DamagedError with errors.Is.
+var ErrDamaged = errors.New("the data file failed its check")
+
+func (e *DamagedError) Is(target error) bool { return target == ErrDamaged }
+
 // lockedError is ErrLocked with bbolt's timeout kept as its cause.
 type lockedError struct{ cause error }
 
@@ -149,6 +166,17 @@ func Open(path string, opt Options) (*DB, error) {
 	if opt.Now == nil {
 		opt.Now = time.Now
 	}
+	if _, err := os.Stat(path); err == nil {
+		// An existing file is checked whole before anything is served
+		// from it: a damaged, empty or foreign file is refused, never
+		// adopted or initialised over.
+		if err := checkFile(path, opt.Timeout); err != nil {
+			if errors.Is(err, ErrLocked) {
+				return nil, err
+			}
+			return nil, &DamagedError{Path: path, Problem: err}
+		}
+	}
 	if err := createAtomically(path); err != nil {
 		return nil, fmt.Errorf("create %s: %w", path, err)
 	}
@@ -159,6 +187,7 @@ func Open(path string, opt Options) (*DB, error) {
 		}
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
+	removeRestoreLeftovers(path)
 	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare, campIntegrity: opt.CampIntegrity}
 	err = b.Update(initBuckets)
 	if err != nil {
@@ -415,6 +444,10 @@ func migrateV1(tx *bolt.Tx) error {
 // byte, so the result is safe to use after the transaction.
 func decode(v []byte) (devsync.Record, error) {
 	var r devsync.Record
+	if devsync.DecodeRecord(v, &r) {
+		return r, nil
+	}
+	r = devsync.Record{}
 	err := json.Unmarshal(v, &r)
 	return r, err
 }

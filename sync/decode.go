@@ -43,6 +43,14 @@ func DecodePush(body []byte, req *PushRequest) bool {
 	return ok && s.End()
 }
 
+// DecodeRecord decodes one record document in its plain form into r,
+// which must be zero; false means "decode it with encoding/json", as for
+// DecodePush. Strings and the body are copies of b's bytes.
+func DecodeRecord(b []byte, r *Record) bool {
+	s := jscan.Scanner{Buf: b}
+	return decodeRecord(&s, r) && s.End()
+}
+
 // once marks bit in seen and reports whether it was clear: a repeated
 // key is not plain.
 func once(seen *uint16, bit uint16) bool {

@@ -10,6 +10,8 @@ import (
 	"net"
 	"os"
 	"path/filepath"
+	"sort"
+	"strings"
 	"time"
 
 	"cornerbook/server"
@@ -233,7 +235,42 @@ func openData(dir string, now func() time.Time) (*storage.DB, error) {
 	if errors.Is(err, storage.ErrLocked) {
 		return nil, fmt.Errorf("%s: %w (stop the running hub first, or use its screens)", dir, storage.ErrLocked)
 	}
+	if de := (*storage.DamagedError)(nil); errors.As(err, &de) {
+		return nil, damagedAdvice(dir, de)
+	}
 	return db, err
+}
+
+// damagedAdvice is what the coach reads when the data file fails its
+// check: what is wrong, that nothing was served from it, and the one
+// command that brings back the newest sound snapshot.
+func damagedAdvice(dir string, de *storage.DamagedError) error {
+	var b strings.Builder
+	fmt.Fprintf(&b, "the data file %s failed its check, so the hub did not start and served nothing from it.\n", de.Path)
+	fmt.Fprintf(&b, "  What is wrong: %v\n", de.Problem)
+	if snap := newestSoundSnapshot(dir); snap != "" {
+		fmt.Fprintf(&b, "  The newest sound snapshot is %s.\n", snap)
+		fmt.Fprintf(&b, "  To go back to it (the damaged file is kept beside it, renamed), run:\n\n")
+		fmt.Fprintf(&b, "    cornerbook restore --data %s %s\n\n", dir, snap)
+		b.WriteString("  then start the hub again. Phones re-send what they logged since that snapshot.")
+	} else {
+		b.WriteString("  No sound snapshot was found in " + filepath.Join(dir, snapshotDir) + ".\n")
+		b.WriteString("  If you have a backup file, run:  cornerbook restore --data " + dir + " BACKUP-FILE")
+	}
+	return errors.New(b.String())
+}
+
+// newestSoundSnapshot is the newest daily snapshot of dir that passes the
+// check, or "".
+func newestSoundSnapshot(dir string) string {
+	names, _ := filepath.Glob(filepath.Join(dir, snapshotDir, "cornerbook-????-??-??.db"))
+	sort.Sort(sort.Reverse(sort.StringSlice(names)))
+	for _, n := range names {
+		if storage.VerifyFile(n) == nil {
+			return n
+		}
+	}
+	return ""
 }
 
 // parseInterleaved lets flags follow positional arguments

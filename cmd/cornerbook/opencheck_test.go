@@ -1,0 +1,86 @@
+package main
+
+import (
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"cornerbook/storage"
+)
+
+// TestServe_RefusesADamagedFile: a hub pointed at a damaged data file
+// exits within 2 s, serving nothing, with plain words naming the newest
+// sound snapshot and the restore command; running that command brings
+// the camp back.
+func TestServe_RefusesADamagedFile(t *testing.T) {
+	m := mustRunMain(t, true)
+	dir := m.Config.DataDir
+	require.NoError(t, m.Close())
+	snaps := filepath.Join(dir, snapshotDir)
+	os.RemoveAll(snaps)
+	db, err := storage.Open(dataPath(dir), storage.Options{})
+	require.NoError(t, err)
+	_, err = storage.Snapshot(db, snaps, "2026-11-30", SnapshotsKept)
+	require.NoError(t, err)
+	_, err = storage.Snapshot(db, snaps, "2026-12-01", SnapshotsKept)
+	require.NoError(t, err)
+	require.NoError(t, db.Close())
+	_, original, _ := runCmd(t, "", "export", "--data", dir)
+	// The newest snapshot is itself cut short: the advice skips it.
+	newest := filepath.Join(snaps, storage.SnapshotName("2026-12-01"))
+	raw, err := os.ReadFile(newest)
+	require.NoError(t, err)
+	require.NoError(t, os.WriteFile(newest, raw[:len(raw)/2], 0o600))
+	good := filepath.Join(snaps, storage.SnapshotName("2026-11-30"))
+
+	// The data file loses its second half.
+	live, err := os.ReadFile(dataPath(dir))
+	require.NoError(t, err)
+	require.NoError(t, os.WriteFile(dataPath(dir), live[:len(live)/2], 0o600))
+
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	start := time.Now()
+	var out, errb strings.Builder
+	code := Run(ctx, []string{"serve", "--data", dir, "--addr", "127.0.0.1:0", "--http-addr", "127.0.0.1:0"}, strings.NewReader(""), &out, &errb)
+	took := time.Since(start)
+	assert.Equal(t, 1, code)
+	assert.Less(t, took, 2*time.Second, "the refusal took %v", took)
+	msg := errb.String()
+	assert.NotContains(t, out.String(), "running")
+	assert.Contains(t, msg, "failed its check")
+	assert.Contains(t, msg, "cut short")
+	assert.Contains(t, msg, "The newest sound snapshot is "+good)
+	cmdLine := "cornerbook restore --data " + dir + " " + good
+	require.Contains(t, msg, cmdLine)
+	if names, _ := filepath.Glob(filepath.Join(snaps, "*")); len(names) != 2 {
+		t.Fatalf("snapshots after the refusal: %v", names)
+	}
+
+	// The advised command works on the damaged folder.
+	code, _, stderr := runCmd(t, "", strings.Fields(cmdLine)[1:]...)
+	require.Equal(t, 0, code, stderr)
+	_, restored, _ := runCmd(t, "", "export", "--data", dir)
+	assert.Equal(t, original, restored)
+}
+
+// TestServe_RefusesAnEmptyFile: a zero-byte data file is not
+// taken for a new camp.
+func TestServe_RefusesAnEmptyFile(t *testing.T) {
+	dir := t.TempDir()
+	require.NoError(t, os.WriteFile(dataPath(dir), nil, 0o600))
+	code, out, stderr := runCmd(t, "", "serve", "--data", dir, "--addr", "127.0.0.1:0", "--http-addr", "127.0.0.1:0")
+	assert.Equal(t, 1, code)
+	assert.NotContains(t, out, "running")
+	assert.Contains(t, stderr, "the file is empty")
+	assert.Contains(t, stderr, "No sound snapshot was found")
+	st, err := os.Stat(dataPath(dir))
+	require.NoError(t, err)
+	assert.Zero(t, st.Size(), "the empty file was initialised over")
+}
