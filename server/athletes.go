@@ -59,11 +59,20 @@ func (s *Server) handleSeries(w http.ResponseWriter, r *http.Request) error {
 
 // handleDefaultPlan generates the step-loading plan for a camp.
 func (s *Server) handleDefaultPlan(w http.ResponseWriter, r *http.Request) error {
-	if _, err := s.authorize(r, accessRead); err != nil {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
 		return err
 	}
 	q := r.URL.Query()
-	weeks, err := plan.DefaultWeeksFor(q.Get("camp_start"), q.Get("bout_day"), s.flags.settingsFor(q.Get("athlete")))
+	athlete := q.Get("athlete")
+	if who.Role == "athlete" && athlete != "" && athlete != who.Athlete {
+		return userError(devsync.CodeForbidden, "athlete", "this device may only see its own athlete's plan")
+	}
+	th, err := s.flags.settingsFor(athlete)
+	if err != nil {
+		return err
+	}
+	weeks, err := plan.DefaultWeeksFor(q.Get("camp_start"), q.Get("bout_day"), th)
 	if err != nil {
 		if e := fromField(err); e != nil {
 			e.Field = trimBody(e.Field)
@@ -95,7 +104,8 @@ type PlanCheck struct {
 // handleCheckPlan explains a bout's plan before it is saved: the record
 // rules first, then the plan's own checks.
 func (s *Server) handleCheckPlan(w http.ResponseWriter, r *http.Request) error {
-	if _, err := s.authorize(r, accessRead); err != nil {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
 		return err
 	}
 	var req struct {
@@ -104,6 +114,9 @@ func (s *Server) handleCheckPlan(w http.ResponseWriter, r *http.Request) error {
 	}
 	if err := decodeStrict(w, r, 64<<10, &req); err != nil {
 		return err
+	}
+	if who.Role == "athlete" && req.Athlete != "" && req.Athlete != who.Athlete {
+		return userError(devsync.CodeForbidden, "athlete", "this device may only see its own athlete's plan")
 	}
 	var out PlanCheck
 	probe := devsync.Record{ID: "01000000-0000-7000-8000-000000000000", Kind: records.KindBout, Athlete: req.Athlete,
@@ -122,7 +135,10 @@ func (s *Server) handleCheckPlan(w http.ResponseWriter, r *http.Request) error {
 	if err := json.Unmarshal(probe.Body, &b); err != nil {
 		return userError(devsync.CodeBadRequest, "bout", fmt.Sprintf("is not a bout: %v", err))
 	}
-	th := s.flags.settingsFor(req.Athlete)
+	th, err := s.flags.settingsFor(req.Athlete)
+	if err != nil {
+		return err
+	}
 	if out.Valid == "" {
 		out.Issues = plan.Check(b, th)
 		if pct, ok := plan.TaperCut(b.Weeks, th); ok {

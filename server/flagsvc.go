@@ -2,6 +2,7 @@ package server
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"net/http"
 	"slices"
@@ -12,6 +13,7 @@ import (
 
 	"cornerbook/server/flags"
 	"cornerbook/server/records"
+	"cornerbook/storage"
 	devsync "cornerbook/sync"
 )
 
@@ -30,9 +32,18 @@ const FlagWindowDays = 120
 type flagService struct {
 	s *Server
 
-	mu       sync.Mutex // guards cache and recs
-	cache    map[string][]flags.Flag
-	cachedAt map[string]time.Time
+	mu sync.Mutex // guards cache, gen and recs
+	// cache holds computed athlete-days, the least recently used dropped
+	// beyond flagCacheSize. Only days whose window holds some of the
+	// athlete's records are cached: any other day (year 0001, 9999) is a
+	// cheap "not enough data yet" answer, computed on each request.
+	cache *flagLRU
+	// gen counts the changes to each athlete's records (genAll to every
+	// athlete's): a computation caches its answer only if no change
+	// arrived while it read, so a request racing a push never leaves the
+	// pre-push answer behind.
+	gen    map[string]uint64
+	genAll uint64
 	// recs holds each athlete's records of the rule kinds, decoded, from
 	// a window start on: a push patches them in place, so recomputing an
 	// athlete after one new record costs the rules, not a re-read.
@@ -56,9 +67,16 @@ var (
 	standDownKinds = []string{records.KindIncident, records.KindClearance}
 )
 
+// flagCacheSize bounds the cached athlete-days: a camp of 50 athletes
+// keeps its last 80 days warm; each entry is a few KiB.
+const flagCacheSize = 4096
+
 func newFlagService(s *Server) *flagService {
-	return &flagService{s: s, cache: map[string][]flags.Flag{}, cachedAt: map[string]time.Time{}, recs: map[string]*athleteRecs{}}
+	return &flagService{s: s, cache: newFlagLRU(flagCacheSize), gen: map[string]uint64{}, recs: map[string]*athleteRecs{}}
 }
+
+// generation is the change count of an athlete's records. f.mu must be held.
+func (f *flagService) generation(id string) uint64 { return f.genAll + f.gen[id] }
 
 // history returns an athlete's records for the rules on day: windowed
 // kinds in [from, day], incidents and clearances up to day. Recent days
@@ -66,6 +84,7 @@ func newFlagService(s *Server) *flagService {
 func (f *flagService) history(id, from, day string) ([]devsync.Record, error) {
 	f.mu.Lock()
 	c := f.recs[id]
+	g := f.generation(id)
 	f.mu.Unlock()
 	if c == nil || c.from > from {
 		start := from
@@ -91,9 +110,12 @@ func (f *flagService) history(id, from, day string) ([]devsync.Record, error) {
 		}
 		c = loaded
 		f.mu.Lock()
-		if cur := f.recs[id]; cur == nil || cur.from > c.from {
+		// A push that arrived while the store was read is not in what
+		// was read: keep it out of the cache (the answer is still the
+		// one of the moment the read began).
+		if cur := f.recs[id]; (cur == nil || cur.from > c.from) && f.generation(id) == g {
 			f.recs[id] = c
-		} else {
+		} else if cur != nil && cur.from <= from {
 			c = cur
 		}
 		f.mu.Unlock()
@@ -143,31 +165,57 @@ func (f *flagService) patch(r devsync.Record) {
 
 func cacheKey(athlete, day string) string { return athlete + "|" + day }
 
-// location is the camp's time zone: the camp-wide setting, else the hub's.
-func (f *flagService) location() *time.Location {
-	st := f.campSettings()
-	if st.TimeZone != "" {
-		if loc, err := time.LoadLocation(st.TimeZone); err == nil {
-			return loc
-		}
+// zone is the camp's time zone: the camp-wide setting, else the hub's.
+func (f *flagService) zone() (*time.Location, error) {
+	st, err := f.campSettings()
+	if err != nil {
+		return nil, err
 	}
-	return f.s.cfg.Location
+	if st.TimeZone != "" {
+		loc, err := time.LoadLocation(st.TimeZone)
+		if err != nil {
+			return nil, fmt.Errorf("the camp's time zone %q: %w", st.TimeZone, err)
+		}
+		return loc, nil
+	}
+	return f.s.cfg.Location, nil
 }
 
-func (f *flagService) campSettings() records.Settings {
+// location is zone for callers that must have a day (the status, the
+// default day of a request): a failed read is logged and the hub's own
+// zone used; the flags themselves use zone and fail instead.
+func (f *flagService) location() *time.Location {
+	loc, err := f.zone()
+	if err != nil {
+		f.s.logf("camp time zone: %v", err)
+		return f.s.cfg.Location
+	}
+	return loc
+}
+
+// latestSettings decodes the newest settings record of athlete ("" for
+// the camp's); none stored is the zero Settings.
+func (f *flagService) latestSettings(athlete string) (records.Settings, error) {
 	var out records.Settings
 	var latest devsync.Record
-	f.s.store.Range("", records.KindSettings, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
+	err := f.s.store.Range(athlete, records.KindSettings, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
 		if latest.ID == "" || r.Stamp.Compare(latest.Stamp) > 0 {
 			latest = r
 		}
 		return nil
 	})
-	if latest.ID != "" {
-		json.Unmarshal(latest.Body, &out)
+	if err != nil {
+		return out, fmt.Errorf("read the settings: %w", err)
 	}
-	return out
+	if latest.ID != "" {
+		if err := json.Unmarshal(latest.Body, &out); err != nil {
+			return out, fmt.Errorf("the settings record %s is unreadable: %w", latest.ID, err)
+		}
+	}
+	return out, nil
 }
+
+func (f *flagService) campSettings() (records.Settings, error) { return f.latestSettings("") }
 
 // Today is the camp's current local day.
 func (f *flagService) Today() string { return f.s.now().In(f.location()).Format("2006-01-02") }
@@ -231,25 +279,52 @@ func (f *flagService) Day(day, athlete string) ([]flags.Flag, error) {
 func (f *flagService) forAthlete(id, day string) ([]flags.Flag, error) {
 	k := cacheKey(id, day)
 	f.mu.Lock()
-	fl, ok := f.cache[k]
-	at := f.cachedAt[k]
+	e, ok := f.cache.get(k)
+	g := f.generation(id)
 	f.mu.Unlock()
 	// Today's flags also depend on the clock (the check-in hour): they are
 	// reused for at most todayTTL.
-	if ok && (day != f.Today() || f.s.now().Sub(at) < todayTTL) {
-		return fl, nil
+	if ok && (day != f.Today() || f.s.now().Sub(e.at) < todayTTL) {
+		return e.flags, nil
 	}
 	in, err := f.input(id, day)
 	if err != nil {
 		return nil, err
 	}
-	fl = flags.Compute(in)
+	if testHookFlagsRead != nil {
+		testHookFlagsRead(id, day)
+	}
+	fl := flags.Compute(in)
+	if !inWindow(in.Records, day) {
+		return fl, nil // outside the athlete's records: not worth a cache entry
+	}
 	f.mu.Lock()
-	f.cache[k] = fl
-	f.cachedAt[k] = f.s.now()
+	if f.generation(id) == g {
+		f.cache.put(k, id, fl, f.s.now())
+	}
 	f.mu.Unlock()
 	return fl, nil
 }
+
+// inWindow reports whether any of the records lies in the rules' window
+// of day (a stand-down read in full may lie before it): a day with none
+// is outside the athlete's records, and its flags say "not enough data".
+func inWindow(recs []devsync.Record, day string) bool {
+	from, err := addDays(day, -flagWindowDays)
+	if err != nil {
+		return false
+	}
+	for i := range recs {
+		if recs[i].Day >= from {
+			return true
+		}
+	}
+	return false
+}
+
+// testHookFlagsRead, when set by a test, runs after a computation has read
+// its inputs and before it caches its answer.
+var testHookFlagsRead func(athlete, day string)
 
 // todayTTL is how long today's flags are reused before the clock is
 // consulted again.
@@ -268,9 +343,10 @@ func (f *flagService) refreshToday() {
 	for _, a := range ath {
 		k := cacheKey(a.ID, today)
 		f.mu.Lock()
-		old, had := f.cache[k]
-		delete(f.cache, k)
+		e, had := f.cache.get(k)
+		f.cache.remove(k)
 		f.mu.Unlock()
+		old := e.flags
 		now, err := f.forAthlete(a.ID, today)
 		if err == nil && had && !sameFlags(old, now) {
 			changed = true
@@ -298,6 +374,9 @@ func (f *flagService) run(stop <-chan struct{}) {
 // input gathers one athlete's records for the rules.
 func (f *flagService) input(id, day string) (flags.Input, error) {
 	ath, err := f.s.store.Get(id)
+	if err != nil && !errors.Is(err, storage.ErrNotFound) {
+		return flags.Input{}, fmt.Errorf("read athlete %s: %w", id, err)
+	}
 	if err != nil || ath.Deleted || ath.Kind != records.KindAthlete {
 		return flags.Input{}, userError(CodeNotFound, "athlete", fmt.Sprintf("no athlete with id %q", id))
 	}
@@ -305,7 +384,11 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 	if err != nil {
 		return flags.Input{}, err
 	}
-	in := flags.Input{Day: day, Now: f.s.now(), Location: f.location(), Athlete: ath}
+	loc, err := f.zone()
+	if err != nil {
+		return flags.Input{}, err
+	}
+	in := flags.Input{Day: day, Now: f.s.now(), Location: loc, Athlete: ath}
 	recs, err := f.history(id, from, day)
 	if err != nil {
 		return in, err
@@ -315,10 +398,10 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 	// else the latest before it.
 	var best *devsync.Record
 	var bestDay string
-	f.s.store.Range(id, records.KindBout, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
+	err = f.s.store.Range(id, records.KindBout, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
 		var b records.Bout
-		if json.Unmarshal(r.Body, &b) != nil {
-			return nil
+		if err := json.Unmarshal(r.Body, &b); err != nil {
+			return fmt.Errorf("the bout record %s is unreadable: %w", r.ID, err)
 		}
 		r2 := r
 		switch {
@@ -331,27 +414,30 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 		}
 		return nil
 	})
+	if err != nil {
+		return in, err
+	}
 	in.Bout = best
-	in.Settings = f.settingsFor(id)
+	if in.Settings, err = f.settingsFor(id); err != nil {
+		return in, err
+	}
 	return in, nil
 }
 
 // settingsFor merges the defaults, the camp-wide settings and the
 // athlete's own, later layers winning.
-func (f *flagService) settingsFor(id string) map[string]map[string]float64 {
-	camp := f.campSettings()
-	var own records.Settings
-	var latest devsync.Record
-	f.s.store.Range(id, records.KindSettings, "0000-01-01", "9999-12-31", func(r devsync.Record) error {
-		if latest.ID == "" || r.Stamp.Compare(latest.Stamp) > 0 {
-			latest = r
-		}
-		return nil
-	})
-	if latest.ID != "" {
-		json.Unmarshal(latest.Body, &own)
+func (f *flagService) settingsFor(id string) (map[string]map[string]float64, error) {
+	camp, err := f.campSettings()
+	if err != nil {
+		return nil, err
 	}
-	return records.Resolve(camp.Layer(), own.Layer())
+	var own records.Settings
+	if id != "" {
+		if own, err = f.latestSettings(id); err != nil {
+			return nil, err
+		}
+	}
+	return records.Resolve(camp.Layer(), own.Layer()), nil
 }
 
 // Changed drops cached flags of the athletes the records touch and
@@ -373,6 +459,12 @@ func (f *flagService) Changed(recs []devsync.Record) {
 	}
 	prev := map[string][]flags.Flag{}
 	f.mu.Lock()
+	if all {
+		f.genAll++
+	}
+	for a := range touched {
+		f.gen[a]++
+	}
 	for _, r := range recs {
 		f.patch(r)
 		if r.Kind == records.KindAthlete {
@@ -380,18 +472,14 @@ func (f *flagService) Changed(recs []devsync.Record) {
 		}
 	}
 	for a := range touched {
-		if fl, ok := f.cache[cacheKey(a, today)]; ok {
-			prev[a] = fl
+		if e, ok := f.cache.get(cacheKey(a, today)); ok {
+			prev[a] = e.flags
 		}
 	}
 	if all {
-		f.cache = map[string][]flags.Flag{}
+		f.cache.clear()
 	} else {
-		for k := range f.cache {
-			if i := strings.IndexByte(k, '|'); i > 0 && touched[k[:i]] {
-				delete(f.cache, k)
-			}
-		}
+		f.cache.removeAthletes(touched)
 	}
 	f.mu.Unlock()
 	if all || otherDay {
@@ -510,7 +598,7 @@ func (s *Server) AthleteNames() map[string]string {
 // DropFlagCache empties the flag cache (benchmarks of the cold path).
 func (s *Server) DropFlagCache() {
 	s.flags.mu.Lock()
-	s.flags.cache = map[string][]flags.Flag{}
+	s.flags.cache.clear()
 	s.flags.recs = map[string]*athleteRecs{}
 	s.flags.athletes = nil
 	s.flags.mu.Unlock()
