@@ -15,4 +15,3 @@ func (s *Server) FlagCacheLen() int {
 	defer s.flags.mu.Unlock()
 	return s.flags.cache.len()
 }
-
