@@ -80,6 +80,8 @@ type weekBody struct {
 	Week          int    `json:"week"`
 	Level         string `json:"level"`
 	SparCapRounds *int   `json:"spar_cap_rounds"`
+	SparRounds    *int   `json:"spar_rounds"` // stands over SparCapRounds
+	HardRounds    *int   `json:"hard_rounds"`
 }
 
 type boutBody struct {

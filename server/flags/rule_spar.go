@@ -42,11 +42,24 @@ func (e *engine) sparDensity() {
 	}
 	capRounds, capName := e.param(rule, "cap_rounds"), rule+".cap_rounds"
 	capWords := "the cap"
+	hardCap, hardName := e.param(rule, "hard_cap_rounds"), rule+".hard_cap_rounds"
+	hardWords := "the hard-round cap"
 	if p := e.bout; p != nil {
 		if k, _, ok := p.week(e.today); ok {
-			if w, ok := p.weekByIndex[k]; ok && w.SparCapRounds != nil {
-				capRounds, capName = float64(*w.SparCapRounds), fmt.Sprintf("bout.weeks[%d].spar_cap_rounds", k)
-				capWords = fmt.Sprintf("week %d's planned cap", k)
+			if w, ok := p.weekByIndex[k]; ok {
+				// The week's planned rounds stand over the older flat cap.
+				switch {
+				case w.SparRounds != nil:
+					capRounds, capName = float64(*w.SparRounds), fmt.Sprintf("bout.weeks[%d].spar_rounds", k-1)
+					capWords = fmt.Sprintf("week %d's planned rounds", k)
+				case w.SparCapRounds != nil:
+					capRounds, capName = float64(*w.SparCapRounds), fmt.Sprintf("bout.weeks[%d].spar_cap_rounds", k)
+					capWords = fmt.Sprintf("week %d's planned cap", k)
+				}
+				if w.HardRounds != nil {
+					hardCap, hardName = float64(*w.HardRounds), fmt.Sprintf("bout.weeks[%d].hard_rounds", k-1)
+					hardWords = fmt.Sprintf("week %d's planned hard rounds", k)
+				}
 			}
 		}
 	}
@@ -68,11 +81,11 @@ func (e *engine) sparDensity() {
 			Details: map[string]float64{"hard_rounds": float64(hard)},
 			Reason:  fmt.Sprintf("%s in the %d days ending today, over %s of %s.", count(all, "sparring round", "sparring rounds"), window, capWords, num(capRounds, 0))})
 	}
-	if hardCap := e.param(rule, "hard_cap_rounds"); float64(hard) > hardCap {
+	if float64(hard) > hardCap {
 		raised = true
 		e.add(Flag{Rule: rule, Level: LevelWatch, Title: "Hard sparring rounds over the cap", Value: f64(float64(hard)), Threshold: f64(hardCap),
-			ThresholdName: rule + ".hard_cap_rounds", Unit: "hard rounds", Inputs: ids,
-			Reason: fmt.Sprintf("%s in the %d days ending today, over the hard-round cap of %s.", count(hard, "hard sparring round", "hard sparring rounds"), window, num(hardCap, 0))})
+			ThresholdName: hardName, Unit: "hard rounds", Inputs: ids,
+			Reason: fmt.Sprintf("%s in the %d days ending today, over %s of %s.", count(hard, "hard sparring round", "hard sparring rounds"), window, hardWords, num(hardCap, 0))})
 	}
 	if !raised && e.historyDays() < window {
 		e.forming(rule, "Sparring count forming", fmt.Sprintf("Sparring count forming: %s so far, with %s of %d on record.",

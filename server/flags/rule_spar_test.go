@@ -65,6 +65,37 @@ func TestSparDensityWeekCapAndForming(t *testing.T) {
 	wantLevel(t, f, LevelInfo, StatusForming)
 }
 
+// A week's planned sparring rounds stand over the older flat cap, and its
+// planned hard rounds over the hard-round default (the coach's plan is the
+// reference; common practice, no source).
+func TestSparDensityPlannedRounds(t *testing.T) {
+	c := &camp{}
+	c.standardBout(map[string]any{"weeks": []map[string]any{
+		{"week": 1, "level": "medium"},
+		{"week": 2, "level": "heavy", "spar_cap_rounds": 30, "spar_rounds": 12, "hard_rounds": 4}}})
+	c.rounds(d(9), 8, 2)
+	c.rounds(d(10), 5, 3) // 13 rounds, 5 of them hard
+	fs := rule(c.run(d(10)), RuleSparDensity)
+	got := map[string]float64{}
+	for _, f := range fs {
+		got[f.ThresholdName] = *f.Threshold
+	}
+	if got["bout.weeks[1].spar_rounds"] != 12 || got["bout.weeks[1].hard_rounds"] != 4 || len(fs) != 2 {
+		t.Fatalf("want the planned 12 rounds and 4 hard rounds as caps, got %s", describe(fs))
+	}
+	// Under both: nothing.
+	c = &camp{}
+	c.standardBout(map[string]any{"weeks": []map[string]any{
+		{"week": 1, "level": "medium"},
+		{"week": 2, "level": "heavy", "spar_rounds": 14, "hard_rounds": 6}}})
+	c.mass(d(0), 70)
+	c.rounds(d(9), 8, 2)
+	c.rounds(d(10), 5, 3)
+	if fs := rule(c.run(d(10)), RuleSparDensity); len(fs) != 0 {
+		t.Fatalf("13 rounds (5 hard) inside a plan of 14 (6 hard): %s", describe(fs))
+	}
+}
+
 func TestSparSpacing(t *testing.T) {
 	hardOn := func(days ...int) *camp {
 		c := &camp{}

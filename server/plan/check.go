@@ -2,8 +2,6 @@ package plan
 
 import (
 	"fmt"
-	"slices"
-	"strings"
 
 	"cornerbook/server/flags"
 	"cornerbook/server/flags/day"
@@ -35,9 +33,13 @@ const GartheSlowPctWeek = 0.7
 // force (nil for the defaults). Issues are prompts for the coach's
 // judgement; body-mass issues carry flags.CautionMass.
 func Check(b records.Bout, th map[string]map[string]float64) []Issue {
+	return CheckWith(b, th, Context{})
+}
+
+func check(b records.Bout, th map[string]map[string]float64) []Issue {
 	var out []Issue
-	add := func(field, level, threshold, format string, args ...any) {
-		out = append(out, Issue{Field: field, Level: level, Threshold: threshold, Message: fmt.Sprintf(format, args...)})
+	add := func(check, field, level, threshold, format string, args ...any) {
+		out = append(out, Issue{Check: check, Field: field, Level: level, Threshold: threshold, Message: fmt.Sprintf(format, args...)})
 	}
 	start, bout, err := campDays(b.CampStart, b.BoutDay)
 	if err != nil {
@@ -45,13 +47,13 @@ func Check(b records.Bout, th map[string]map[string]float64) []Issue {
 		if _, perr := day.Parse(b.CampStart); perr != nil {
 			field = "body.camp_start"
 		}
-		add(field, LevelWatch, "", "The camp dates cannot be read (%s); the plan cannot be checked until they are fixed.", err.Error())
+		add(CheckCampDates, field, LevelWatch, "", "The camp dates cannot be read (%s); the plan cannot be checked until they are fixed.", err.Error())
 		return out
 	}
 	need := WeeksFor(start, bout)
 	trainingDays := int(bout - start)
 	if need < UsualMinWeeks || need > UsualMaxWeeks {
-		add("body.bout_day", LevelInfo, "", "The camp has %d training days (%d weeks, %s to %s); a fight camp is usually %d–%d weeks.",
+		add(CheckCampLength, "body.bout_day", LevelInfo, "", "The camp has %d training days (%d weeks, %s to %s); a fight camp is usually %d–%d weeks.",
 			trainingDays, need, b.CampStart, (bout - 1).String(), UsualMinWeeks, UsualMaxWeeks)
 	}
 	out = append(out, checkWeeks(b, start, bout, need, th)...)
@@ -61,13 +63,13 @@ func Check(b records.Bout, th map[string]map[string]float64) []Issue {
 
 func checkWeeks(b records.Bout, start, bout day.Number, need int, th map[string]map[string]float64) []Issue {
 	var out []Issue
-	add := func(field, level, threshold, format string, args ...any) {
-		out = append(out, Issue{Field: field, Level: level, Threshold: threshold, Message: fmt.Sprintf(format, args...)})
+	add := func(check, field, level, threshold, format string, args ...any) {
+		out = append(out, Issue{Check: check, Field: field, Level: level, Threshold: threshold, Message: fmt.Sprintf(format, args...)})
 	}
 	ws := b.Weeks
 	if len(ws) == 0 {
 		if def, err := DefaultWeeksFor(b.CampStart, b.BoutDay, th); err == nil {
-			add("body.weeks", LevelInfo, "", "No week plan yet: the load of each week cannot be compared with a plan, and sparring is capped at the default %d rounds a week. The default plan for this camp is %s.",
+			add(CheckWeeksCover, "body.weeks", LevelInfo, "", "No week plan yet: the load of each week cannot be compared with a plan, and sparring is capped at the default %d rounds a week. The default plan for this camp is %s.",
 				SparCap("heavy", th), levelNames(def))
 		}
 		return out
@@ -79,17 +81,18 @@ func checkWeeks(b records.Bout, start, bout day.Number, need int, th map[string]
 		for k := len(ws) + 1; k <= need; k++ {
 			missing = append(missing, k)
 		}
-		add("body.weeks", LevelWatch, "", "The plan has %d weeks but the camp has %d (%s to %s): %s, from %s, %s no planned level or sparring cap.",
+		add(CheckWeeksCover, "body.weeks", LevelWatch, "", "The plan has %d weeks but the camp has %d (%s to %s): %s, from %s, %s no planned level or sparring cap.",
 			len(ws), need, b.CampStart, (bout - 1).String(), weekList(missing), (start + day.Number(7*len(ws))).String(), hasHave(len(missing)))
 	case len(ws) > maxWeeks:
-		add("body.weeks", LevelWatch, "", "The plan has %d weeks but the camp has %d; week %d would start on %s, after the bout on %s.",
+		add(CheckWeeksCover, "body.weeks", LevelWatch, "", "The plan has %d weeks but the camp has %d; week %d would start on %s, after the bout on %s.",
 			len(ws), need, maxWeeks+1, (start + day.Number(7*maxWeeks)).String(), b.BoutDay)
 	}
 	// Long stretches of loading without a lighter week.
 	run, from := 0, 0
 	flush := func(upto int) {
-		if run > MaxBuildWeeks {
-			add(fmt.Sprintf("body.weeks[%d].level", from-1), LevelInfo, "", "Weeks %d to %d build load for %d weeks in a row without a lighter week; the default plan puts a low week every fourth week.",
+		intoTaper := upto < len(ws) && ws[upto].Level == "taper"
+		if run > MaxBuildWeeks && !(intoTaper && run == MaxBuildWeeks+1) {
+			add(CheckBuildRun, fmt.Sprintf("body.weeks[%d].level", from-1), LevelInfo, "", "Weeks %d to %d build load for %d weeks in a row without a lighter week; the default plan puts a low week every fourth week.",
 				from, upto, run)
 		}
 		run = 0
@@ -106,45 +109,17 @@ func checkWeeks(b records.Bout, start, bout day.Number, need int, th map[string]
 		}
 	}
 	flush(len(ws))
-	// The taper.
-	minCut := param(th, records.RuleOffPlan, "taper_min_pct")
-	maxCut := param(th, records.RuleOffPlan, "taper_max_pct")
-	var tapers []int
+	out = append(out, checkTaper(b, bout, th)...)
 	for i, w := range ws {
-		if w.Level == "taper" {
-			tapers = append(tapers, i+1)
+		if w.Level != "rest" {
+			continue
 		}
-	}
-	last := ws[len(ws)-1]
-	switch {
-	case len(tapers) == 0:
-		add(fmt.Sprintf("body.weeks[%d].level", len(ws)-1), LevelInfo, "", "No taper week: the last planned week (week %d) is %s. A taper cutting load by %.0f–%.0f %% with intensity kept worked best before competition (Bosquet et al. 2007).",
-			len(ws), strings.ReplaceAll(last.Level, "_", "-"), minCut, maxCut)
-	case !slices.Contains(tapers, min(len(ws), need)) && !slices.Contains(tapers, len(ws)):
-		add(fmt.Sprintf("body.weeks[%d].level", len(ws)-1), LevelInfo, "", "The taper is planned in %s, not in the final week (%s, planned %s).",
-			weekList(tapers), fmt.Sprintf("week %d", len(ws)), last.Level)
-	}
-	if cut, ok := TaperCut(ws, th); ok && (cut < minCut || cut > maxCut) {
-		name, word := "taper_min_pct", "less"
-		if cut > maxCut {
-			name, word = "taper_max_pct", "more"
-		}
-		msg := fmt.Sprintf("The taper cuts load by %.0f %% of the reference week, %s than the %.0f–%.0f %% that worked best (Bosquet et al. 2007).", cut, word, minCut, maxCut)
-		if ref := b.ReferenceLoadAU; ref > 0 {
-			lo, hi := flags.TaperBand(ref, minCut, maxCut)
-			frac := param(th, records.RuleOffPlan, "level_taper")
-			msg = fmt.Sprintf("The taper plans %.0f AU, a %.0f %% cut from the %.0f AU reference week, %s than the %.0f–%.0f %% (%.0f–%.0f AU) that worked best (Bosquet et al. 2007).",
-				frac*ref, cut, ref, word, minCut, maxCut, lo, hi)
-		}
-		add(fmt.Sprintf("body.weeks[%d].level", tapers[0]-1), LevelWatch, records.RuleOffPlan+"."+name, "%s", msg)
-	}
-	for i, w := range ws {
-		if w.Level == "rest" && w.SparCapRounds != nil && *w.SparCapRounds > 0 {
-			add(fmt.Sprintf("body.weeks[%d].spar_cap_rounds", i), LevelInfo, "", "Week %d is a rest week but allows %d sparring rounds.", i+1, *w.SparCapRounds)
+		if r, field := plannedRounds(w); r > 0 {
+			add(CheckRestSpar, fmt.Sprintf("body.weeks[%d].%s", i, field), LevelInfo, "", "Week %d is a rest week but plans %d sparring rounds.", i+1, r)
 		}
 	}
 	if b.ReferenceLoadAU <= 0 {
-		add("body.reference_load_au", LevelInfo, "", "No reference weekly load: each week's load cannot be compared with its planned level. Enter the fighter's habitual weekly load (AU, session RPE × minutes summed over a normal week).")
+		add(CheckReferenceLoad, "body.reference_load_au", LevelInfo, "", "No reference weekly load: each week's load cannot be compared with its planned level. Enter the fighter's habitual weekly load (AU, session RPE × minutes summed over a normal week).")
 	}
 	return out
 }
@@ -186,24 +161,24 @@ func Segments(path []flags.Knot, weighIn day.Number, finalDays int) []Segment {
 
 func checkMass(b records.Bout, start day.Number, th map[string]map[string]float64) []Issue {
 	var out []Issue
-	add := func(field, level, threshold, format string, args ...any) {
-		out = append(out, Issue{Field: field, Level: level, Threshold: threshold, Caution: flags.CautionMass, Message: fmt.Sprintf(format, args...)})
+	add := func(check, field, level, threshold, format string, args ...any) {
+		out = append(out, Issue{Check: check, Field: field, Level: level, Threshold: threshold, Caution: flags.CautionMass, Message: fmt.Sprintf(format, args...)})
 	}
 	if b.LimitKg <= 0 {
-		add("body.limit_kg", LevelInfo, "", "No upper mass limit for this class: the planned path and the mass rules do not apply.")
+		add(CheckPathNone, "body.limit_kg", LevelInfo, "", "No upper mass limit for this class: the planned path and the mass rules do not apply.")
 		return out
 	}
 	wi, ok := weighInDay(b)
 	if !ok || wi < start {
-		add("body.weigh_in", LevelWatch, "", "The weigh-in date cannot be read or is before the camp start; the mass plan cannot be checked.")
+		add(CheckPathNone, "body.weigh_in", LevelWatch, "", "The weigh-in date cannot be read or is before the camp start; the mass plan cannot be checked.")
 		return out
 	}
 	if b.StartMassKg <= 0 {
-		add("body.start_mass_kg", LevelWatch, "", "No start mass: the planned path cannot be drawn.")
+		add(CheckPathNone, "body.start_mass_kg", LevelWatch, "", "No start mass: the planned path cannot be drawn.")
 		return out
 	}
 	if b.StartMassKg <= b.LimitKg {
-		add("body.start_mass_kg", LevelInfo, "", "The start mass of %.1f kg is at or below the %.2f kg limit: no loss is planned; the path holds the start mass.",
+		add(CheckPathFlat, "body.start_mass_kg", LevelInfo, "", "The start mass of %.1f kg is at or below the %.2f kg limit: no loss is planned; the path holds the start mass.",
 			b.StartMassKg, b.LimitKg)
 	} else if f := factor(b, th); len(b.Path) == 0 && b.LimitKg*f > b.StartMassKg {
 		name := "factor_day_before"
@@ -211,7 +186,7 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 			name = "factor_same_day"
 		}
 		finalDays := param(th, records.RuleMassAbovePath, "final_days")
-		add("body.start_mass_kg", LevelInfo, records.RuleMassAbovePath+"."+name,
+		add(CheckPathFlat, "body.start_mass_kg", LevelInfo, records.RuleMassAbovePath+"."+name,
 			"The limit × %.2f (%.1f kg), where the default path starts its final %.0f days, is above the start mass of %.1f kg: the path holds %.1f kg until %s and then goes to the limit.",
 			f, b.LimitKg*f, finalDays, b.StartMassKg, b.StartMassKg, (wi - day.Number(finalDays)).String())
 	}
@@ -236,7 +211,7 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 		}
 		weeks := float64(s.To-s.From) / 7
 		slow := flags.WeeksNeeded(s.FromKg, s.ToKg, GartheSlowPctWeek)
-		add(field, level, records.RuleMassLossFast+"."+name,
+		add(CheckPathRate, field, level, records.RuleMassLossFast+"."+name,
 			"The planned path falls from %.1f kg on %s to %.1f kg on %s: %.2f %% of body mass a week (%.2f kg a week over %.1f weeks), %.2f %%/week above the %.1f %%/week level of the fast-loss rule. "+
 				"At %.1f %%/week, which preserved lean mass better than 1.4 %%/week (Garthe et al. 2011), this loss takes %.1f weeks. Review the timeline, the weight class and the plan with the dietitian.",
 			s.FromKg, s.From, s.ToKg, s.To, s.PctWeek, (s.FromKg-s.ToKg)/weeks, weeks, s.PctWeek-thr, thr, GartheSlowPctWeek, slow)
@@ -260,13 +235,13 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 			if drop > ca {
 				name, thr = "alert_pct_"+suffix, ca
 			}
-			add(field, LevelWatch, records.RuleCutAtRisk+"."+name,
+			add(CheckPathFinalWeek, field, LevelWatch, records.RuleCutAtRisk+"."+name,
 				"The path plans %.1f kg (%.1f %% of body mass) of loss in the final %d days, from %.1f kg on %s to %.1f kg at the weigh-in on %s, above %.0f %% for a %s weigh-in. Any acute loss must be planned and supervised by a sports dietitian or physician.",
 				kneeKg-endKg, drop, int(wi-finalStart), kneeKg, finalStart, endKg, wi, thr, kind)
 		}
 	}
 	if endKg > b.LimitKg+0.005 {
-		add(field, LevelWatch, "", "The planned path ends at %.1f kg on the weigh-in day %s, %.1f kg above the %.2f kg limit.", endKg, wi, endKg-b.LimitKg, b.LimitKg)
+		add(CheckPathEnd, field, LevelWatch, "", "The planned path ends at %.1f kg on the weigh-in day %s, %.1f kg above the %.2f kg limit.", endKg, wi, endKg-b.LimitKg, b.LimitKg)
 	}
 	// Gradual loss at the cut_at_risk rate from the start mass to the final
 	// phase: what would be left for the final days (the rule's view on day 1).
@@ -276,11 +251,23 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 		still := projected - b.LimitKg
 		pct := still / projected * 100
 		if w := param(th, records.RuleCutAtRisk, "watch_pct_"+suffix); pct > w {
-			add("body.start_mass_kg", LevelWatch, records.RuleCutAtRisk+".watch_pct_"+suffix,
+			add(CheckPathFinalWeek, "body.start_mass_kg", LevelWatch, records.RuleCutAtRisk+".watch_pct_"+suffix,
 				"Losing a gradual %.1f %%/week from the %.1f kg start mass reaches %.1f kg by %s, leaving %.1f kg (%.1f %% of body mass) for the final %d days, above %.0f %% for a %s weigh-in. "+
 					"Review the weight class and the timeline with the dietitian and physician; the sanctioning body's rules apply.",
 				rate, b.StartMassKg, projected, finalStart, still, pct, int(wi-finalStart), w, kind)
 		}
 	}
 	return out
+}
+
+// plannedRounds is a week's planned sparring rounds (spar_rounds, else the
+// older spar_cap_rounds) and the field it came from; 0 and "" for none.
+func plannedRounds(w records.Week) (int, string) {
+	switch {
+	case w.SparRounds != nil:
+		return *w.SparRounds, "spar_rounds"
+	case w.SparCapRounds != nil:
+		return *w.SparCapRounds, "spar_cap_rounds"
+	}
+	return 0, ""
 }

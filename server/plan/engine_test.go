@@ -49,7 +49,7 @@ func TestPlanAgreesWithFlagEngine(t *testing.T) {
 		t.Fatal("the engine questions the default plan's taper")
 	}
 	th := records.Resolve(map[string]map[string]float64{records.RuleOffPlan: {"level_taper": 0.75}})
-	if !taperNote(engineFlags(t, b, th, d(3))) || len(issuesOf(plan.Check(b, th), "body.weeks[7].level", plan.LevelWatch)) != 1 {
+	if !taperNote(engineFlags(t, b, th, d(3))) || len(checksOf(plan.Check(b, th), plan.CheckTaperCut)) != 1 {
 		t.Fatal("a 25 % taper is not questioned by both the engine and Check")
 	}
 	for _, same := range []bool{false, true} {

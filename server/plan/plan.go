@@ -50,6 +50,9 @@ const (
 
 // Issue is one thing a coach should look at in a camp plan.
 type Issue struct {
+	// Check is the check's fixed id (first_week_spike, taper_cut, …);
+	// screens show Message, never the id.
+	Check string `json:"check"`
 	// Field is the bout body field the issue is about, as a JSON path in
 	// the form record validation uses ("body.weeks[7].level", "body.path").
 	Field   string `json:"field"`
@@ -146,6 +149,17 @@ func DefaultWeeksFor(campStart, boutDay string, th map[string]map[string]float64
 		return nil, err
 	}
 	n := WeeksFor(start, bout)
+	if n >= GenMinWeeks && n <= GenMaxWeeks {
+		gen, err := Generate(campStart, boutDay, th)
+		if err != nil {
+			return nil, err
+		}
+		weeks := make([]records.Week, len(gen))
+		for i, g := range gen {
+			weeks[i] = g.Week
+		}
+		return weeks, nil
+	}
 	lastDays := int(bout-start) - 7*(n-1) // training days in the final week
 	taperFrom := n
 	if lastDays < MinTaperDays && n > 1 {

@@ -67,9 +67,38 @@ type Knot struct {
 
 // Week is one planned camp week (week 1 starts on camp_start).
 type Week struct {
-	Week          int    `json:"week"`
-	Level         string `json:"level"` // rest, low, medium, medium_heavy, heavy, taper
-	SparCapRounds *int   `json:"spar_cap_rounds,omitempty"`
+	Week  int    `json:"week"`
+	Level string `json:"level"` // rest, low, medium, medium_heavy, heavy, taper
+	// SparCapRounds is the older flat sparring cap; SparRounds, when
+	// given, stands over it.
+	SparCapRounds *int `json:"spar_cap_rounds,omitempty"`
+	// Strength and Conditioning are the week's emphases: ids from
+	// Emphases (the list session focus shares) and the coach's words.
+	Strength     *Emphasis `json:"strength,omitempty"`
+	Conditioning *Emphasis `json:"conditioning,omitempty"`
+	SparRounds   *int      `json:"spar_rounds,omitempty"` // planned sparring rounds
+	HardRounds   *int      `json:"hard_rounds,omitempty"` // planned cap on hard sparring rounds
+	Travel       *Travel   `json:"travel,omitempty"`
+	Note         string    `json:"note,omitempty"`
+}
+
+// Emphasis is what a week's strength or conditioning work aims at. IDs
+// come from Emphases (the rules read only these); Label is the coach's
+// own words, shown instead of the ids' words when given, and may stand
+// alone for an emphasis of the coach's own.
+type Emphasis struct {
+	IDs   []string `json:"ids,omitempty"`
+	Label string   `json:"label,omitempty"`
+}
+
+// Travel is a journey planned in a camp week: departure and arrival as
+// RFC 3339 instants and the IANA zones of both ends, from which the hub
+// reads the clock shift (zone data, never fixed offsets).
+type Travel struct {
+	DepartAt string `json:"depart_at"`
+	ArriveAt string `json:"arrive_at"`
+	FromZone string `json:"from_zone"`
+	ToZone   string `json:"to_zone"`
 }
 
 // Bout is one fighter's bout and camp plan.

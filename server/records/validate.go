@@ -10,15 +10,16 @@ import (
 
 // Enumerations of the record format (PRODUCT.md "Record format").
 var (
-	Units          = []string{"kg", "lb"}
-	Sexes          = []string{"f", "m"}
-	WeighInTypes   = []string{"day_before", "same_day"}
-	Levels         = []string{"rest", "low", "medium", "medium_heavy", "heavy", "taper"}
-	JumpTests      = []string{"cmj"}
-	JumpMethods    = []string{"mat", "force_plate", "other"}
-	Activities     = []string{"spar", "pads", "bag", "drill", "other"}
-	SessionTypes   = []string{"boxing", "spar", "conditioning", "strength", "other"}
-	SessionFocuses = []string{"max_strength", "strength_speed", "speed", "plyometric", "aerobic", "anaerobic", "technical"}
+	Units        = []string{"kg", "lb"}
+	Sexes        = []string{"f", "m"}
+	WeighInTypes = []string{"day_before", "same_day"}
+	Levels       = []string{"rest", "low", "medium", "medium_heavy", "heavy", "taper"}
+	JumpTests    = []string{"cmj"}
+	JumpMethods  = []string{"mat", "force_plate", "other"}
+	Activities   = []string{"spar", "pads", "bag", "drill", "other"}
+	SessionTypes = []string{"boxing", "spar", "conditioning", "strength", "other"}
+	// SessionFocuses are the emphasis ids (Emphases) and "technical".
+	SessionFocuses = append(EmphasisIDs(""), "technical")
 	IncidentTypes  = []string{"head_knock", "knockdown", "stoppage", "knockout", "knockout_loc", "injury"}
 )
 
@@ -268,6 +269,9 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 			if err := betweenInt(field+".spar_cap_rounds", *w.SparCapRounds, 0, MaxSparCap, "sparring rounds"); err != nil {
 				return nil, err
 			}
+		}
+		if err := validateWeek(field, w, start.AddDate(0, 0, 7*i)); err != nil {
+			return nil, err
 		}
 	}
 	return &b, nil

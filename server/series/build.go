@@ -451,10 +451,18 @@ func (b *builder) spar(s *Series) {
 			p.RollingRounds[i] += a
 			p.RollingHard[i] += h
 		}
-		p.CapRounds[i] = capDefault
+		p.CapRounds[i], p.HardCaps[i] = capDefault, p.HardCap
 		if b.bout != nil && b.hasCamp && d >= b.campStart {
-			if w, ok := b.weeks[int(d-b.campStart)/7+1]; ok && w.SparCapRounds != nil {
-				p.CapRounds[i] = *w.SparCapRounds
+			if w, ok := b.weeks[int(d-b.campStart)/7+1]; ok {
+				switch { // the week's planned rounds stand over the older flat cap
+				case w.SparRounds != nil:
+					p.CapRounds[i] = *w.SparRounds
+				case w.SparCapRounds != nil:
+					p.CapRounds[i] = *w.SparCapRounds
+				}
+				if w.HardRounds != nil {
+					p.HardCaps[i] = *w.HardRounds
+				}
 			}
 		}
 	}

@@ -138,9 +138,12 @@ type Sparring struct {
 	// ending the day, the numbers spar_density compares with the caps.
 	RollingRounds []int `json:"rolling_rounds"`
 	RollingHard   []int `json:"rolling_hard_rounds"`
-	// CapRounds is the cap of the day's plan week (bout weeks'
-	// spar_cap_rounds), else spar_density.cap_rounds.
-	CapRounds   []int   `json:"cap_rounds"`
+	// CapRounds is the cap of the day's plan week (the week's planned
+	// spar_rounds, else its spar_cap_rounds), else spar_density.cap_rounds.
+	CapRounds []int `json:"cap_rounds"`
+	// HardCaps is the day's plan week's hard_rounds, else HardCap
+	// (spar_density.hard_cap_rounds).
+	HardCaps    []int   `json:"hard_caps"`
 	HardCap     int     `json:"hard_cap_rounds"`
 	AlertFactor float64 `json:"alert_factor"`
 	WindowDays  int     `json:"window_days"`
@@ -225,7 +228,7 @@ func (s *Series) alloc(n int) {
 	s.Mass = Mass{MorningKg: ptrs(), TrendKg: ptrs(), PathKg: ptrs(), LossPctWeek: ptrs(), Projections: []Projection{}, Caution: flags.CautionMass}
 	s.Jump = Jump{MeanCm: ptrs(), BestCm: ptrs(), BaselineCm: ptrs(), NoisePct: ptrs(), BandLowCm: ptrs(), BandHighCm: ptrs(), TestDays: ints()}
 	s.Load = Load{DailyAU: ptrs(), AcuteAU: ptrs(), ChronicAU: ptrs(), Ratio: ptrs(), WeekLevel: make([]string, n), PlannedWeekAU: ptrs(), Caution: flags.CautionLoad}
-	s.Sparring = Sparring{Rounds: ints(), HardRounds: ints(), RollingRounds: ints(), RollingHard: ints(), CapRounds: ints()}
+	s.Sparring = Sparring{Rounds: ints(), HardRounds: ints(), RollingRounds: ints(), RollingHard: ints(), CapRounds: ints(), HardCaps: ints()}
 	s.Wellness = Wellness{Total: ptrs(), Mean: ptrs(), WatchBelow: ptrs(), AlertBelow: ptrs(), Checkins: ints()}
 }
 

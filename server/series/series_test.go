@@ -85,7 +85,7 @@ func TestBuild_JSONShape(t *testing.T) {
 		"mass":     "caution,limit_kg,loss_pct_week,morning_kg,path_kg,projections,trend_kg",
 		"jump":     "band_high_cm,band_low_cm,baseline_cm,baseline_test_days,best_cm,mean_cm,min_test_days,noise_pct",
 		"load":     "acute_au,caution,chronic_au,daily_au,low_ratio,planned_week_au,ratio,ratio_min_days,watch_ratio,week_level",
-		"sparring": "alert_factor,cap_rounds,hard_cap_rounds,hard_rounds,rolling_hard_rounds,rolling_rounds,rounds,window_days",
+		"sparring": "alert_factor,cap_rounds,hard_cap_rounds,hard_caps,hard_rounds,rolling_hard_rounds,rolling_rounds,rounds,window_days",
 		"wellness": "alert_threshold,baseline_checkins,baseline_mean,min_checkins,total,watch_threshold",
 	}
 	for k, w := range want {
