@@ -46,7 +46,8 @@ type PushResult struct {
 //  5. Options.Prepare for non-deleted records (validation, derived fields;
 //     computed ahead, outside the transaction, and used here when allow
 //     left the record unchanged);
-//  6. last-writer-wins against the stored winner (devsync.Compare, sticky
+//  6. Options.Related for non-deleted records (rules between records);
+//  7. last-writer-wins against the stored winner (devsync.Compare, sticky
 //     deletes): a winner is written with its history, index and a new
 //     change sequence; a loser is kept in the conflicts audit.
 //
@@ -285,6 +286,11 @@ func (p *pusher) apply(m *devsync.Mutation, pre *prepared, allow Allow, res *Pus
 	if stored != nil && stored.Kind != rec.Kind {
 		return rejected, reject(m, devsync.CodeValidation,
 			devsync.Invalid("kind", "this id already belongs to a %s record", stored.Kind)), nil
+	}
+	if !rec.Deleted && p.db.related != nil {
+		if err := p.db.related(&rec, txView{p.tx}); err != nil {
+			return rejected, reject(m, devsync.CodeValidation, err), nil
+		}
 	}
 
 	if !devsync.Wins(&rec, stored) {

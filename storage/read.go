@@ -121,33 +121,43 @@ func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) 
 // first, so Range(athlete, "bout", "", "") and a range with any bounds
 // both find a fighter's bouts. Camp-wide kinds use athlete "".
 func (db *DB) Range(athlete, kind, fromDay, toDay string, fn func(devsync.Record) error) error {
-	return db.bolt.View(func(tx *bolt.Tx) error {
-		records := tx.Bucket(BucketRecords)
-		prefix := []byte(athlete + "|" + kind + "|")
-		c := tx.Bucket(BucketIndex).Cursor()
-		// Day-less keys are prefix + "|" + id; '|' sorts after every
-		// digit, so they are the last of the prefix: read them first.
-		undated := append(bytes.Clone(prefix), '|')
-		for k, _ := c.Seek(undated); k != nil && bytes.HasPrefix(k, undated); k, _ = c.Next() {
-			if err := emit(records, k[len(undated):], fn); err != nil {
-				return err
-			}
+	return db.bolt.View(func(tx *bolt.Tx) error { return rangeTx(tx, athlete, kind, fromDay, toDay, fn) })
+}
+
+// txView is View over one transaction.
+type txView struct{ tx *bolt.Tx }
+
+func (v txView) Records(athlete, kind string, fn func(devsync.Record) error) error {
+	return rangeTx(v.tx, athlete, kind, "", "", fn)
+}
+
+// rangeTx is Range inside tx.
+func rangeTx(tx *bolt.Tx, athlete, kind, fromDay, toDay string, fn func(devsync.Record) error) error {
+	records := tx.Bucket(BucketRecords)
+	prefix := []byte(athlete + "|" + kind + "|")
+	c := tx.Bucket(BucketIndex).Cursor()
+	// Day-less keys are prefix + "|" + id; '|' sorts after every
+	// digit, so they are the last of the prefix: read them first.
+	undated := append(bytes.Clone(prefix), '|')
+	for k, _ := c.Seek(undated); k != nil && bytes.HasPrefix(k, undated); k, _ = c.Next() {
+		if err := emit(records, k[len(undated):], fn); err != nil {
+			return err
 		}
-		for k, _ := c.Seek(append(bytes.Clone(prefix), fromDay...)); k != nil && bytes.HasPrefix(k, prefix); k, _ = c.Next() {
-			rest := k[len(prefix):]
-			sep := bytes.IndexByte(rest, '|')
-			if sep < 0 {
-				return fmt.Errorf("index key %q is malformed", k)
-			}
-			if sep == 0 || toDay != "" && string(rest[:sep]) > toDay {
-				return nil // past the last day (sep 0: the day-less keys, already read)
-			}
-			if err := emit(records, rest[sep+1:], fn); err != nil {
-				return err
-			}
+	}
+	for k, _ := c.Seek(append(bytes.Clone(prefix), fromDay...)); k != nil && bytes.HasPrefix(k, prefix); k, _ = c.Next() {
+		rest := k[len(prefix):]
+		sep := bytes.IndexByte(rest, '|')
+		if sep < 0 {
+			return fmt.Errorf("index key %q is malformed", k)
 		}
-		return nil
-	})
+		if sep == 0 || toDay != "" && string(rest[:sep]) > toDay {
+			return nil // past the last day (sep 0: the day-less keys, already read)
+		}
+		if err := emit(records, rest[sep+1:], fn); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // Kind calls fn for every live record of one kind, all athletes, ordered

@@ -139,6 +139,22 @@ type Options struct {
 	// never learn that a record left. The hub sets it; the storage
 	// conformance suite works with free athlete ids.
 	CampIntegrity bool
+	// Related checks a live record against the athlete's other live
+	// records, for rules between records (a step of a ladder after the one
+	// below it, a weigh-in after another). It runs inside the push's write
+	// transaction, after Prepare and before last-writer-wins, so it sees
+	// every record stored earlier, in this push too; it must not write. A
+	// *devsync.FieldError rejects the mutation (VALIDATION) and nothing is
+	// stored. Nil: no such rules. Tombstones are never checked, so a bad
+	// record can always be removed.
+	Related func(rec *devsync.Record, view View) error
+}
+
+// View reads live records inside a push's write transaction.
+type View interface {
+	// Records calls fn for every live record of one athlete and kind
+	// (dated ones by day, then day-less ones).
+	Records(athlete, kind string, fn func(devsync.Record) error) error
 }
 
 // DB is the hub's store. It is safe for concurrent use.
@@ -148,6 +164,7 @@ type DB struct {
 	prepare func(*devsync.Record) error
 
 	campIntegrity bool
+	related       func(*devsync.Record, View) error
 }
 
 // DeviceState is what the hub knows about one device's pushes.
@@ -188,7 +205,7 @@ func Open(path string, opt Options) (*DB, error) {
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
 	removeRestoreLeftovers(path)
-	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare, campIntegrity: opt.CampIntegrity}
+	db := &DB{bolt: b, now: opt.Now, prepare: opt.Prepare, campIntegrity: opt.CampIntegrity, related: opt.Related}
 	err = b.Update(initBuckets)
 	if err != nil {
 		b.Close()

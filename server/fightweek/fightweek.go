@@ -402,3 +402,118 @@ func absInt(v int) int {
 	}
 	return v
 }
+
+// BoutTimes is what the weigh-in checks need of one of the fighter's bouts.
+type BoutTimes struct {
+	ID      string
+	BoutDay string // YYYY-MM-DD
+	BoutAt  string // RFC 3339; may be empty
+}
+
+// CheckWeighIn judges a new or corrected weigh-in against the fighter's
+// other weigh-ins (its own earlier version among them is replaced) and
+// bouts, and names the field at fault:
+//   - a check weight after the bout it leads to, or at or after an
+//     official weigh-in already recorded;
+//   - a fight-day weigh-in before an official weigh-in already recorded,
+//     or after the bout has started;
+//   - an official weigh-in after a fight-day weigh-in or before a check
+//     weight already recorded (the same rules seen from the other record).
+//
+// A weigh-in belongs to the first bout on or after its day; a check
+// weight up to 7 days after a bout, with no later bout recorded, is "after
+// the bout" (common practice, no source: a check weight is only ever
+// taken for a bout ahead).
+func CheckWeighIn(w WeighIn, others []WeighIn, bouts []BoutTimes) *Problem {
+	t, err := time.Parse(time.RFC3339, w.At)
+	if err != nil {
+		return &Problem{"at", "the weigh-in's time must be a date and time with the venue's offset"}
+	}
+	wd, _ := DayOf(w.At)
+	wdN, _ := day.Parse(wd)
+	var next, prev *BoutTimes
+	for i := range bouts {
+		b := &bouts[i]
+		bd, err := day.Parse(b.BoutDay)
+		if err != nil {
+			continue
+		}
+		if bd >= wdN && (next == nil || b.BoutDay < next.BoutDay) {
+			next = b
+		}
+		if bd < wdN && (prev == nil || b.BoutDay > prev.BoutDay) {
+			prev = b
+		}
+	}
+	var bt *BoutTimes
+	if next != nil && next.BoutAt != "" {
+		if ba, err := time.Parse(time.RFC3339, next.BoutAt); err == nil && t.After(ba) {
+			bt = next
+		}
+	}
+	if bt == nil && next == nil && prev != nil {
+		if pd, err := day.Parse(prev.BoutDay); err == nil && wdN-pd <= 7 {
+			bt = prev
+		}
+	}
+	switch w.Type {
+	case TypeCheck:
+		if bt != nil {
+			return &Problem{"at", fmt.Sprintf("a check weight at %s is after the bout on %s; check weights come before the official weigh-in", clock(t), boutWhen(bt))}
+		}
+	case TypeFightDay:
+		if bt != nil && bt == next {
+			return &Problem{"at", fmt.Sprintf("a fight-day weigh-in at %s is after the bout started (%s)", clock(t), boutWhen(bt))}
+		}
+	}
+	for _, o := range others {
+		if o.ID == w.ID {
+			continue
+		}
+		ot, err := time.Parse(time.RFC3339, o.At)
+		if err != nil {
+			continue
+		}
+		// Only weigh-ins for the same bout are compared: within 60 days.
+		if d := t.Sub(ot); d > 60*24*time.Hour || d < -60*24*time.Hour {
+			continue
+		}
+		switch {
+		case w.Type == TypeFightDay && o.Type == TypeOfficial && !t.After(ot) && sameBout(wd, o.At, bouts):
+			return &Problem{"at", fmt.Sprintf("a fight-day weigh-in at %s is before the official weigh-in recorded at %s", clock(t), clock(ot))}
+		case w.Type == TypeOfficial && o.Type == TypeFightDay && !ot.After(t) && sameBout(wd, o.At, bouts):
+			return &Problem{"at", fmt.Sprintf("an official weigh-in at %s is after the fight-day weigh-in recorded at %s", clock(t), clock(ot))}
+		case w.Type == TypeCheck && o.Type == TypeOfficial && !t.Before(ot) && sameBout(wd, o.At, bouts):
+			return &Problem{"at", fmt.Sprintf("a check weight at %s is after the official weigh-in recorded at %s", clock(t), clock(ot))}
+		case w.Type == TypeOfficial && o.Type == TypeCheck && !ot.Before(t) && sameBout(wd, o.At, bouts):
+			return &Problem{"at", fmt.Sprintf("an official weigh-in at %s is before the check weight recorded at %s", clock(t), clock(ot))}
+		}
+	}
+	return nil
+}
+
+// sameBout: two weigh-ins lead to the same bout (the first bout on or
+// after each one's day), or no bout is recorded after either.
+func sameBout(dayA, atB string, bouts []BoutTimes) bool {
+	dayB, _ := DayOf(atB)
+	return nextBout(dayA, bouts) == nextBout(dayB, bouts)
+}
+
+func nextBout(d string, bouts []BoutTimes) string {
+	best := ""
+	for _, b := range bouts {
+		if b.BoutDay >= d && (best == "" || b.BoutDay < best) {
+			best = b.BoutDay
+		}
+	}
+	return best
+}
+
+func boutWhen(b *BoutTimes) string {
+	if t, err := time.Parse(time.RFC3339, b.BoutAt); err == nil {
+		return clock(t)
+	}
+	return b.BoutDay
+}
+
+func clock(t time.Time) string { return t.Format("2006-01-02 15:04") }

@@ -267,8 +267,8 @@ func TestPresets(t *testing.T) {
 		if p.Source == "" || p.Caution == "" || p.Summary == "" || SureWords(p.Sure) == "source not checked" {
 			t.Errorf("preset %s lacks its source, how sure, caution or summary: %+v", p.ID, p)
 		}
-		if probs := p.Rules.Check(); len(probs) > 0 {
-			t.Errorf("preset %s fails its own check: %v", p.ID, probs)
+		if err := records.CheckRules("body.rules", &p.Rules); err != nil {
+			t.Errorf("preset %s fails the bout's check: %v", p.ID, err)
 		}
 		if p.Rules.Preset != p.ID {
 			t.Errorf("preset %s rules name %q", p.ID, p.Rules.Preset)
@@ -286,29 +286,60 @@ func TestPresets(t *testing.T) {
 	}
 }
 
-func TestRulesCheck_NamesField(t *testing.T) {
-	bad := Rules{CheckWeights: []CheckWeight{{DaysBefore: 30, OverLimitPct: 10}, {DaysBefore: 30, OverLimitPct: 40}, {DaysBefore: 0, OverLimitPct: 3}},
-		FightDay: &FightDayCap{OverLimitLb: f(10), OverOfficialPct: f(10)}}
-	probs := bad.Check()
-	want := []string{"check_weights[1].days_before", "check_weights[1].over_limit_pct", "check_weights[2].days_before", "fight_day"}
-	if len(probs) != len(want) {
-		t.Fatalf("problems: %+v", probs)
-	}
-	for i, p := range probs {
-		if p.Field != want[i] || p.Reason == "" {
-			t.Errorf("problem %d = %+v, want field %s", i, p, want[i])
-		}
-	}
-	if probs := (Rules{FightDay: &FightDayCap{OverOfficialPct: f(-1)}}).Check(); len(probs) != 1 || probs[0].Field != "fight_day.over_official_pct" {
-		t.Errorf("negative pct: %+v", probs)
-	}
-}
-
 func TestOverWords(t *testing.T) {
 	if got := Over(0.02, "kg"); got != "less than 0.1 kg" {
 		t.Errorf("a tiny excess is still over: %q", got)
 	}
 	if got := Mass(records.LbToKg(157), "lb"); got != "157.0 lb" {
 		t.Errorf("Mass = %q", got)
+	}
+}
+
+// Order of weigh-ins (a fact of the trade, common practice, no source:
+// check weights lead to the official weigh-in, a fight-day weigh-in
+// follows it, both before the bout).
+func TestCheckWeighIn_Order(t *testing.T) {
+	bouts := []BoutTimes{{ID: "b", BoutDay: "2025-06-14", BoutAt: "2025-06-14T20:30:00-07:00"}}
+	have := []WeighIn{
+		{ID: "c7", Type: TypeCheck, At: "2025-06-06T09:00:00-07:00", MassKg: 68},
+		{ID: "o", Type: TypeOfficial, At: "2025-06-13T13:00:00-07:00", MassKg: 66.6},
+	}
+	cases := []struct {
+		name string
+		w    WeighIn
+		in   string // "" = accepted
+	}{
+		{"fight day after the official", WeighIn{ID: "n", Type: TypeFightDay, At: "2025-06-14T09:00:00-07:00"}, ""},
+		{"fight day before the official", WeighIn{ID: "n", Type: TypeFightDay, At: "2025-06-13T09:00:00-07:00"}, "before the official weigh-in recorded at 2025-06-13 13:00"},
+		{"fight day after the bout started", WeighIn{ID: "n", Type: TypeFightDay, At: "2025-06-14T21:00:00-07:00"}, "after the bout started"},
+		{"check weight after the bout", WeighIn{ID: "n", Type: TypeCheck, At: "2025-06-14T22:00:00-07:00"}, "after the bout on 2025-06-14 20:30"},
+		{"check weight the day after the bout", WeighIn{ID: "n", Type: TypeCheck, At: "2025-06-15T09:00:00-07:00"}, "after the bout"},
+		{"check weight after the official", WeighIn{ID: "n", Type: TypeCheck, At: "2025-06-13T15:00:00-07:00"}, "after the official weigh-in"},
+		{"check weight 14 days out", WeighIn{ID: "n", Type: TypeCheck, At: "2025-05-30T09:00:00-07:00"}, ""},
+		{"official before a check weight", WeighIn{ID: "n", Type: TypeOfficial, At: "2025-06-05T13:00:00-07:00"}, "before the check weight"},
+		{"a re-weigh after the official", WeighIn{ID: "n", Type: TypeOfficial, At: "2025-06-13T14:30:00-07:00"}, ""},
+		{"check weight for a bout months later", WeighIn{ID: "n", Type: TypeCheck, At: "2025-08-01T09:00:00-07:00"}, ""},
+		{"no offset", WeighIn{ID: "n", Type: TypeCheck, At: "2025-06-01 09:00"}, "offset"},
+	}
+	for _, tc := range cases {
+		p := CheckWeighIn(tc.w, have, bouts)
+		switch {
+		case tc.in == "" && p != nil:
+			t.Errorf("%s: refused: %+v", tc.name, p)
+		case tc.in != "" && p == nil:
+			t.Errorf("%s: accepted", tc.name)
+		case p != nil && (p.Field != "at" || !strings.Contains(p.Reason, tc.in)):
+			t.Errorf("%s: %+v, want field at with %q", tc.name, p, tc.in)
+		}
+	}
+	// An official weigh-in recorded after a fight-day one (from a phone
+	// that synced later) is refused the same way.
+	fd := append(have[:1:1], WeighIn{ID: "fd", Type: TypeFightDay, At: "2025-06-14T09:00:00-07:00"})
+	if p := CheckWeighIn(WeighIn{ID: "o2", Type: TypeOfficial, At: "2025-06-14T10:00:00-07:00"}, fd, bouts); p == nil || !strings.Contains(p.Reason, "after the fight-day weigh-in") {
+		t.Errorf("official after fight day: %+v", p)
+	}
+	// A correction of the official moved by an hour replaces its own version.
+	if p := CheckWeighIn(WeighIn{ID: "o", Type: TypeOfficial, At: "2025-06-13T12:00:00-07:00"}, have, bouts); p != nil {
+		t.Errorf("correcting the official: %+v", p)
 	}
 }

@@ -16,33 +16,17 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"cornerbook/server/records"
 )
 
-// Rules is a bout's weigh-in rules (the bout's `rules` field): the check
-// weights before the official weigh-in, and the cap of a second weigh-in
-// on fight day.
-type Rules struct {
-	CheckWeights []CheckWeight `json:"check_weights,omitempty"`
-	FightDay     *FightDayCap  `json:"fight_day,omitempty"`
-	// Preset is the id of the preset the rules came from; empty for a
-	// custom set (or a preset the coach then edited).
-	Preset string `json:"preset,omitempty"`
-}
-
-// CheckWeight is one check weight: so many days before the official
-// weigh-in, at most so many percent over the division limit.
-type CheckWeight struct {
-	DaysBefore   int     `json:"days_before"`
-	OverLimitPct float64 `json:"over_limit_pct"`
-}
-
-// FightDayCap is the cap of a weigh-in on the day of the bout: either so
-// many pounds over the division limit or so many percent over the official
-// weigh-in mass (exactly one is set).
-type FightDayCap struct {
-	OverLimitLb     *float64 `json:"over_limit_lb,omitempty"`
-	OverOfficialPct *float64 `json:"over_official_pct,omitempty"`
-}
+// Rules is a bout's weigh-in rules (the bout's `rules` field; the type
+// lives with the record format in server/records, which also validates it).
+type (
+	Rules       = records.WeighInRules
+	CheckWeight = records.CheckWeight
+	FightDayCap = records.FightDayCap
+)
 
 // How sure a preset's source is, after the tags of REFERENCES.md.
 const (
@@ -120,7 +104,7 @@ var Presets = []Preset{
 
 func init() {
 	for i := range Presets {
-		Presets[i].Summary = Presets[i].Rules.Words()
+		Presets[i].Summary = RulesWords(Presets[i].Rules)
 		Presets[i].Caution = CautionRules
 	}
 }
@@ -135,8 +119,8 @@ func PresetByID(id string) (Preset, bool) {
 	return Preset{}, false
 }
 
-// Words states a rule set in a coach's words.
-func (r Rules) Words() string {
+// RulesWords states a rule set in a coach's words.
+func RulesWords(r Rules) string {
 	var parts []string
 	for _, c := range r.CheckWeights {
 		parts = append(parts, fmt.Sprintf("%d days out ≤ %s %% over the limit", c.DaysBefore, num(c.OverLimitPct)))
@@ -164,48 +148,10 @@ func num(v float64) string {
 	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.2f", v), "0"), ".")
 }
 
-// Problem is a rule set's field that cannot be used, with the reason.
+// Problem is a field that cannot be used, with the reason.
 type Problem struct {
-	Field  string // JSON path under the bout's rules, e.g. "check_weights[1].over_limit_pct"
+	Field  string // JSON path, e.g. "at"
 	Reason string
-}
-
-// Check lists what is wrong with a custom rule set, in words. Bounds are
-// common practice, no source: no scheme asks a check weight more than 60
-// days out or allows more than 25 % over the limit; a fight-day cap of
-// more than 30 lb or 25 % would not be a cap.
-func (r Rules) Check() []Problem {
-	var out []Problem
-	seen := map[int]bool{}
-	for i, c := range r.CheckWeights {
-		f := fmt.Sprintf("check_weights[%d]", i)
-		if c.DaysBefore < 1 || c.DaysBefore > 60 {
-			out = append(out, Problem{f + ".days_before", fmt.Sprintf("days before the weigh-in must be 1–60, not %d", c.DaysBefore)})
-		} else if seen[c.DaysBefore] {
-			out = append(out, Problem{f + ".days_before", fmt.Sprintf("a check weight %d days out is already set", c.DaysBefore)})
-		}
-		seen[c.DaysBefore] = true
-		if !(c.OverLimitPct >= 0 && c.OverLimitPct <= 25) {
-			out = append(out, Problem{f + ".over_limit_pct", fmt.Sprintf("percent over the limit must be 0–25, not %s", num(c.OverLimitPct))})
-		}
-	}
-	if f := r.FightDay; f != nil {
-		switch {
-		case f.OverLimitLb != nil && f.OverOfficialPct != nil:
-			out = append(out, Problem{"fight_day", "give either pounds over the limit or percent over the weigh-in mass, not both"})
-		case f.OverLimitLb != nil:
-			if v := *f.OverLimitLb; !(v >= 0 && v <= 30) {
-				out = append(out, Problem{"fight_day.over_limit_lb", fmt.Sprintf("pounds over the limit must be 0–30, not %s", num(v))})
-			}
-		case f.OverOfficialPct != nil:
-			if v := *f.OverOfficialPct; !(v >= 0 && v <= 25) {
-				out = append(out, Problem{"fight_day.over_official_pct", fmt.Sprintf("percent over the weigh-in mass must be 0–25, not %s", num(v))})
-			}
-		default:
-			out = append(out, Problem{"fight_day", "give pounds over the limit or percent over the weigh-in mass"})
-		}
-	}
-	return out
 }
 
 // Cautions go with every fight-week number and flag (REFERENCES.md §6.6;

@@ -5,6 +5,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"cornerbook/server/records"
 )
 
 // REFERENCES §14.6 [D]: a knockout without loss of consciousness on
@@ -139,7 +141,13 @@ func endOf(sd StandDown, set string) string {
 }
 
 func TestSets_HaveSources(t *testing.T) {
-	for _, s := range Sets {
+	if len(Sets) != len(records.StandDownSetIDs) {
+		t.Errorf("bouts may name %v; the sets are %d", records.StandDownSetIDs, len(Sets))
+	}
+	for i, s := range Sets {
+		if i < len(records.StandDownSetIDs) && records.StandDownSetIDs[i] != s.ID {
+			t.Errorf("set %d is %s; bouts know it as %s", i, s.ID, records.StandDownSetIDs[i])
+		}
 		if s.Name == "" || s.Source == "" || s.Caution == "" || (s.Sure != "verified" && s.Sure != "secondary") || len(s.Rules) == 0 {
 			t.Errorf("set %s incomplete: %+v", s.ID, s)
 		}

@@ -118,6 +118,13 @@ type Bout struct {
 	ReferenceLoadAU float64 `json:"reference_load_au,omitempty"` // the athlete's habitual weekly load
 	Path            []Knot  `json:"path,omitempty"`
 	Weeks           []Week  `json:"weeks,omitempty"`
+	// BoutAt is the bout's start, RFC 3339 in the venue's offset.
+	BoutAt string `json:"bout_at,omitempty"`
+	// Rules are the weigh-in rules the coach picked (a preset or custom).
+	Rules *WeighInRules `json:"rules,omitempty"`
+	// StandDownSets are the stand-down rule sets applied to this fighter's
+	// incidents besides the ringside physicians' minimums.
+	StandDownSets []string `json:"stand_down_sets,omitempty"`
 }
 
 // Checkin is the morning check-in. Wellness items are 1–5, 5 = best.
@@ -196,6 +203,14 @@ type Session struct {
 type Incident struct {
 	Type string `json:"type"`
 	Note string `json:"note,omitempty"`
+	// LOC: consciousness was lost; LOCSeconds for how long.
+	LOC        *bool    `json:"loss_of_consciousness,omitempty"`
+	LOCSeconds *float64 `json:"loc_seconds,omitempty"`
+	// SeenBy is the clinician who saw the fighter; ClinicianDay the first
+	// day that clinician allows sparring again (the stand-down runs at
+	// least that long, and still ends only with a written clearance).
+	SeenBy       string `json:"seen_by,omitempty"`
+	ClinicianDay string `json:"clinician_day,omitempty"`
 }
 
 // Clearance ends the stand-down of one incident.

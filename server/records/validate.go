@@ -274,6 +274,9 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 			return nil, err
 		}
 	}
+	if err := checkBoutFightWeek(&b); err != nil {
+		return nil, err
+	}
 	return &b, nil
 }
 
@@ -571,6 +574,9 @@ func validateIncident(c *check, raw json.RawMessage) (any, error) {
 		return nil, err
 	}
 	if err := note("body.note", b.Note); err != nil {
+		return nil, err
+	}
+	if err := checkIncidentMedical(&b); err != nil {
 		return nil, err
 	}
 	return &b, nil
