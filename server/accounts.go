@@ -2,6 +2,7 @@ package server
 
 import (
 	"fmt"
+	"net"
 	"net/http"
 	"strings"
 	"time"
@@ -87,7 +88,7 @@ func (s *Server) handleSetup(w http.ResponseWriter, r *http.Request) error {
 	if auth.FromLaptop(r) && req.Code == "" {
 		err = s.cfg.Auth.SetPassphrase(req.Passphrase)
 	} else {
-		err = s.cfg.Auth.SetupWithCode(req.Code, req.Passphrase)
+		err = s.cfg.Auth.SetupWithCodeFrom(req.Code, req.Passphrase, attemptSource(r))
 	}
 	if err != nil {
 		return authError(err)
@@ -113,7 +114,7 @@ func (s *Server) handleLogin(w http.ResponseWriter, r *http.Request) error {
 	if err := decodeStrict(w, r, 4<<10, &req); err != nil {
 		return err
 	}
-	dev, tok, err := s.cfg.Auth.Login(req.Passphrase)
+	dev, tok, err := s.cfg.Auth.LoginFrom(req.Passphrase, attemptSource(r))
 	if err != nil {
 		return authError(err)
 	}
@@ -125,6 +126,19 @@ func (s *Server) handleLogin(w http.ResponseWriter, r *http.Request) error {
 	s.logf("coach signed in on a new device %s", dev.ID)
 	writeJSON(w, http.StatusOK, Paired{Token: tok, Device: dev, Message: "Signed in as the coach on this device."})
 	return nil
+}
+
+// attemptSource is whom a passphrase attempt counts against: the laptop's
+// own screen (never limited), else the peer's address.
+func attemptSource(r *http.Request) string {
+	if auth.FromLaptop(r) {
+		return auth.SourceLaptop
+	}
+	host, _, err := net.SplitHostPort(r.RemoteAddr)
+	if err != nil {
+		return r.RemoteAddr
+	}
+	return host
 }
 
 type joinReq struct {

@@ -203,7 +203,10 @@ func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, erro
 	if err != nil {
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
-			return nil, userError(CodeTooLarge, "body", fmt.Sprintf("is larger than %d KiB; send fewer entries per push", limit>>10))
+			if r.URL.Path == "/api/push" {
+				return nil, userError(CodeTooLarge, "body", fmt.Sprintf("is larger than %d KiB; send fewer entries per push", limit>>10))
+			}
+			return nil, userError(CodeTooLarge, "body", fmt.Sprintf("is larger than %d KiB, more than this request ever needs", limit>>10))
 		}
 		return nil, userError(devsync.CodeBadRequest, "body", "could not be read: "+err.Error())
 	}

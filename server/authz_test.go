@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"net"
 	"net/http"
 	"net/http/httptest"
 	"path/filepath"
@@ -277,4 +278,44 @@ func TestLogin_Throttled(t *testing.T) {
 	resp.Body.Close()
 	assert.Equal(t, 429, resp.StatusCode, "the 11th attempt within the minute is refused, even with the right passphrase")
 	assert.NotEmpty(t, resp.Header.Get("Retry-After"))
+}
+
+// TestLogin_OneAddressCannotLockOutTheCoach: over HTTP, a device at one
+// address that used its ten tries is refused with 429, while the coach's
+// right passphrase from another address, and from the laptop's own
+// screen, still signs in.
+func TestLogin_OneAddressCannotLockOutTheCoach(t *testing.T) {
+	c := newCampHub(t)
+	from := func(local, host, pass string) int {
+		cl := &http.Client{Transport: &http.Transport{DialContext: (&net.Dialer{
+			LocalAddr: &net.TCPAddr{IP: net.ParseIP(local)}}).DialContext}}
+		req, _ := http.NewRequest("POST", c.http.URL+"/api/login", strings.NewReader(`{"passphrase":"`+pass+`"}`))
+		req.Host = host
+		resp, err := cl.Do(req)
+		require.NoError(t, err)
+		resp.Body.Close()
+		return resp.StatusCode
+	}
+	for i := 1; i <= 10; i++ {
+		require.Equal(t, 401, from("127.0.0.2", "camp.local", fmt.Sprintf("wrong guess %02d", i)))
+	}
+	assert.Equal(t, 429, from("127.0.0.2", "camp.local", "correct horse battery"), "the guessing address is throttled")
+	assert.Equal(t, 200, from("127.0.0.3", "camp.local", "correct horse battery"), "the coach at another address signs in")
+	assert.Equal(t, 200, from("127.0.0.1", strings.TrimPrefix(c.http.URL, "http://"), "correct horse battery"), "the laptop signs in")
+}
+
+// TestPlan_AthleteSeesOwnOnly: an athlete's device asking for another
+// athlete's plan (whose thresholds carry that athlete's sparring cap) is
+// refused; its own, and any athlete for the coach, are answered.
+func TestPlan_AthleteSeesOwnOnly(t *testing.T) {
+	c := newCampHub(t)
+	q := "/api/plan/default?camp_start=2026-11-02&bout_day=2026-12-26&athlete="
+	st, out := c.do("athleteA", "GET", q+c.athleteB.ID, nil)
+	assert.Equal(t, 403, st, "%s", out)
+	st, out = c.do("athleteA", "GET", q+c.athleteA.ID, nil)
+	assert.Equal(t, 200, st, "%s", out)
+	st, out = c.do("coach", "GET", q+c.athleteB.ID, nil)
+	assert.Equal(t, 200, st, "%s", out)
+	st, out = c.do("athleteA", "POST", "/api/plan/check", map[string]any{"athlete": c.athleteB.ID, "bout": map[string]any{}})
+	assert.Equal(t, 403, st, "%s", out)
 }

@@ -53,6 +53,13 @@ type Config struct {
 	AppURL string
 	// DataDir is where daily snapshots go; "" disables them.
 	DataDir string
+	// BodyTimeout bounds reading the body of every request but a push
+	// (join, sign-in, set-up, plan checks: a few KiB), so a device that
+	// opens requests and trickles their bodies cannot hold connections;
+	// default 10 s. ReadTimeout bounds reading any whole request, the
+	// largest push on a weak Wi-Fi included; default 2 minutes.
+	BodyTimeout time.Duration
+	ReadTimeout time.Duration
 }
 
 // Server is one running hub.
@@ -109,6 +116,12 @@ func New(cfg Config) (*Server, error) {
 	if cfg.Location == nil {
 		cfg.Location = time.Local
 	}
+	if cfg.BodyTimeout <= 0 {
+		cfg.BodyTimeout = 10 * time.Second
+	}
+	if cfg.ReadTimeout <= 0 {
+		cfg.ReadTimeout = 2 * time.Minute
+	}
 	s := &Server{cfg: cfg, store: cfg.Store, hub: newPokeHub()}
 	seq, err := s.store.MaxSeq()
 	if err != nil {
@@ -142,7 +155,20 @@ func (s *Server) Handler() http.Handler {
 		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
 	}))
 	r.PathPrefix("/").Handler(pwa.Handler())
-	return s.killSwitch(auth.SecurityHeaders(r))
+	return s.killSwitch(s.bodyDeadline(auth.SecurityHeaders(r)))
+}
+
+// bodyDeadline gives every request with a body, except a push, BodyTimeout
+// to deliver it (on the listeners the hub serves itself).
+func (s *Server) bodyDeadline(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if r.Body != nil && r.Body != http.NoBody && r.URL.Path != "/api/push" {
+			// Not every ResponseWriter supports deadlines (httptest's
+			// recorder): then ReadTimeout alone applies.
+			_ = http.NewResponseController(w).SetReadDeadline(time.Now().Add(s.cfg.BodyTimeout))
+		}
+		next.ServeHTTP(w, r)
+	})
 }
 
 // killSwitch drops connections while the hub is marked down, so tests see
@@ -211,6 +237,7 @@ func (s *Server) httpServer(h http.Handler) *http.Server {
 	return &http.Server{
 		Handler:           h,
 		ReadHeaderTimeout: 10 * time.Second,
+		ReadTimeout:       s.cfg.ReadTimeout,
 		IdleTimeout:       120 * time.Second,
 		ErrorLog:          s.cfg.Log,
 	}

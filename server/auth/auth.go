@@ -43,10 +43,11 @@ func (r Role) Valid() bool { return r == RoleCoach || r == RoleStaff || r == Rol
 
 // Defaults.
 const (
-	DefaultBcryptCost = 12
-	DefaultAttempts   = 10          // wrong attempts allowed per window
-	DefaultWindow     = time.Minute // rolling window of the limiters
-	JoinValidity      = 10 * time.Minute
+	DefaultBcryptCost     = 12
+	DefaultAttempts       = 10          // wrong attempts allowed per window and source
+	DefaultGlobalAttempts = 60          // wrong passphrases allowed per window from all sources
+	DefaultWindow         = time.Minute // rolling window of the limiters
+	JoinValidity          = 10 * time.Minute
 	// SeenEvery: Authenticate writes "last seen" at most this often, so a
 	// busy device does not cost a disk sync per request.
 	SeenEvery = time.Minute
@@ -97,19 +98,25 @@ type Options struct {
 	// CompareHash checks a passphrase against its stored hash. Default
 	// bcrypt.CompareHashAndPassword; tests wrap it to count the checks.
 	CompareHash func(hash, passphrase []byte) error
-	// Attempts wrong passphrases (all callers together) or wrong join codes
-	// (per remote address) are allowed per Window; the next ones are
-	// refused without being checked. Defaults 10 and one minute.
+	// Attempts wrong passphrases or wrong join codes per source address
+	// are allowed per Window; the next ones are refused without being
+	// checked. Defaults 10 and one minute.
 	Attempts int
 	Window   time.Duration
+	// GlobalAttempts wrong passphrases from all addresses together are
+	// allowed per Window (the laptop's own screen is never limited).
+	// Default 60: bcrypt at cost 12 takes about a quarter of a second, so
+	// the ceiling also bounds the hub's time spent on guesses.
+	GlobalAttempts int
 }
 
 // Store is the hub's pairing and passphrase state.
 type Store struct {
-	db        *bolt.DB
-	opt       Options
-	passLimit *Limiter // key "passphrase": one passphrase, one budget
-	joinLimit *Limiter // key: remote address
+	db         *bolt.DB
+	opt        Options
+	passLimit  *Limiter // key: source address
+	passGlobal *Limiter // key "passphrase": the camp-wide ceiling
+	joinLimit  *Limiter // key: remote address
 
 	mu        sync.Mutex
 	setupCode string // one-time code for setting the passphrase remotely; "" once used
@@ -136,6 +143,9 @@ func Open(db *bolt.DB, opt Options) (*Store, error) {
 	if opt.Window <= 0 {
 		opt.Window = DefaultWindow
 	}
+	if opt.GlobalAttempts <= 0 {
+		opt.GlobalAttempts = DefaultGlobalAttempts
+	}
 	err := db.Update(func(tx *bolt.Tx) error {
 		for _, b := range [][]byte{bucketMeta, bucketDevices, bucketTokens, bucketJoins} {
 			if _, err := tx.CreateBucketIfNotExists(b); err != nil {
@@ -148,10 +158,11 @@ func Open(db *bolt.DB, opt Options) (*Store, error) {
 		return nil, fmt.Errorf("auth: creating buckets: %w", err)
 	}
 	s := &Store{
-		db:        db,
-		opt:       opt,
-		passLimit: NewLimiter(opt.Attempts, opt.Window),
-		joinLimit: NewLimiter(opt.Attempts, opt.Window),
+		db:         db,
+		opt:        opt,
+		passLimit:  NewLimiter(opt.Attempts, opt.Window),
+		passGlobal: NewLimiter(opt.GlobalAttempts, opt.Window),
+		joinLimit:  NewLimiter(opt.Attempts, opt.Window),
 	}
 	if !s.HasPassphrase() {
 		code, err := randomCode(CodeLength)

@@ -23,7 +23,34 @@ const (
 
 var keyPassphrase = []byte("passphrase_bcrypt_sha256")
 
-const passKey = "passphrase" // one passphrase, one attempt budget for all callers
+const passKey = "passphrase" // the key of the camp-wide ceiling
+
+// SourceLaptop is the source of an attempt made on the hub's own screen
+// (FromLaptop): its attempts are neither limited nor counted, so no
+// flood from the camp Wi-Fi can lock the coach out of the laptop.
+const SourceLaptop = "laptop"
+
+// beginPass asks both budgets for one passphrase or setup-code attempt
+// from a source address: its own (Options.Attempts per window) and the
+// camp-wide ceiling (Options.GlobalAttempts), so one guessing device
+// cannot make the right passphrase answer "too many tries" for everyone,
+// and many addresses together cannot guess faster than the ceiling.
+func (s *Store) beginPass(from string) (own, all *Attempt, err error) {
+	if from == SourceLaptop {
+		return nil, nil, nil
+	}
+	now := s.opt.Now()
+	own, err = s.passLimit.Begin("from "+from, now)
+	if err != nil {
+		return nil, nil, err
+	}
+	all, err = s.passGlobal.Begin(passKey, now)
+	if err != nil {
+		own.Succeeded() // not checked: not a failure of this source
+		return nil, nil, err
+	}
+	return own, all, nil
+}
 
 // prehash maps any passphrase to 44 ASCII bytes before bcrypt, which
 // reads only the first 72 bytes of its input: a long passphrase is then
@@ -97,16 +124,23 @@ func (s *Store) SetupCode() string {
 // SetupWithCode sets the first passphrase from another machine, given the
 // setup code. Wrong codes count against the passphrase attempt budget.
 func (s *Store) SetupWithCode(code, passphrase string) error {
+	return s.SetupWithCodeFrom(code, passphrase, "")
+}
+
+// SetupWithCodeFrom is SetupWithCode for an attempt from a source address
+// (SourceLaptop for the hub's own screen).
+func (s *Store) SetupWithCodeFrom(code, passphrase, from string) error {
 	if err := validPassphrase(passphrase); err != nil {
 		return err
 	}
 	if s.HasPassphrase() {
 		return ErrPassphraseSet
 	}
-	att, err := s.passLimit.Begin(passKey, s.opt.Now())
+	own, all, err := s.beginPass(from)
 	if err != nil {
 		return err
 	}
+	att := attempts{own, all}
 	s.mu.Lock()
 	want := s.setupCode
 	s.mu.Unlock()
@@ -142,15 +176,22 @@ func (s *Store) SetupWithCode(code, passphrase string) error {
 	return nil
 }
 
-// CheckPassphrase checks p against the coach's passphrase. After
-// Options.Attempts wrong ones within the window (from anywhere), further
-// attempts fail with a *ThrottledError without being checked, until the
-// oldest wrong attempt leaves the window.
-func (s *Store) CheckPassphrase(p string) error {
-	att, err := s.passLimit.Begin(passKey, s.opt.Now())
+// CheckPassphrase checks p against the coach's passphrase, as one
+// unnamed source (CheckPassphraseFrom).
+func (s *Store) CheckPassphrase(p string) error { return s.CheckPassphraseFrom(p, "") }
+
+// CheckPassphraseFrom checks p against the coach's passphrase. After
+// Options.Attempts wrong ones within the window from one source address,
+// or Options.GlobalAttempts from all addresses together, further attempts
+// fail with a *ThrottledError without being checked, until the oldest
+// wrong attempt leaves the window. The laptop itself (SourceLaptop) is
+// never refused.
+func (s *Store) CheckPassphraseFrom(p, from string) error {
+	own, all, err := s.beginPass(from)
 	if err != nil {
 		return err
 	}
+	att := attempts{own, all}
 	var hash []byte
 	if err := s.db.View(func(tx *bolt.Tx) error {
 		hash = append([]byte(nil), tx.Bucket(bucketMeta).Get(keyPassphrase)...)
@@ -184,7 +225,13 @@ func (s *Store) CheckPassphrase(p string) error {
 // named "coach laptop", returning it and its token. Use it for a coach
 // signing in on a browser that is not the hub's own screen.
 func (s *Store) Login(passphrase string) (Device, string, error) {
-	if err := s.CheckPassphrase(passphrase); err != nil {
+	return s.LoginFrom(passphrase, "")
+}
+
+// LoginFrom is Login for an attempt from a source address (SourceLaptop
+// for the hub's own screen).
+func (s *Store) LoginFrom(passphrase, from string) (Device, string, error) {
+	if err := s.CheckPassphraseFrom(passphrase, from); err != nil {
 		return Device{}, "", err
 	}
 	now := s.opt.Now()
@@ -199,4 +246,17 @@ func (s *Store) Login(passphrase string) (Device, string, error) {
 		return Device{}, "", err
 	}
 	return dev, token, nil
+}
+
+// attempts reports one outcome to both budgets of an attempt.
+type attempts [2]*Attempt
+
+func (a attempts) Failed() {
+	a[0].Failed()
+	a[1].Failed()
+}
+
+func (a attempts) Succeeded() {
+	a[0].Succeeded()
+	a[1].Succeeded()
 }
