@@ -57,7 +57,9 @@ type SessionBody struct {
 }
 
 type incidentBody struct {
-	Type string `json:"type"`
+	Type         string `json:"type"`
+	LOC          *bool  `json:"loss_of_consciousness"`
+	ClinicianDay string `json:"clinician_day"`
 }
 
 type clearanceBody struct {
@@ -94,4 +96,5 @@ type boutBody struct {
 	ReferenceLoadAU float64    `json:"reference_load_au"`
 	Path            []knotBody `json:"path"`
 	Weeks           []weekBody `json:"weeks"`
+	StandDownSets   []string   `json:"stand_down_sets"`
 }

@@ -53,6 +53,9 @@ type incident struct {
 	at   string
 	day  day.Number
 	kind string
+	// loc: consciousness was lost; clinicianDay: the clinician's date.
+	loc          bool
+	clinicianDay string
 }
 
 // sparRound is a sparring round anywhere in the history given (stand-downs
@@ -184,7 +187,7 @@ func newEngine(in *Input) (*engine, bool) {
 		case kindIncident:
 			var b incidentBody
 			if json.Unmarshal(r.Body, &b) == nil {
-				e.incidents = append(e.incidents, incident{r.ID, r.At, d, b.Type})
+				e.incidents = append(e.incidents, incident{r.ID, r.At, d, b.Type, b.LOC != nil && *b.LOC, b.ClinicianDay})
 			}
 		case kindClearance:
 			var b clearanceBody

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"cornerbook/server/flags/day"
+	"cornerbook/server/medical"
 )
 
 // sparRounds counts the sparring rounds on day d, all and hard ones.
@@ -209,14 +210,15 @@ func (e *engine) sparOnHold() {
 	ko := int(e.atLeast(rule, "knockout_days"))
 	koLOC := int(e.atLeast(rule, "knockout_loc_days"))
 	var active []incident
-	for _, inc := range e.incidents {
-		sd := StandDownFor(inc.kind, stop, ko, koLOC)
-		if !sd.Applies || inc.day > e.today {
+	for i := range e.incidents {
+		inc := e.incidents[i]
+		sd := e.standDownOf(&inc, stop, ko, koLOC)
+		if !sd.applies || inc.day > e.today {
 			continue
 		}
 		_, cleared := e.clearances[inc.id]
-		dateOver := sd.Dated && e.today >= inc.day+day.Number(sd.Days)
-		if sd.Dated && !dateOver || !cleared {
+		dateOver := sd.dated && e.today >= sd.end
+		if sd.dated && !dateOver || !cleared {
 			active = append(active, inc)
 		}
 	}
@@ -232,7 +234,7 @@ func (e *engine) sparOnHold() {
 	var incIDs []string
 	for _, inc := range active {
 		incIDs = append(incIDs, inc.id)
-		sd := StandDownFor(inc.kind, stop, ko, koLOC)
+		sd := e.standDownOf(&inc, stop, ko, koLOC)
 		since := float64(e.today - inc.day)
 		what := incidentWords(inc.kind)
 		f := Flag{Rule: rule, Level: LevelInfo, Value: f64(since), Unit: "days", Inputs: []string{inc.id}, Caution: CautionHead,
@@ -240,20 +242,20 @@ func (e *engine) sparOnHold() {
 			Details: map[string]float64{"days_since": since}}
 		res := &Restriction{Incident: inc.id, IncidentType: inc.kind, StartedDay: inc.day.String(), StartedAt: inc.at, Until: UntilCleared}
 		_, cleared := e.clearances[inc.id]
-		if sd.Dated {
-			end := inc.day + day.Number(sd.Days)
+		if sd.dated {
+			end := sd.end
 			left := float64(end - e.today)
-			f.Threshold = f64(float64(sd.Days))
-			f.ThresholdName = rule + "." + inc.kind + "_days"
+			f.Threshold = f64(float64(sd.days))
+			f.ThresholdName = sd.thresholdName
 			f.Details["days_left"] = left
-			res.Rule = fmt.Sprintf("%s: at least %d days", capitalize(what), sd.Days)
+			res.Rule = sd.rule
 			res.EarliestEnd = end.String()
 			clearNote := ", and not until " + UntilCleared
 			if cleared {
 				clearNote = " (clearance recorded; the minimum still runs)"
 			}
 			f.Reason = fmt.Sprintf("Stand-down after the %s on %s, day %.0f of at least %d: no sparring or contact before %s%s.",
-				what, inc.day, since, sd.Days, end, clearNote)
+				what, inc.day, since, sd.days, end, clearNote)
 		} else {
 			res.Rule = capitalize(what) + ": treated as suspected concussion"
 			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (treated as suspected concussion), day %.0f: no sparring or contact until %s.", what, inc.day, since, UntilCleared)
@@ -370,4 +372,56 @@ func before(a, b string) bool {
 	ta, err1 := time.Parse(time.RFC3339, a)
 	tb, err2 := time.Parse(time.RFC3339, b)
 	return err1 == nil && err2 == nil && ta.Before(tb)
+}
+
+// standDown is an incident's stand-down as the flags show it.
+type standDown struct {
+	applies, dated bool
+	end            day.Number // first day the minimum no longer holds
+	days           int        // end − the incident's day
+	rule           string     // what sets the end, in words
+	thresholdName  string     // the camp setting behind it, "" for a rule set or a clinician's date
+}
+
+// standDownOf is an incident's stand-down: the camp's minimum days per
+// incident type (never below the published ones) and every rule set the
+// bout applies (server/medical; the ringside physicians' minimums always
+// among them) with the clinician's date — the latest decides. Loss of
+// consciousness in any head incident counts as a knockout with loss of
+// consciousness. Whatever the dates, a written clearance is still needed.
+func (e *engine) standDownOf(inc *incident, stop, ko, koLOC int) standDown {
+	kind := inc.kind
+	if inc.loc && medical.SeverityOf(medical.Incident{Type: kind, LOC: true}) == medical.KOLOC {
+		kind = "knockout_loc"
+	}
+	sd := StandDownFor(kind, stop, ko, koLOC)
+	if !sd.Applies {
+		return standDown{}
+	}
+	out := standDown{applies: true}
+	if sd.Dated {
+		out.dated, out.end = true, inc.day+day.Number(sd.Days)
+		out.rule = fmt.Sprintf("%s: at least %d days", capitalize(incidentWords(kind)), sd.Days)
+		out.thresholdName = RuleSparOnHold + "." + kind + "_days"
+	}
+	var sets []string
+	if e.bout != nil {
+		sets = e.bout.body.StandDownSets
+	}
+	hist := make([]medical.Incident, 0, len(e.incidents))
+	for _, h := range e.incidents {
+		hist = append(hist, medical.Incident{ID: h.id, Type: h.kind, Day: h.day.String(), LOC: h.loc})
+	}
+	mc := medical.Compute(medical.Incident{ID: inc.id, Type: inc.kind, Day: inc.day.String(), LOC: inc.loc, ClinicianDay: inc.clinicianDay}, hist, sets)
+	if end, err := day.Parse(mc.EarliestEnd); err == nil && mc.Dated && (!out.dated || end > out.end) {
+		top := mc.Ends[0]
+		out.dated, out.end, out.thresholdName = true, end, ""
+		if top.Set == "clinician" {
+			out.rule = "Date set by the clinician who saw the fighter"
+		} else {
+			out.rule = fmt.Sprintf("%s (%s)", capitalize(top.Words), top.Name)
+		}
+	}
+	out.days = int(out.end - inc.day)
+	return out
 }
