@@ -6,7 +6,9 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"net/http"
 	"os"
+	"path/filepath"
 	"slices"
 	"strings"
 	"time"
@@ -186,6 +188,9 @@ func runBackup(args []string, stdout io.Writer) error {
 		return errUsage
 	}
 	db, err := openData(*data, time.Now)
+	if errors.Is(err, storage.ErrLocked) {
+		return backupFromHub(*data, fs.Arg(0), stdout)
+	}
 	if err != nil {
 		return err
 	}
@@ -212,5 +217,49 @@ func runRestore(args []string, stdout io.Writer) error {
 		return err
 	}
 	fmt.Fprintf(stdout, "restored %s into %s; new epoch %s (devices will resync)\n", fs.Arg(0), *data, epoch)
+	return nil
+}
+
+// backupFromHub asks the hub that holds the folder, over loopback, for a
+// hot copy (the coach's backup download), checks it whole and puts it in
+// place; a copy that fails the check is not kept.
+func backupFromHub(dir, path string, stdout io.Writer) error {
+	raw, err := os.ReadFile(filepath.Join(dir, hubAddressFile))
+	if err != nil {
+		return fmt.Errorf("%s is in use by a running hub, which could not be asked for a copy (%v); use Camp set-up's backup on the laptop's screen, or stop the hub first", dir, err)
+	}
+	base := strings.TrimSpace(string(raw))
+	client := &http.Client{Timeout: 10 * time.Minute}
+	resp, err := client.Get(base + "api/backup")
+	if err != nil {
+		return fmt.Errorf("%s is in use by a running hub, which did not answer at %s: %v", dir, base, err)
+	}
+	defer resp.Body.Close()
+	if resp.StatusCode != http.StatusOK {
+		b, _ := io.ReadAll(io.LimitReader(resp.Body, 4<<10))
+		return fmt.Errorf("the running hub refused the copy (%s): %s", resp.Status, strings.TrimSpace(string(b)))
+	}
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	defer os.Remove(tmp.Name())
+	n, err := io.Copy(tmp, resp.Body)
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return fmt.Errorf("copy from the running hub: %w", err)
+	}
+	if err := storage.VerifyFile(tmp.Name()); err != nil {
+		return fmt.Errorf("the copy from the running hub failed its check: %w", err)
+	}
+	if err := os.Rename(tmp.Name(), path); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "backup written from the running hub: %s (%d KiB)\n", path, n>>10)
 	return nil
 }

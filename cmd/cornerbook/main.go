@@ -58,10 +58,17 @@ func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 }
 
 const usage = `Usage:
-  cornerbook [serve] [--data DIR] [--addr ADDR] [--demo]
+  cornerbook [serve] [--data DIR] [--addr ADDR] [--http-addr ADDR] [--demo]
   cornerbook import  --data DIR FILE        (JSON Lines; - reads standard input)
   cornerbook export  --data DIR [--kind K] [--csv]
   cornerbook flags   --data DIR --day YYYY-MM-DD [--athlete ID] [--json]
-  cornerbook backup  --data DIR FILE
-  cornerbook restore --data DIR FILE
+  cornerbook backup  --data DIR FILE        (also while the hub runs: it asks the hub)
+  cornerbook restore --data DIR FILE        (with the hub stopped)
+
+serve:
+  --data DIR        data folder (default ./cornerbook-data; ./cornerbook-demo with --demo)
+  --addr ADDR       HTTPS address of the app on the camp Wi-Fi (default :8443)
+  --http-addr ADDR  plain-HTTP address: the join page for phones and the coach's
+                    screen on this laptop (default :8080)
+  --demo            serve the invented demo camp from its own folder
 `

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"flag"
 	"os"
 	"path/filepath"
 	"strings"
@@ -83,4 +84,38 @@ func TestServe_RefusesAnEmptyFile(t *testing.T) {
 	st, err := os.Stat(dataPath(dir))
 	require.NoError(t, err)
 	assert.Zero(t, st.Size(), "the empty file was initialised over")
+}
+
+// TestCommands_BackupWhileTheHubRuns: with a hub holding the folder,
+// `cornerbook backup` asks it for a hot copy over loopback; the file is
+// one that `restore` accepts, holding the camp.
+func TestCommands_BackupWhileTheHubRuns(t *testing.T) {
+	m := mustRunMain(t, true)
+	dir := m.Config.DataDir
+	backup := filepath.Join(t.TempDir(), "while-running.db")
+	code, out, stderr := runCmd(t, "", "backup", "--data", dir, backup)
+	require.Equal(t, 0, code, stderr)
+	assert.Contains(t, out, "from the running hub")
+	require.NoError(t, storage.VerifyFile(backup))
+
+	fresh := filepath.Join(t.TempDir(), "restored")
+	code, _, stderr = runCmd(t, "", "restore", "--data", fresh, backup)
+	require.Equal(t, 0, code, stderr)
+	require.NoError(t, m.Close())
+	_, original, _ := runCmd(t, "", "export", "--data", dir)
+	_, restored, _ := runCmd(t, "", "export", "--data", fresh)
+	assert.Equal(t, original, restored)
+	assert.NoFileExists(t, filepath.Join(dir, hubAddressFile), "the address note goes with the hub")
+}
+
+// TestCommands_HelpListsEveryServeOption: help names each serve option.
+func TestCommands_HelpListsEveryServeOption(t *testing.T) {
+	code, out, _ := runCmd(t, "", "help")
+	require.Equal(t, 0, code)
+	m := NewMain()
+	var sink strings.Builder
+	fs, _ := m.flagSet(&sink)
+	fs.VisitAll(func(f *flag.Flag) {
+		assert.Contains(t, out, "--"+f.Name+" ", "help omits --%s", f.Name)
+	})
 }

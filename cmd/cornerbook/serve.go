@@ -30,6 +30,10 @@ const (
 	dbFile          = "cornerbook.db"
 	tlsDir          = "tls"
 	snapshotDir     = "snapshots"
+	// hubAddressFile holds, while a hub runs on the folder, the loopback
+	// address of its plain-HTTP port: commands that find the folder in
+	// use ask that hub instead (cornerbook backup).
+	hubAddressFile = "hub-address"
 	// SnapshotsKept is how many daily snapshots stay in the data folder.
 	SnapshotsKept = 14
 )
@@ -63,14 +67,21 @@ func NewMain() *Main {
 	return &Main{Config: Config{DataDir: DefaultDataDir, Addr: DefaultAddr, HTTPAddr: DefaultHTTPAddr}, Stdout: os.Stdout}
 }
 
-// ParseFlags reads the serve command line.
-func (m *Main) ParseFlags(args []string, stderr io.Writer) error {
-	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
+// flagSet is the serve command line's options, bound to m.Config; data
+// receives --data.
+func (m *Main) flagSet(stderr io.Writer) (fs *flag.FlagSet, data *string) {
+	fs = flag.NewFlagSet("serve", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	data := fs.String("data", "", "data folder (default "+DefaultDataDir+"; "+DemoDataDir+" with --demo)")
+	data = fs.String("data", "", "data folder (default "+DefaultDataDir+"; "+DemoDataDir+" with --demo)")
 	fs.StringVar(&m.Config.Addr, "addr", m.Config.Addr, "HTTPS listen address of the app on the camp Wi-Fi")
 	fs.StringVar(&m.Config.HTTPAddr, "http-addr", m.Config.HTTPAddr, "plain-HTTP address: the join page for phones and the coach's screen on this laptop")
 	fs.BoolVar(&m.Config.Demo, "demo", false, "serve the invented demo camp from its own folder, creating it on first use")
+	return fs, data
+}
+
+// ParseFlags reads the serve command line.
+func (m *Main) ParseFlags(args []string, stderr io.Writer) error {
+	fs, data := m.flagSet(stderr)
 	if err := parseInterleaved(fs, args); err != nil {
 		return errUsage
 	}
@@ -148,8 +159,24 @@ func (m *Main) Run(ctx context.Context) error {
 		}
 	})
 	go m.snapshots(ctx)
+	m.writeHubAddress(httpLn.Addr())
 	m.printAddresses(appURL)
 	return nil
+}
+
+// writeHubAddress records where commands on this laptop reach the hub,
+// when its plain-HTTP port listens on loopback (all addresses or
+// 127.0.0.1); a port bound to one LAN address only is not reachable so.
+func (m *Main) writeHubAddress(addr net.Addr) {
+	tcp, ok := addr.(*net.TCPAddr)
+	if !ok || !(tcp.IP.IsUnspecified() || tcp.IP.IsLoopback()) {
+		return
+	}
+	url := fmt.Sprintf("http://127.0.0.1:%d/", tcp.Port)
+	path := filepath.Join(m.Config.DataDir, hubAddressFile)
+	if err := os.WriteFile(path, []byte(url+"\n"), 0o600); err != nil {
+		m.Log.Printf("could not note the hub's address for commands: %v", err)
+	}
 }
 
 // snapshots writes one daily snapshot into the data folder, now and then
@@ -200,6 +227,7 @@ func (m *Main) Close() error {
 	var errs []error
 	if m.stop != nil {
 		m.stop()
+		os.Remove(filepath.Join(m.Config.DataDir, hubAddressFile))
 	}
 	if m.Server != nil {
 		errs = append(errs, m.Server.Close())

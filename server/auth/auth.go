@@ -61,7 +61,7 @@ var (
 	ErrThrottled       = errors.New("too many wrong attempts; wait a minute and try again")
 	ErrNoPassphrase    = errors.New("no coach passphrase is set yet; set one on the hub laptop first")
 	ErrWrongPassphrase = errors.New("wrong passphrase")
-	ErrPassphraseSet   = errors.New("the coach passphrase is already set; change it from a coach device")
+	ErrPassphraseSet   = errors.New("the coach passphrase is already set; change it on the hub laptop's own screen (Camp set-up)")
 	ErrBadSetupCode    = errors.New("the setup code is wrong; it is printed in the hub's console")
 	ErrJoinUnknown     = errors.New("join code not recognised; check it or ask the coach for a new one")
 	ErrJoinUsed        = errors.New("this join code has already been used; ask the coach for a new one")
