@@ -17,6 +17,7 @@ import (
 
 func (s *Server) routeAthletes(api *mux.Router) {
 	api.HandleFunc("/athletes/{id}/series", s.serve(s.handleSeries)).Methods(http.MethodGet)
+	api.HandleFunc("/athletes/{id}/plan", s.serve(s.handlePlanReport)).Methods(http.MethodGet)
 	api.HandleFunc("/plan/default", s.serve(s.handleDefaultPlan)).Methods(http.MethodGet)
 	api.HandleFunc("/plan/check", s.serve(s.handleCheckPlan)).Methods(http.MethodPost)
 	api.HandleFunc("/tables", s.serve(s.handleTables)).Methods(http.MethodGet)
@@ -169,7 +170,7 @@ func (s *Server) handleTables(w http.ResponseWriter, r *http.Request) error {
 	}
 	writeJSON(w, http.StatusOK, map[string]any{
 		"classes": cls, "cr10": records.CR10, "protocols": records.Protocols, "rules": records.Rules,
-		"levels": records.Levels,
+		"levels": records.Levels, "emphases": records.Emphases,
 	})
 	return nil
 }

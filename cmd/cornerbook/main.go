@@ -1,6 +1,6 @@
 // Command cornerbook is the camp hub: it serves the app and the sync
-// endpoints, and its subcommands import, export, compute flags, back up
-// and restore the data folder. Every subcommand works while the hub is
+// endpoints, and its subcommands import, export, compute flags, print a
+// fighter's camp plan, back up and restore the data folder. Every subcommand works while the hub is
 // stopped; while a hub holds the folder, it says so instead of hanging.
 package main
 
@@ -35,6 +35,8 @@ func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = runExport(args, stdout)
 	case "flags":
 		err = runFlags(args, stdout)
+	case "plan":
+		err = runPlan(args, stdout)
 	case "backup":
 		err = runBackup(args, stdout)
 	case "restore":
@@ -62,6 +64,7 @@ const usage = `Usage:
   cornerbook import  --data DIR FILE        (JSON Lines; - reads standard input)
   cornerbook export  --data DIR [--kind K] [--csv]
   cornerbook flags   --data DIR --day YYYY-MM-DD [--athlete ID] [--json]
+  cornerbook plan    --data DIR --athlete ID [--day YYYY-MM-DD] [--json]
   cornerbook backup  --data DIR FILE        (also while the hub runs: it asks the hub)
   cornerbook restore --data DIR FILE        (with the hub stopped)
 

@@ -17,6 +17,7 @@ import (
 	"math/rand/v2"
 	"time"
 
+	"cornerbook/server/plan"
 	"cornerbook/server/records"
 	"cornerbook/storage"
 	devsync "cornerbook/sync"
@@ -229,6 +230,26 @@ func (g *gen) fighter(f *fighter, start int) {
 		// The coach typed the taper week as "low" (a 25 % cut): off_plan
 		// points out that this is lighter than the 41–60 % band.
 		weeks[len(weeks)-1].Level = "low"
+	}
+	// The coach started from the product's starting plan for the camp's
+	// content (strength and conditioning emphases), kept the older load
+	// levels and sparring caps, and planned the journey to the bout.
+	if gen, err := plan.Generate(g.dayStr(campStart), g.dayStr(boutDay), nil); err == nil && len(gen) == len(weeks) {
+		for i := range weeks {
+			weeks[i].Strength, weeks[i].Conditioning = gen[i].Strength, gen[i].Conditioning
+		}
+	}
+	if f.key == "tomas" {
+		// Week 8, a low week, opens with the flight to the bout's city:
+		// 5 h west in winter, about 4 days to adjust, all in the low week.
+		k := 8
+		first := g.day(campStart + 7*(k-1))
+		from, _ := time.LoadLocation("Europe/London")
+		to, _ := time.LoadLocation("America/New_York")
+		dep := time.Date(first.Year(), first.Month(), first.Day(), 9, 0, 0, 0, from)
+		arr := dep.Add(8 * time.Hour).In(to)
+		weeks[k-1].Travel = &records.Travel{DepartAt: dep.Format(time.RFC3339), ArriveAt: arr.Format(time.RFC3339), FromZone: "Europe/London", ToZone: "America/New_York"}
+		weeks[k-1].Note = "Fly out Monday morning; easy runs and mobility until the body has adjusted."
 	}
 	f.weeks = weeks
 	g.add(records.KindBout, aid, campStart, 8, 0, coachTablet, records.Bout{

@@ -1,0 +1,66 @@
+package server
+
+import (
+	"encoding/json"
+	"fmt"
+	"net/http"
+
+	"github.com/gorilla/mux"
+
+	"cornerbook/server/plan"
+	"cornerbook/server/records"
+	devsync "cornerbook/sync"
+)
+
+// PlanReport is an athlete's current bout, week by week, planned against
+// done up to day (the camp's day; "" for today), with the plan's checks.
+// No bout: a user error naming the athlete.
+func (s *Server) PlanReport(athlete, day string) (plan.Report, error) {
+	if day == "" {
+		day = s.flags.Today()
+	}
+	in, err := s.flags.input(athlete, day)
+	if err != nil {
+		return plan.Report{}, err
+	}
+	if in.Bout == nil {
+		return plan.Report{}, userError(CodeNotFound, "athlete", "this athlete has no bout yet: plan a bout and its camp first")
+	}
+	var b records.Bout
+	if err := json.Unmarshal(in.Bout.Body, &b); err != nil {
+		return plan.Report{}, fmt.Errorf("the bout record %s is unreadable: %w", in.Bout.ID, err)
+	}
+	from, err := addDays(b.CampStart, -7*plan.PriorWeeks)
+	if err != nil {
+		from = b.CampStart
+	}
+	var recs []devsync.Record
+	for _, kind := range []string{records.KindSession, records.KindRound} {
+		if err := s.store.Range(athlete, kind, from, day, func(r devsync.Record) error {
+			recs = append(recs, r)
+			return nil
+		}); err != nil {
+			return plan.Report{}, err
+		}
+	}
+	return plan.BuildReport(in.Bout.ID, b, recs, day, in.Settings), nil
+}
+
+// handlePlanReport serves PlanReport; an athlete's device reads only its
+// own athlete's plan.
+func (s *Server) handlePlanReport(w http.ResponseWriter, r *http.Request) error {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return err
+	}
+	id := mux.Vars(r)["id"]
+	if who.Role == "athlete" && id != who.Athlete {
+		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's plan")
+	}
+	rep, err := s.PlanReport(id, r.URL.Query().Get("day"))
+	if err != nil {
+		return err
+	}
+	writeJSON(w, http.StatusOK, rep)
+	return nil
+}
