@@ -404,6 +404,7 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 			return fmt.Errorf("the bout record %s is unreadable: %w", r.ID, err)
 		}
 		r2 := r
+		in.Bouts = append(in.Bouts, r2)
 		switch {
 		case best == nil:
 			best, bestDay = &r2, b.BoutDay

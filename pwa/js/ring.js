@@ -19,8 +19,9 @@ function useEdit(kind) {
 }
 
 // ---------------- jump grid ----------------
-// Valid ranges: flight 200–1000 ms, i.e. about 4.9–122.6 cm by h = g·t²/8.
-const RANGE = { height: [1, 120, 'cm'], flight: [200, 1000, 'ms'] };
+// Valid ranges, the same as the hub's (records.MinHeightCm…): flight
+// 200–1000 ms, typed heights 4.9–122.6 cm (h = g·t²/8 at those times).
+const RANGE = { height: [4.9, 122.6, 'cm'], flight: [200, 1000, 'ms'] };
 
 export function Jumps() {
   const list = useAthletes();

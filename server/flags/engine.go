@@ -31,6 +31,7 @@ type checkin struct {
 
 type jump struct {
 	id      string
+	at      string
 	method  string
 	heights []float64 // valid attempts, cm
 }
@@ -85,6 +86,9 @@ type engine struct {
 	in    *Input
 	today day.Number
 	first day.Number // earliest day among the athlete's records (≤ today)
+	// active: the athlete has a record on or before today of a kind that
+	// marks activity (not athlete, settings, bout or note).
+	active bool
 
 	recent [recentDays]recent // recent[i] is day today−i
 	loads  []float64          // daily session load from first to today
@@ -98,6 +102,7 @@ type engine struct {
 	sparLog    []sparRound // every sparring round up to today
 
 	bout  *plan
+	bouts []*plan // every bout given, by camp start
 	out   []Flag
 	units string // the athlete's display units, "kg" or "lb"
 }
@@ -122,8 +127,11 @@ func newEngine(in *Input) (*engine, bool) {
 			continue
 		}
 		d, ok := dayOf(r.Day)
-		if ok && d < e.first && d >= today-maxHistoryDays && countsAsActivity(r.Kind) {
-			e.first = d
+		if ok && d <= today && d >= today-maxHistoryDays && countsAsActivity(r.Kind) {
+			e.active = true
+			if d < e.first {
+				e.first = d
+			}
 		}
 	}
 	e.loads = make([]float64, int(today-e.first)+1)
@@ -152,7 +160,7 @@ func newEngine(in *Input) (*engine, bool) {
 				var b JumpBody
 				if json.Unmarshal(r.Body, &b) == nil && (b.Test == "" || b.Test == "cmj") {
 					if h := ValidHeights(&b); len(h) > 0 {
-						e.recent[age].jumps = append(e.recent[age].jumps, jump{r.ID, b.Method, h})
+						e.recent[age].jumps = append(e.recent[age].jumps, jump{r.ID, r.At, b.Method, h})
 					}
 				}
 			}
@@ -217,7 +225,58 @@ func newEngine(in *Input) (*engine, bool) {
 	if in.Bout != nil && !in.Bout.Deleted {
 		e.bout = parsePlan(in.Bout)
 	}
+	e.collectBouts()
 	return e, true
+}
+
+// collectBouts gathers every bout given (Bout, Bouts and bout records),
+// once each, sorted by camp start.
+func (e *engine) collectBouts() {
+	seen := map[string]bool{}
+	addBout := func(r *devsync.Record) {
+		if r == nil || r.Deleted || r.Kind != kindBout || seen[r.ID] || (e.in.Athlete.ID != "" && r.Athlete != "" && r.Athlete != e.in.Athlete.ID) {
+			return
+		}
+		seen[r.ID] = true
+		if p := parsePlan(r); p != nil {
+			e.bouts = append(e.bouts, p)
+		}
+	}
+	if e.in.Bout != nil {
+		r := *e.in.Bout
+		if r.Kind == "" {
+			r.Kind = kindBout
+		}
+		addBout(&r)
+	}
+	for i := range e.in.Bouts {
+		addBout(&e.in.Bouts[i])
+	}
+	for i := range e.in.Records {
+		addBout(&e.in.Records[i])
+	}
+	sort.SliceStable(e.bouts, func(i, j int) bool { return e.bouts[i].campStart < e.bouts[j].campStart })
+}
+
+// betweenCamps reports whether d falls after a bout day and before the
+// next bout's camp start (or after the last bout with none planned): the
+// athlete is not in camp.
+func (e *engine) betweenCamps(d day.Number) bool {
+	after := false
+	for _, p := range e.bouts {
+		if p.hasBoutDay && p.boutDay < d {
+			after = true
+		}
+	}
+	if !after {
+		return false
+	}
+	for _, p := range e.bouts {
+		if p.hasCamp && p.campStart <= d && (!p.hasBoutDay || p.boutDay >= d) {
+			return false // in a camp again
+		}
+	}
+	return true
 }
 
 func dayOf(s string) (day.Number, bool) {
@@ -405,6 +464,13 @@ func (e *engine) attachDecisions() {
 			f.Decision = whole.ref(ScopeDay)
 		}
 	}
+}
+
+// atOf is a record's at as a time; the zero time (earliest) if it does
+// not parse, as morningMass reads it.
+func atOf(s string) time.Time {
+	t, _ := time.Parse(time.RFC3339, s)
+	return t
 }
 
 // num writes v with the given decimals.

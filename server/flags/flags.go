@@ -18,10 +18,17 @@
 // the rule as the product states it. Thresholds are the table in
 // server/records (records.Defaults), overridden by Input.Settings.
 //
+// The settled readings of the rules (PRODUCT.md) hold here: the mass trend
+// runs over the morning masses of the 42 days ending the day, before camp
+// start included, and mass_loss_fast's slope is stated against it; a
+// day's mass and each wellness item come from its earliest check-in (by
+// at) carrying the field, and its usg is the day's highest; the day's
+// earliest CMJ test is its monitoring test; a round is inside a stand-down
+// only after the incident; missing_checkin and mass_loss_fast are silent
+// between a bout day and the next camp start.
+//
 // Choices made where the rule leaves room (common practice, no source):
-//   - A day's morning mass is its earliest check-in carrying a mass; the
-//     mass trend runs over the masses logged (missing days are skipped, not
-//     filled) from camp start or 42 days back, whichever is later.
+//   - The mass trend skips days without a mass (they are not filled).
 //   - The default path's knee is never above the start mass, and a camp
 //     shorter than the final phase goes straight to the limit. Explicit
 //     knots replace the default path; before the first knot and after the
@@ -33,13 +40,13 @@
 //     the same session's sRPE, and counting both would double the load.
 //   - jump_drop does not mix measuring methods in one baseline; its
 //     typical error is the floored CV times the baseline.
-//   - wellness_drop divides by at least sd_floor points (0.5), so a
-//     near-constant baseline does not turn a one-point dip into z = −∞.
 //   - spar_on_hold never uses a stand-down shorter than the published
-//     minimum (30/60/90 days), whatever the settings say.
-//   - off_plan projects the week's load only from its third day on (a
-//     forming flag before), and judges a planned taper week from camp
-//     start until the taper week ends.
+//     minimum (30/60/90 days), whatever the settings say. Sparring inside
+//     a stand-down stays an alert until a decision naming the rule is
+//     recorded after it (a whole-day decision acknowledges it that day
+//     only).
+//   - A decision naming a rule wins over a whole-day decision for that
+//     rule's flags.
 //   - residual_gap with no session of the quality on record reports the
 //     days on record as a lower bound once they exceed the limit.
 package flags
@@ -99,6 +106,11 @@ type Input struct {
 	Location *time.Location  // camp time zone; nil means UTC
 	Athlete  devsync.Record  // the athlete record; its ID is the athlete id
 	Bout     *devsync.Record // current bout (nil if none)
+	// Bouts are all of the athlete's bouts (Bout among them or not): the
+	// spans between camps, when missing_checkin and mass_loss_fast are
+	// silent, run from one bout day to the next camp start. Bout records
+	// in Records count too.
+	Bouts []devsync.Record
 	// Settings are merged thresholds overriding the defaults
 	// (rule → parameter → value); absent entries take DefaultThresholds.
 	Settings map[string]map[string]float64

@@ -203,21 +203,24 @@ func TaperBand(referenceAU, minCutPct, maxCutPct float64) (lowAU, highAU float64
 // flight-time method, h = g·t²/8 (records.JumpHeightCm, g = records.G).
 func HeightFromFlight(ms float64) float64 { return records.JumpHeightCm(ms) }
 
-// ValidHeights lists a jump's valid attempts in cm (the ranges records
-// validation accepts), from heights if given, else from flight times.
+// ValidHeights lists a jump's valid attempts in cm, with the ranges entry
+// validation accepts (REFERENCES §1.2): from flight times (200–1000 ms)
+// when the mat gave them — the hub stores the heights derived from them
+// too, and a 1000 ms flight is 122.6 cm — else from typed heights
+// (4.9–122.6 cm).
 func ValidHeights(b *JumpBody) []float64 {
 	var out []float64
-	if len(b.HeightsCm) > 0 {
-		for _, h := range b.HeightsCm {
-			if h >= records.MinHeightCm && h <= records.MaxHeightCm {
-				out = append(out, h)
+	if len(b.FlightMs) > 0 {
+		for _, ms := range b.FlightMs {
+			if ms >= records.MinFlightMs && ms <= records.MaxFlightMs {
+				out = append(out, HeightFromFlight(ms))
 			}
 		}
 		return out
 	}
-	for _, ms := range b.FlightMs {
-		if ms >= records.MinFlightMs && ms <= records.MaxFlightMs {
-			out = append(out, HeightFromFlight(ms))
+	for _, h := range b.HeightsCm {
+		if h >= records.MinHeightCm && h <= records.MaxHeightCm {
+			out = append(out, h)
 		}
 	}
 	return out

@@ -3,7 +3,7 @@ package flags
 import (
 	"fmt"
 	"math"
-	"strings"
+	"sort"
 	"time"
 
 	"cornerbook/server/flags/day"
@@ -17,74 +17,78 @@ func items(c *CheckinBody) [5]*int {
 	return [5]*int{c.Fatigue, c.Sleep, c.Soreness, c.Stress, c.Mood}
 }
 
-// wellnessTotal returns day d's total from its earliest complete check-in.
-func (e *engine) wellnessTotal(d day.Number) (total float64, id string, body *CheckinBody, ok bool) {
+// dayItems returns day d's five wellness items, each from the earliest
+// check-in of the day (by at) that has it, and the check-ins used in
+// time order.
+func (e *engine) dayItems(d day.Number) (vals [5]*int, ids []string) {
 	r := e.at(d)
 	if r == nil {
-		return 0, "", nil, false
+		return
 	}
-	var bestAt time.Time
+	cs := make([]*checkin, len(r.checkins))
 	for i := range r.checkins {
-		c := &r.checkins[i]
-		sum, complete := 0, true
-		for _, v := range items(&c.body) {
-			if v == nil {
-				complete = false
-				break
+		cs[i] = &r.checkins[i]
+	}
+	sort.SliceStable(cs, func(i, j int) bool { return atOf(cs[i].at).Before(atOf(cs[j].at)) })
+	for _, c := range cs {
+		used := false
+		for k, v := range items(&c.body) {
+			if v != nil && vals[k] == nil {
+				vals[k], used = v, true
 			}
-			sum += *v
 		}
-		if !complete {
-			continue
-		}
-		t, _ := time.Parse(time.RFC3339, c.at)
-		if !ok || t.Before(bestAt) {
-			total, id, body, bestAt, ok = float64(sum), c.id, &c.body, t, true
+		if used {
+			ids = append(ids, c.id)
 		}
 	}
 	return
+}
+
+// dayWellness returns day d's wellness total (its five items as dayItems
+// reads them), false unless all five are logged.
+func (e *engine) dayWellness(d day.Number) (total float64, ids []string, ok bool) {
+	vals, ids := e.dayItems(d)
+	for _, v := range vals {
+		if v == nil {
+			return 0, nil, false
+		}
+		total += float64(*v)
+	}
+	return total, ids, true
 }
 
 // wellnessDrop: today's wellness total as a z-score against the previous
 // window's totals; and any single item at its worst.
 func (e *engine) wellnessDrop() {
 	const rule = RuleWellnessDrop
-	// Any single item at the worst level, in any of today's check-ins.
+	// Any single item of the day at the worst level.
 	itemMin := int(e.param(rule, "item_min"))
-	if r := e.at(e.today); r != nil {
+	{
+		vals, ids := e.dayItems(e.today)
 		var worst []string
-		var ids []string
-		for i := range r.checkins {
-			c := &r.checkins[i]
-			hit := false
-			for k, v := range items(&c.body) {
-				if v != nil && *v <= itemMin {
-					worst = appendUnique(worst, wellnessItems[k])
-					hit = true
-				}
-			}
-			if hit {
-				ids = append(ids, c.id)
+		for k, v := range vals {
+			if v != nil && *v <= itemMin {
+				worst = append(worst, wellnessItems[k])
 			}
 		}
 		if len(worst) > 0 {
 			e.add(Flag{Rule: rule, Level: LevelWatch, Title: "Wellness item at its worst", Value: f64(float64(itemMin)), Threshold: f64(float64(itemMin)),
 				ThresholdName: rule + ".item_min", Unit: "points", Inputs: ids,
-				Reason: fmt.Sprintf("Wellness item at its worst (%d of 5) today: %s.", itemMin, strings.Join(worst, ", "))})
+				Reason: fmt.Sprintf("Wellness item at its worst (%d of 5) today: %s.", itemMin, joinWords(worst))})
 		}
 	}
-	total, id, _, ok := e.wellnessTotal(e.today)
+	total, ids, ok := e.dayWellness(e.today)
 	if !ok {
 		return
 	}
 	window := int(e.param(rule, "window_days"))
 	minN := int(e.param(rule, "min_checkins"))
 	var base []float64
-	inputs := []string{id}
+	inputs := append([]string(nil), ids...)
 	for d := e.today - day.Number(window); d < e.today; d++ {
-		if t, bid, _, ok := e.wellnessTotal(d); ok {
+		if t, bids, ok := e.dayWellness(d); ok {
 			base = append(base, t)
-			inputs = append(inputs, bid)
+			inputs = append(inputs, bids...)
 		}
 	}
 	if len(base) < minN || len(base) < 2 {
@@ -110,15 +114,6 @@ func (e *engine) wellnessDrop() {
 		Details: map[string]float64{"z": z, "sd": sd, "sd_used": sdUsed, "threshold_z": thrZ, "baseline_checkins": float64(len(base))},
 		Reason: fmt.Sprintf("Wellness %.0f of 25, %.1f SD below the %d-day mean of %.1f (SD %.1f, %d check-ins).",
 			total, -z, window, mean, sdUsed, len(base))})
-}
-
-func appendUnique(xs []string, s string) []string {
-	for _, x := range xs {
-		if x == s {
-			return xs
-		}
-	}
-	return append(xs, s)
 }
 
 // hydration: the day's highest urine specific gravity reading.
@@ -152,11 +147,14 @@ func (e *engine) hydration() {
 	e.add(f)
 }
 
-// missingCheckin: no check-in for the day by the configured local hour.
+// missingCheckin: no check-in for the day by the configured local hour,
+// from the athlete's first record through the bout day, then again from
+// the next camp start. A check-in at any time of the day clears it; the
+// hour only delays today's flag.
 func (e *engine) missingCheckin() {
 	const rule = RuleMissingCheckin
-	if e.in.Now.IsZero() {
-		return
+	if e.in.Now.IsZero() || !e.active || e.betweenCamps(e.today) {
+		return // no record yet, or between a bout and the next camp
 	}
 	if r := e.at(e.today); r != nil && len(r.checkins) > 0 {
 		return

@@ -74,7 +74,7 @@ func TestWellnessConstantBaselineUsesFloor(t *testing.T) {
 	for i := 0; i < 7; i++ {
 		c.wellnessTotal(d(20+i), 20)
 	}
-	c.wellnessTotal(d(30), 19) // SD 0 floored at 0.5: z = −2
+	c.wellnessTotal(d(30), 18) // SD 0 floored at 1.0 point: z = −2
 	f := one(t, c.run(d(30)), RuleWellnessDrop)
 	wantLevel(t, f, LevelAlert, StatusFlag)
 	approxV(t, "z", f.Details["z"], -2, 1e-9)

@@ -10,14 +10,11 @@ import (
 	"cornerbook/server/flags/stats"
 )
 
-// massWindowStart is the first day of the mass trend: camp start, or the
-// start of the indexed window if the camp began earlier.
+// massWindowStart is the first day of the mass trend: the 42 days ending
+// today, masses before camp start included (the trend is seeded with the
+// first morning mass in them).
 func (e *engine) massWindowStart() day.Number {
-	from := e.today - recentDays + 1
-	if e.bout != nil && e.bout.hasCamp && e.bout.campStart > from {
-		from = e.bout.campStart
-	}
-	return from
+	return e.today - recentDays + 1
 }
 
 // trend is the exponentially weighted mean of the morning masses, seeded
@@ -76,19 +73,30 @@ func (e *engine) massAbovePath() {
 			e.mass(trend, 1), e.mass(excess, 1), pct, e.mass(limit, 1), e.mass(planned, 1), e.mass(latest, 1), latestDay)})
 }
 
-// inFinalDays reports whether today is in the final days before weigh-in
-// (weigh-in day included).
+// inFinalDays reports whether today is in a bout's final phase: from n
+// days before the weigh-in's calendar day through the bout day.
 func (e *engine) inFinalDays(n float64) bool {
-	p := e.bout
-	return p != nil && p.hasWeighIn && e.today <= p.weighIn && e.today >= p.weighIn-day.Number(n)
+	for _, p := range e.bouts {
+		if !p.hasWeighIn {
+			continue
+		}
+		end := p.weighIn
+		if p.hasBoutDay && p.boutDay > end {
+			end = p.boutDay
+		}
+		if e.today >= p.weighIn-day.Number(n) && e.today <= end {
+			return true
+		}
+	}
+	return false
 }
 
 // massLossFast: least-squares slope of the morning masses over the window,
 // as % of the trend mass per week.
 func (e *engine) massLossFast() {
 	const rule = RuleMassLossFast
-	if e.inFinalDays(e.param(rule, "final_days")) {
-		return // the planned acute phase is judged by the medical team, not this rule
+	if e.inFinalDays(e.param(rule, "final_days")) || e.betweenCamps(e.today) {
+		return // the acute phase is the medical team's; after the bout the athlete is not cutting
 	}
 	window := int(e.param(rule, "window_days"))
 	minN := int(e.param(rule, "min_checkins"))
@@ -103,6 +111,8 @@ func (e *engine) massLossFast() {
 		x[i] = float64(d - days[0])
 	}
 	slope := stats.Slope(x, kg) // kg per day
+	// The trend runs over the same morning masses (the 42 days ending
+	// today hold the 14 of the slope), so it is never absent here.
 	trend, _, _, _, _ := e.trend()
 	loss := -slope * 7 / trend * 100
 	level, name := "", ""

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 
 	"cornerbook/server/flags/day"
 )
@@ -17,38 +18,41 @@ func (e *engine) offPlan() {
 		return
 	}
 	ref := p.body.ReferenceLoadAU
-	// The plan's taper weeks, judged while they are current or ahead.
+	// The plan's taper (weeks whose level is taper): one info on the plan
+	// from camp start to the end of the last taper week when its cut is
+	// outside the band.
 	minCut, maxCut := e.param(rule, "taper_min_pct"), e.param(rule, "taper_max_pct")
 	taperFrac := e.param(rule, "level_taper")
 	cut := (1 - taperFrac) * 100
-	weeks := make([]int, 0, len(p.weekByIndex))
-	for k := range p.weekByIndex {
-		weeks = append(weeks, k)
+	var tapers []int
+	for k, w := range p.weekByIndex {
+		if w.Level == "taper" {
+			tapers = append(tapers, k)
+		}
 	}
-	sort.Ints(weeks)
-	for _, k := range weeks {
-		w := p.weekByIndex[k]
-		if w.Level != "taper" || !p.hasCamp {
-			continue
+	sort.Ints(tapers)
+	if n := len(tapers); n > 0 && p.hasCamp && (cut < minCut || cut > maxCut) {
+		end := p.campStart + day.Number(7*tapers[n-1]-1)
+		if e.today >= p.campStart && e.today <= end {
+			lo, hi := TaperBand(ref, minCut, maxCut)
+			thr, name, more := minCut, "taper_min_pct", "too little"
+			if cut > maxCut {
+				thr, name, more = maxCut, "taper_max_pct", "too much"
+			}
+			names := make([]string, n)
+			for i, k := range tapers {
+				names[i] = strconv.Itoa(k)
+			}
+			which := "week " + names[0]
+			if n > 1 {
+				which = "weeks " + joinWords(names)
+			}
+			e.add(Flag{Rule: rule, Level: LevelInfo, Title: "Taper cuts load " + more, Value: f64(cut), Threshold: f64(thr), ThresholdName: rule + "." + name,
+				Unit: "%", Inputs: []string{p.id},
+				Details: map[string]float64{"week": float64(tapers[0]), "taper_weeks": float64(n), "planned_au": taperFrac * ref, "band_low_au": lo, "band_high_au": hi},
+				Reason: fmt.Sprintf("The planned taper (%s) cuts load by %.0f %% of the %.0f AU reference week (%.0f AU a week); a cut of %.0f–%.0f %% (%.0f–%.0f AU) worked best (Bosquet et al. 2007).",
+					which, cut, ref, taperFrac*ref, minCut, maxCut, lo, hi)})
 		}
-		end := p.campStart + day.Number(7*k-1)
-		if e.today > end || e.today < p.campStart || (cut >= minCut && cut <= maxCut) {
-			continue
-		}
-		lo, hi := TaperBand(ref, minCut, maxCut)
-		thr, name := minCut, "taper_min_pct"
-		if cut > maxCut {
-			thr, name = maxCut, "taper_max_pct"
-		}
-		more := "too little"
-		if cut > maxCut {
-			more = "too much"
-		}
-		e.add(Flag{Rule: rule, Level: LevelInfo, Title: fmt.Sprintf("Taper in week %d cuts %s", k, more), Value: f64(cut), Threshold: f64(thr), ThresholdName: rule + "." + name,
-			Unit: "%", Inputs: []string{p.id},
-			Details: map[string]float64{"week": float64(k), "planned_au": taperFrac * ref, "band_low_au": lo, "band_high_au": hi},
-			Reason: fmt.Sprintf("Planned taper in week %d cuts load by %.0f %% of the %.0f AU reference week (%.0f AU); a cut of %.0f–%.0f %% (%.0f–%.0f AU) worked best (Bosquet et al. 2007).",
-				k, cut, ref, taperFrac*ref, minCut, maxCut, lo, hi)})
 	}
 	// This week's load against its planned level.
 	k, start, ok := p.week(e.today)

@@ -77,6 +77,7 @@ func goodRecords(t *testing.T) map[string]devsync.Record {
 		"jump heights":           mk(KindJump, "ath-1", "2026-03-02", `{"test":"cmj","heights_cm":[40,41,39.5],"method":"mat","session":"grid-1"}`),
 		"jump flight":            mk(KindJump, "ath-1", "2026-03-02", `{"test":"cmj","flight_ms":[500,520,480],"method":"mat"}`),
 		"jump flight edges":      mk(KindJump, "ath-1", "2026-03-02", `{"flight_ms":[200,1000,600,600,600,600]}`),
+		"jump height edges":      mk(KindJump, "ath-1", "2026-03-02", `{"heights_cm":[4.9,122.6]}`),
 		"round":                  mk(KindRound, "ath-1", "2026-03-02", `{"activity":"spar","seconds":180,"intensity":3,"partner":"Cy Fictive"}`),
 		"round drill":            mk(KindRound, "ath-1", "2026-03-02", `{"activity":"drill","seconds":10,"intensity":1}`),
 		"intervals template":     mk(KindIntervals, "ath-1", "2026-03-02", `{"protocol":"rounds_3x3","modality":"bag","work_s":180,"rest_s":60,"reps":3,"sets":1,"done_reps":3,"hr_peak":186,"hr_mean":164,"rpe":8}`),
@@ -288,8 +289,14 @@ func badCases(t *testing.T) []badCase {
 		{"jump no attempts", jump(`{"test":"cmj"}`), "body.heights_cm", []string{"1 to 6 attempts", "cm", "ms"}},
 		{"jump empty lists", jump(`{"heights_cm":[],"flight_ms":[]}`), "body.heights_cm", []string{"1 to 6"}},
 		{"jump seven heights", jump(`{"heights_cm":[30,30,30,30,30,30,30]}`), "body.heights_cm", []string{"1 to 6 attempts", "7"}},
-		{"jump height zero", jump(`{"heights_cm":[30,31,0]}`), "body.heights_cm[2]", []string{"1 and 120 cm", "got 0"}},
-		{"jump height in mm", jump(`{"heights_cm":[305]}`), "body.heights_cm[0]", []string{"120 cm"}},
+		// One valid range at entry and in the rules (REFERENCES.md §1.2):
+		// 200–1000 ms of flight, or typed heights 4.9–122.6 cm (g·t²/8 at
+		// those flight times, Bosco et al. 1983).
+		{"jump height zero", jump(`{"heights_cm":[30,31,0]}`), "body.heights_cm[2]", []string{"4.9 and 122.6 cm", "got 0"}},
+		{"jump height typo 1.5 cm", jump(`{"heights_cm":[1.5,35,36]}`), "body.heights_cm[0]", []string{"4.9 and 122.6 cm", "got 1.5"}},
+		{"jump height just below", jump(`{"heights_cm":[4.8]}`), "body.heights_cm[0]", []string{"4.9 and 122.6 cm"}},
+		{"jump height just above", jump(`{"heights_cm":[122.7]}`), "body.heights_cm[0]", []string{"4.9 and 122.6 cm"}},
+		{"jump height in mm", jump(`{"heights_cm":[305]}`), "body.heights_cm[0]", []string{"122.6 cm"}},
 		// REFERENCES.md §1.2: flight time 0.20–1.00 s.
 		{"jump flight short", jump(`{"flight_ms":[150]}`), "body.flight_ms[0]", []string{"200 and 1000 ms", "150"}},
 		{"jump flight in s", jump(`{"flight_ms":[500,0.52,480]}`), "body.flight_ms[1]", []string{"200 and 1000 ms"}},
@@ -329,6 +336,7 @@ func badCases(t *testing.T) []badCase {
 		{"intervals done reps", iv(`{"modality":"run","work_s":30,"rest_s":15,"reps":8,"sets":2,"done_reps":17}`), "body.done_reps", []string{"0 and 16"}},
 		{"intervals hr peak", iv(`{"modality":"run","work_s":30,"rest_s":15,"reps":8,"hr_peak":250}`), "body.hr_peak", []string{"40 and 230 bpm"}},
 		{"intervals hr mean", iv(`{"modality":"run","work_s":30,"rest_s":15,"reps":8,"hr_mean":30}`), "body.hr_mean", []string{"40 and 230 bpm"}},
+		{"intervals 60 done of 6 planned", iv(`{"modality":"bag","work_s":180,"rest_s":60,"reps":6,"done_reps":60}`), "body.done_reps", []string{"0 and 6", "60"}},
 		{"intervals mean above peak", iv(`{"modality":"run","work_s":30,"rest_s":15,"reps":8,"hr_peak":170,"hr_mean":175}`), "body.hr_mean", []string{"175", "170"}},
 		{"intervals rpe 11", iv(`{"modality":"run","work_s":30,"rest_s":15,"reps":8,"rpe":11}`), "body.rpe", []string{"0 and 10"}},
 		{"intervals rpe quarter", iv(`{"modality":"run","work_s":30,"rest_s":15,"reps":8,"rpe":6.25}`), "body.rpe", []string{"half points"}},

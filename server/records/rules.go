@@ -136,7 +136,7 @@ var Rules = []Rule{
 		value("watch_z", -1.5, "z", -5, 0, "z-score at or below which a watch starts"),
 		value("alert_z", -2.0, "z", -5, 0, "z-score at or below which an alert starts"),
 		whole("item_min", 1, "points", 1, 5, "a single item at this value or below starts a watch"),
-		value("sd_floor", 0.5, "points", 0, 5, "smallest baseline SD divided by"),
+		value("sd_floor", 1.0, "points", 0, 5, "smallest baseline SD divided by"),
 	}},
 	// Hew-Butler et al. 2018 (≥ 1.020); Casa et al. 2000 (> 1.030 serious).
 	{RuleHydration, []Param{

@@ -32,8 +32,8 @@ const (
 	MinRHR, MaxRHR         = 25, 150      // bpm; common practice, no source (trained resting rates reach the 30s)
 	MinFlightMs            = 200          // REFERENCES.md §1.2 (common practice): 0.20–1.00 s
 	MaxFlightMs            = 1000         //
-	MinHeightCm            = 1            // common practice, no source
-	MaxHeightCm            = 120          // common practice: ≈ the 1.00 s flight-time limit
+	MinHeightCm            = 4.9          // REFERENCES.md §1.2: h = g·t²/8 at 200 ms, to 0.1 cm
+	MaxHeightCm            = 122.6        // REFERENCES.md §1.2: h = g·t²/8 at 1000 ms, to 0.1 cm
 	MinAttempts            = 1            // common practice: three attempts are usual
 	MaxAttempts            = 6            //
 	MinUSG, MaxUSG         = 1.000, 1.040 // REFERENCES.md §6.4 (common practice)

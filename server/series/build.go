@@ -22,6 +22,7 @@ type checkin struct {
 type jump struct {
 	method  string
 	heights []float64
+	at      time.Time
 }
 
 type round struct {
@@ -78,7 +79,7 @@ func newBuilder(in *flags.Input, from, to day.Number) *builder {
 	// the load ratio counts days from it.
 	for i := range in.Records {
 		r := &in.Records[i]
-		if !own(r) || r.Kind == records.KindAthlete || r.Kind == records.KindBout || r.Kind == records.KindSettings {
+		if !own(r) || r.Kind == records.KindAthlete || r.Kind == records.KindBout || r.Kind == records.KindSettings || r.Kind == records.KindNote {
 			continue
 		}
 		if d, ok := dayOf(r.Day); ok && d <= to && d >= to-maxHistoryDays && d < b.first {
@@ -111,7 +112,8 @@ func newBuilder(in *flags.Input, from, to day.Number) *builder {
 			var j flags.JumpBody
 			if json.Unmarshal(r.Body, &j) == nil && (j.Test == "" || j.Test == "cmj") {
 				if h := flags.ValidHeights(&j); len(h) > 0 {
-					dd.jumps = append(dd.jumps, jump{j.Method, h})
+					t, _ := time.Parse(time.RFC3339, r.At) // unreadable: the zero time, as in the engine
+					dd.jumps = append(dd.jumps, jump{j.Method, h, t})
 				}
 			}
 		case records.KindRound:
@@ -193,13 +195,10 @@ func (b *builder) masses(ref, lo day.Number) (days []day.Number, kg []float64) {
 	return
 }
 
-// trend is the mass_above_path trend on day d.
+// trend is the mass_above_path trend on day d: the morning masses of the
+// 42 days ending d, before camp start included.
 func (b *builder) trend(d day.Number) (float64, bool) {
-	lo := d - recentDays + 1
-	if b.bout != nil && b.hasCamp && b.campStart > lo {
-		lo = b.campStart
-	}
-	_, kg := b.masses(d, lo)
+	_, kg := b.masses(d, d-recentDays+1)
 	if len(kg) == 0 {
 		return 0, false
 	}
@@ -289,41 +288,39 @@ func (b *builder) mass(s *Series) {
 	}
 }
 
-// jumpOn is day d's CMJ from jumps compatible with method (an empty
-// method on either side matches).
-func jumpOn(dd *dayData, method string) (mean, best float64, ok bool) {
-	if dd == nil {
-		return 0, 0, false
+// firstTest is the day's monitoring test: its earliest CMJ test by at
+// (later tests of the day enter no value).
+func firstTest(dd *dayData) (jump, bool) {
+	if dd == nil || len(dd.jumps) == 0 {
+		return jump{}, false
 	}
-	sum, n := 0.0, 0
-	for _, j := range dd.jumps {
-		if method != "" && j.method != "" && j.method != method {
-			continue
-		}
-		for _, h := range j.heights {
-			sum += h
-			n++
-			best = math.Max(best, h)
+	first := dd.jumps[0]
+	for _, j := range dd.jumps[1:] {
+		if j.at.Before(first.at) {
+			first = j
 		}
 	}
-	if n == 0 {
-		return 0, 0, false
-	}
-	return sum / float64(n), best, true
+	return first, true
 }
 
-// methodOf is the measuring method of a test day: its first jump that
-// names one.
+// jumpOn is day d's CMJ, its monitoring test, if compatible with method
+// (an empty method on either side matches).
+func jumpOn(dd *dayData, method string) (mean, best float64, ok bool) {
+	j, ok := firstTest(dd)
+	if !ok || (method != "" && j.method != "" && j.method != method) {
+		return 0, 0, false
+	}
+	for _, h := range j.heights {
+		mean += h
+		best = math.Max(best, h)
+	}
+	return mean / float64(len(j.heights)), best, true
+}
+
+// methodOf is the measuring method of a test day: its monitoring test's.
 func methodOf(dd *dayData) (string, bool) {
-	if dd == nil || len(dd.jumps) == 0 {
-		return "", false
-	}
-	for _, j := range dd.jumps {
-		if j.method != "" {
-			return j.method, true
-		}
-	}
-	return "", true
+	j, ok := firstTest(dd)
+	return j.method, ok
 }
 
 func (b *builder) jump(s *Series) {
@@ -468,27 +465,30 @@ func (b *builder) spar(s *Series) {
 	}
 }
 
-// wellnessTotal is the total of the day's earliest complete check-in.
+// wellnessTotal is the day's total: each of the five items from the
+// earliest check-in of the day (by at) that has it; false unless all five
+// are logged.
 func wellnessTotal(dd *dayData) (float64, bool) {
 	if dd == nil {
 		return 0, false
 	}
-	total, ok := 0.0, false
-	var bestAt time.Time
+	var vals [5]*int
+	var at [5]time.Time
 	for _, c := range dd.checkins {
-		sum, complete := 0, true
-		for _, v := range [5]*int{c.body.Fatigue, c.body.Sleep, c.body.Soreness, c.body.Stress, c.body.Mood} {
-			if v == nil {
-				complete = false
-				break
+		for k, v := range [5]*int{c.body.Fatigue, c.body.Sleep, c.body.Soreness, c.body.Stress, c.body.Mood} {
+			if v != nil && (vals[k] == nil || c.at.Before(at[k])) {
+				vals[k], at[k] = v, c.at
 			}
-			sum += *v
-		}
-		if complete && (!ok || c.at.Before(bestAt)) {
-			total, bestAt, ok = float64(sum), c.at, true
 		}
 	}
-	return total, ok
+	total := 0.0
+	for _, v := range vals {
+		if v == nil {
+			return 0, false
+		}
+		total += float64(*v)
+	}
+	return total, true
 }
 
 func (b *builder) wellness(s *Series) {

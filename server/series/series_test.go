@@ -103,10 +103,11 @@ func TestBuild_JSONShape(t *testing.T) {
 }
 
 // Mass: the morning mass is the day's earliest check-in by time; the trend
-// is the EWMA with λ = 2/(7+1) = 0.25 seeded with the first mass of the
-// camp (PRODUCT.md mass_above_path; recursion of Williams et al. 2017),
-// skipping days without a mass: 70.0, 69.6, 69.8, –, 69.5 give 70, 69.9,
-// 69.875, 69.875, 69.78125 [D]. The default path runs straight from 70 kg
+// is the EWMA with λ = 2/(7+1) = 0.25 seeded with the first morning mass of
+// the 42 days up to the day, masses before camp start included (PRODUCT.md
+// settled readings; recursion of Williams et al. 2017), skipping days
+// without a mass: 72.0, 70.0, 69.6, 69.8, –, 69.5 give 72, 71.5, 71.025,
+// 70.71875, 70.71875, 70.4140625 [D]. The default path runs straight from 70 kg
 // to limit × 1.05 seven days before a day-before weigh-in; with the knee
 // at 65 kg 56 days in, day 21 is 68.1250 kg (REFERENCES.md §6.1 linear
 // example), and the weigh-in day is the limit.
@@ -115,7 +116,7 @@ func TestBuild_MassTrendAndDefaultPath(t *testing.T) {
 	limit := 65 / 1.05
 	c.setBout(records.Bout{CampStart: d(0), WeighIn: d(63) + "T10:00:00+01:00", WeighInType: "day_before", BoutDay: d(64),
 		WeightClass: records.ClassCustom, LimitKg: limit, StartMassKg: 70})
-	c.mass(d(-1), "07:00", 72) // before the camp: not in the trend
+	c.mass(d(-1), "07:00", 72) // before the camp: seeds the trend
 	c.mass(d(0), "07:30", 71.0)
 	c.mass(d(0), "07:05", 70.0) // logged later, weighed earlier: the morning mass
 	c.mass(d(1), "07:00", 69.6)
@@ -124,10 +125,9 @@ func TestBuild_MassTrendAndDefaultPath(t *testing.T) {
 	s := series.Build(c.input(nil), d(-1), d(64))
 	m := s.Mass
 	near(t, "morning d(-1)", m.MorningKg[0], 72, 0)
-	isNull(t, "trend before camp start", m.TrendKg[0])
 	near(t, "morning d(0)", m.MorningKg[1], 70, 0)
-	for i, want := range []float64{70, 69.9, 69.875, 69.875, 69.78125} {
-		near(t, "trend", m.TrendKg[1+i], want, 1e-9)
+	for i, want := range []float64{72, 71.5, 71.025, 70.71875, 70.71875, 70.4140625} {
+		near(t, "trend", m.TrendKg[i], want, 1e-9)
 	}
 	isNull(t, "morning d(3)", m.MorningKg[4])
 	isNull(t, "path before camp start", m.PathKg[0])
@@ -304,8 +304,8 @@ func TestBuild_Sparring(t *testing.T) {
 	near(t, "planned heavy week", l.PlannedWeekAU[8], 2500, 1e-9)
 }
 
-// Wellness: total of the five items of the day's earliest complete
-// check-in (McLean et al. 2010); threshold = 28-day mean − 1.5 SD
+// Wellness: total of the five items (McLean et al. 2010), each from the
+// day's earliest check-in that has it (PRODUCT.md settled readings); threshold = 28-day mean − 1.5 SD
 // (wellness_drop watch level) once 7 check-ins are in. REFERENCES.md §5.3:
 // baseline 19, 20, 18, 21, 19, 17, 19 has mean 19.0 and sample SD
 // 1.290994, so the watch threshold is 17.063508 and the alert one
@@ -315,12 +315,12 @@ func TestBuild_Wellness(t *testing.T) {
 	for i, tot := range []int{19, 20, 18, 21, 19, 17, 19} {
 		c.wellness(d(i), "07:00", tot)
 	}
-	c.add(records.KindCheckin, d(7), "06:00", records.Checkin{Mood: ip(5)}) // incomplete: not a total
+	c.add(records.KindCheckin, d(7), "06:00", records.Checkin{Mood: ip(5)}) // the day's mood
 	c.wellness(d(7), "09:00", 22)
-	c.wellness(d(7), "07:00", 15) // the earliest complete check-in
+	c.wellness(d(7), "07:00", 15) // items 3, 3, 3, 3, 3: four of them are the day's
 	s := series.Build(c.input(nil), d(0), d(7))
 	w := s.Wellness
-	near(t, "total d(7)", w.Total[7], 15, 0)
+	near(t, "total d(7)", w.Total[7], 3*4+5, 0)
 	if w.Checkins[6] != 6 || w.Checkins[7] != 7 || w.MinCheckins != 7 {
 		t.Fatalf("check-ins %v, min %d", w.Checkins, w.MinCheckins)
 	}
@@ -328,4 +328,17 @@ func TestBuild_Wellness(t *testing.T) {
 	near(t, "mean", w.Mean[7], 19, 1e-9)
 	near(t, "watch threshold", w.WatchBelow[7], 17.063508, 0.000001)
 	near(t, "alert threshold", w.AlertBelow[7], 16.418011, 0.000001)
+}
+
+// Jumps (PRODUCT.md settled readings): with two CMJ tests on one day, the
+// earliest by at is the day's monitoring test; the later one enters
+// neither the day's value nor the baseline. 35.2/37.2/36.0 then
+// 41.0/41.5/40.8 give 36.1 cm, not 38.6 cm [D].
+func TestBuild_FirstJumpTestOfTheDay(t *testing.T) {
+	c := newCamp(t, "kg")
+	c.add(records.KindJump, d(0), "11:05", records.Jump{Test: "cmj", Method: "mat", HeightsCm: []float64{41.0, 41.5, 40.8}})
+	c.add(records.KindJump, d(0), "09:40", records.Jump{Test: "cmj", Method: "mat", HeightsCm: []float64{35.2, 37.2, 36.0}})
+	s := series.Build(c.input(nil), d(0), d(0))
+	near(t, "day value", s.Jump.MeanCm[0], (35.2+37.2+36.0)/3, 1e-9)
+	near(t, "best", s.Jump.BestCm[0], 37.2, 0)
 }
