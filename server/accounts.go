@@ -24,7 +24,8 @@ type Me struct {
 	PassphraseSet bool   `json:"passphraseSet"` // false: the laptop must set one first
 	Fingerprint   string `json:"fingerprint,omitempty"`
 	AppURL        string `json:"appURL,omitempty"`
-	Secure        bool   `json:"secure"` // the hub serves HTTPS to the LAN
+	JoinURL       string `json:"joinURL,omitempty"` // the join page as phones reach it, port included
+	Secure        bool   `json:"secure"`            // the hub serves HTTPS to the LAN
 }
 
 func (s *Server) routeAccounts(api *mux.Router) {
@@ -47,7 +48,7 @@ func (s *Server) needAuth() error {
 }
 
 func (s *Server) handleMe(w http.ResponseWriter, r *http.Request) error {
-	me := Me{Laptop: s.cfg.Auth == nil || auth.FromLaptop(r), Secure: s.cfg.Certs != nil, AppURL: s.cfg.AppURL}
+	me := Me{Laptop: s.cfg.Auth == nil || auth.FromLaptop(r), Secure: s.cfg.Certs != nil, AppURL: s.cfg.AppURL, JoinURL: s.cfg.JoinURL}
 	if s.cfg.Certs != nil {
 		me.Fingerprint = s.cfg.Certs.Fingerprint()
 	}

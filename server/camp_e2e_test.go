@@ -28,6 +28,7 @@ func TestE2ECampSetUp(t *testing.T) {
 	require.NoError(t, pwatest.Type(ctx, "camp-pass2", "gloves on the third hook"))
 	require.NoError(t, pwatest.Click(ctx, "camp-pass-save"))
 	require.NoError(t, pwatest.Poll(ctx, `!document.querySelector('[data-testid="camp-passphrase"]')`, 10*time.Second))
+	require.NoError(t, pwatest.WaitText(ctx, "camp-passphrase-set", "Only this laptop can change it"))
 	assert.True(t, accounts.HasPassphrase())
 	assert.NoError(t, accounts.CheckPassphrase("gloves on the third hook"))
 

@@ -49,6 +49,9 @@ type Config struct {
 	// Certs is the camp authority and the LAN certificate; nil means the
 	// hub serves plain HTTP only (loopback tests).
 	Certs *certs.Bundle
+	// JoinURL is the plain-HTTP join page phones open first; "" when
+	// phones cannot reach the hub (it listens on loopback only).
+	JoinURL string
 	// AppURL is the HTTPS address devices open (shown in QR codes).
 	AppURL string
 	// DataDir is where daily snapshots go; "" disables them.

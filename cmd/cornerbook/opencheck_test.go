@@ -2,7 +2,12 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"flag"
+	"io"
+	"log"
+	"net"
+	"net/http"
 	"os"
 	"path/filepath"
 	"strings"
@@ -12,6 +17,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"cornerbook/server/certs"
 	"cornerbook/storage"
 )
 
@@ -118,4 +124,52 @@ func TestCommands_HelpListsEveryServeOption(t *testing.T) {
 	fs.VisitAll(func(f *flag.Flag) {
 		assert.Contains(t, out, "--"+f.Name+" ", "help omits --%s", f.Name)
 	})
+}
+
+// TestMain_LoopbackOnlyTellsPhonesNothing: a hub whose join port listens
+// on 127.0.0.1 says phones cannot reach it, and shows no LAN address
+// (in its console or on Camp set-up) where it does not listen.
+func TestMain_LoopbackOnlyTellsPhonesNothing(t *testing.T) {
+	m := NewMain()
+	m.Config.Addr, m.Config.HTTPAddr, m.Config.DataDir = "127.0.0.1:0", "127.0.0.1:0", t.TempDir()
+	var out strings.Builder
+	m.Stdout = &out
+	m.Log = log.New(io.Discard, "", 0)
+	require.NoError(t, m.Run(context.Background()))
+	defer m.Close()
+	assert.Contains(t, out.String(), "cannot reach this hub: it listens on this laptop only")
+	assert.NotContains(t, out.String(), "Scan to open")
+	for _, ip := range certs.CurrentNames().IPs {
+		if !ip.IsLoopback() {
+			assert.NotContains(t, out.String(), ip.String())
+		}
+	}
+	resp, err := http.Get("http://" + m.Server.BootstrapAddr() + "/api/me")
+	require.NoError(t, err)
+	var me struct{ JoinURL string }
+	require.NoError(t, json.NewDecoder(resp.Body).Decode(&me))
+	resp.Body.Close()
+	assert.Empty(t, me.JoinURL)
+}
+
+// TestPhoneHost: the host phones are told for each kind of listen address.
+func TestPhoneHost(t *testing.T) {
+	lan := func() string { return "192.0.2.10" }
+	none := func() string { return "localhost" }
+	cases := []struct {
+		ip      string
+		primary func() string
+		want    string
+	}{
+		{"127.0.0.1", lan, ""},
+		{"::1", lan, ""},
+		{"0.0.0.0", lan, "192.0.2.10"},
+		{"::", lan, "192.0.2.10"},
+		{"0.0.0.0", none, ""},
+		{"192.0.2.20", lan, "192.0.2.20"},
+	}
+	for _, c := range cases {
+		got := phoneHost(&net.TCPAddr{IP: net.ParseIP(c.ip), Port: 8080}, c.primary)
+		assert.Equal(t, c.want, got, "listening on %s", c.ip)
+	}
 }

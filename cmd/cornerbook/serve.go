@@ -60,6 +60,8 @@ type Main struct {
 	Auth   *auth.Store
 	Certs  *certs.Bundle
 	stop   context.CancelFunc
+
+	joinURL string // the join page as phones reach it; "" if they cannot
 }
 
 // NewMain returns a Main with the defaults.
@@ -141,9 +143,19 @@ func (m *Main) Run(ctx context.Context) error {
 		return fmt.Errorf("listen on %s: %w", m.Config.HTTPAddr, err)
 	}
 	_, httpsPort, _ := net.SplitHostPort(httpsLn.Addr().String())
-	appURL := "https://" + net.JoinHostPort(primaryHost(), httpsPort) + "/"
+	appHost := phoneHost(httpsLn.Addr(), primaryHost)
+	if appHost == "" {
+		appHost = "localhost"
+	}
+	appURL := "https://" + net.JoinHostPort(appHost, httpsPort) + "/"
+	joinURL := ""
+	if h := phoneHost(httpLn.Addr(), primaryHost); h != "" {
+		_, httpPort, _ := net.SplitHostPort(httpLn.Addr().String())
+		joinURL = "http://" + net.JoinHostPort(h, httpPort) + "/"
+	}
+	m.joinURL = joinURL
 	srv, err := server.New(server.Config{Store: db, Now: m.Now, Log: m.Log, Auth: accounts, Certs: bundle,
-		AppURL: appURL, DataDir: m.Config.DataDir})
+		AppURL: appURL, JoinURL: joinURL, DataDir: m.Config.DataDir})
 	if err != nil {
 		return err
 	}
@@ -197,6 +209,25 @@ func (m *Main) snapshots(ctx context.Context) {
 	}
 }
 
+// phoneHost is the host phones use to reach a listener: "" when it
+// listens on loopback only (phones cannot reach it), the LAN address
+// primary gives when it listens on all addresses, else its own address.
+func phoneHost(addr net.Addr, primary func() string) string {
+	tcp, ok := addr.(*net.TCPAddr)
+	switch {
+	case !ok:
+		return ""
+	case tcp.IP.IsLoopback():
+		return ""
+	case tcp.IP.IsUnspecified():
+		if h := primary(); h != "localhost" {
+			return h
+		}
+		return ""
+	}
+	return tcp.IP.String()
+}
+
 // primaryHost is the address phones use: the first LAN IPv4 address, else localhost.
 func primaryHost() string {
 	names := certs.CurrentNames()
@@ -213,13 +244,21 @@ func (m *Main) printAddresses(appURL string) {
 	w := m.Stdout
 	fmt.Fprintf(w, "Cornerbook hub is running (data folder %s).\n\n", m.Config.DataDir)
 	fmt.Fprintf(w, "  Coach, on this laptop:   http://localhost:%s/\n", httpPort)
-	fmt.Fprintf(w, "  Phones and tablets:      http://%s:%s/  (join page: trust the camp certificate once)\n", primaryHost(), httpPort)
-	fmt.Fprintf(w, "  The app on the camp Wi-Fi: %s\n\n", appURL)
+	if m.joinURL == "" {
+		fmt.Fprintf(w, "  Phones and tablets:      cannot reach this hub: it listens on this laptop only (--http-addr %s).\n", m.Config.HTTPAddr)
+		fmt.Fprintf(w, "                           Start it with --http-addr :%s to let phones join over the Wi-Fi.\n\n", httpPort)
+	} else {
+		fmt.Fprintf(w, "  Phones and tablets:      %s  (join page: trust the camp certificate once)\n", m.joinURL)
+		fmt.Fprintf(w, "  The app on the camp Wi-Fi: %s\n\n", appURL)
+	}
 	fmt.Fprintf(w, "  Camp certificate fingerprint (SHA-256):\n    %s\n", m.Certs.Fingerprint())
 	if !m.Auth.HasPassphrase() {
 		fmt.Fprintf(w, "\n  No coach passphrase yet: set it on this laptop's screen, or elsewhere with the setup code %s\n", m.Auth.SetupCode())
 	}
-	fmt.Fprintf(w, "\nScan to open the join page:\n%s\nPress Ctrl+C to stop.\n", auth.QRTerminal(fmt.Sprintf("http://%s:%s/", primaryHost(), httpPort)))
+	if m.joinURL != "" {
+		fmt.Fprintf(w, "\nScan to open the join page:\n%s", auth.QRTerminal(m.joinURL))
+	}
+	fmt.Fprintf(w, "\nPress Ctrl+C to stop.\n")
 }
 
 // Close shuts the hub down and closes the store.

@@ -35,24 +35,35 @@ function Passphrase({ me, onDone }) {
   const [p1, setP1] = useState('');
   const [p2, setP2] = useState('');
   const [state, setState] = useState(null);
+  const [open, setOpen] = useState(false);
   const submit = async (e) => {
     e.preventDefault();
     if (p1.length < 10) return setState({ error: 'Use at least 10 characters: a short sentence is easy to remember and hard to guess.' });
     if (p1 !== p2) return setState({ error: 'The two passphrases differ; type the same one twice.' });
     try {
       await hubPost('/api/setup', { passphrase: p1 });
-      setState(savedState('Passphrase set. You can now sign in as the coach from another device.'));
+      setP1('');
+      setP2('');
+      setOpen(false);
+      setState(null);
       onDone();
     } catch (err) { setState({ error: `Not set: ${why(err)}` }); }
   };
+  if (me.passphraseSet && !open) {
+    return html`<div class="card" data-testid="camp-passphrase-set">
+      <h2>Coach's passphrase</h2>
+      <p class="muted">Set. Only this laptop can change it; devices already signed in stay signed in (remove any you no longer trust below).</p>
+      <button type="button" data-testid="camp-pass-change" onClick=${() => setOpen(true)}>Change passphrase</button>
+    </div>`;
+  }
   return html`<form class="card" onSubmit=${submit} data-testid="camp-passphrase" novalidate>
-    <h2>Set the coach's passphrase</h2>
-    <p class="muted">Needed once, on this laptop. It lets you sign in as the coach on a tablet; phones join with codes instead.</p>
+    <h2>${me.passphraseSet ? "Change the coach's passphrase" : "Set the coach's passphrase"}</h2>
+    <p class="muted">${me.passphraseSet ? 'Only this laptop can change it. The old one stops working at once for new sign-ins.' : 'Needed once, on this laptop. It lets you sign in as the coach on a tablet; phones join with codes instead.'}</p>
     <label for="pp1">Passphrase</label>
     <input id="pp1" type="password" autocomplete="new-password" data-testid="camp-pass1" value=${p1} onInput=${(e) => setP1(e.target.value)} />
     <label for="pp2">Once more</label>
     <input id="pp2" type="password" autocomplete="new-password" data-testid="camp-pass2" value=${p2} onInput=${(e) => setP2(e.target.value)} />
-    <button class="primary" type="submit" data-testid="camp-pass-save">Set passphrase</button>
+    <button class="primary" type="submit" data-testid="camp-pass-save">${me.passphraseSet ? 'Change passphrase' : 'Set passphrase'}</button>
     <${SaveLine} state=${state} />
   </form>`;
 }
@@ -214,11 +225,11 @@ export function Camp() {
     <h1>Camp set-up</h1>
     ${me.fingerprint && html`<div class="card" data-testid="camp-fingerprint">
       <h2>Camp certificate</h2>
-      <p class="muted">Phones check this fingerprint before trusting the hub (join page: port 8080 of this laptop).</p>
+      <p class="muted">Phones check this fingerprint before trusting the hub${me.joinURL ? html` (join page: <strong data-testid="camp-join-url">${me.joinURL}</strong>)` : ''}.</p>
       <p class="fp num">${me.fingerprint}</p>
       ${me.appURL && html`<p>App address: <strong>${me.appURL}</strong></p>`}
     </div>`}
-    ${me.laptop && !me.passphraseSet && html`<${Passphrase} me=${me} onDone=${bump} />`}
+    ${me.laptop && html`<${Passphrase} me=${me} onDone=${bump} />`}
     <${JoinCode} athletes=${athletes} />
     <${Devices} athletes=${athletes} version=${version} onChange=${bump} />
     <${AddAthlete} />
