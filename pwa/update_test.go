@@ -21,11 +21,13 @@ func TestUpdateWaitsForTheTapThenReloadsOnce(t *testing.T) {
 	v1 := load()
 	// Build 2: the same tree with one file changed.
 	next := fstest.MapFS{}
-	require.NoError(t, fs.WalkDir(app, ".", func(p string, d fs.DirEntry, err error) error {
+	base, err := withGenerated(app)
+	require.NoError(t, err)
+	require.NoError(t, fs.WalkDir(base, ".", func(p string, d fs.DirEntry, err error) error {
 		if err != nil || d.IsDir() {
 			return err
 		}
-		b, err := fs.ReadFile(app, p)
+		b, err := fs.ReadFile(base, p)
 		next[p] = &fstest.MapFile{Data: b}
 		return err
 	}))

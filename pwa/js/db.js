@@ -12,6 +12,7 @@ import { openDB } from '/vendor/idb/index.js';
 import { Clock } from './hlc.js';
 import { hubWins, localDay, rfc3339, setClockOffset } from './record.js';
 import { uuidv7 } from './uuid.js';
+import { checkBody, CheckError } from './checks.js';
 
 export const DB_NAME = 'cornerbook';
 const DB_VERSION = 1;
@@ -147,7 +148,9 @@ async function write(id, change, op) {
     ...fields,
     id: (old && old.id) || fields.id || uuidv7(),
     device: me,
-    at: rfc3339(),
+    // at is when the entry was observed: a correction, delete or restore
+    // keeps it; the stamp records the edit.
+    at: (old && old.at) || rfc3339(),
     stamp,
   };
   if (!rec.athlete) delete rec.athlete;
@@ -166,8 +169,12 @@ async function write(id, change, op) {
   return rec;
 }
 
-// save creates or edits a record: {id?, kind, athlete?, day, body}.
+// save creates or edits a record: {id?, kind, athlete?, day, body}. The
+// hub's checks run first: what the hub would refuse is refused here, with
+// its field and words (a CheckError), and nothing is saved.
 export function save(draft) {
+  const bad = checkBody(draft.kind, draft.body);
+  if (bad) return Promise.reject(new CheckError(draft.kind, bad));
   return write(draft.id, (old) => {
     const f = { kind: draft.kind, day: draft.day, body: draft.body };
     if (draft.athlete) f.athlete = draft.athlete;

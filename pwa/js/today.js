@@ -4,8 +4,12 @@ import { byDay, remove, restore } from './db.js';
 import { localDay, fromKg } from './record.js';
 import { INCIDENTS, CR10 } from './screens.js';
 
-const EDIT_ROUTE = { checkin: '/checkin', jump: '/jumps', round: '/rounds', intervals: '/intervals', session: '/session', incident: '/incident', clearance: '/clearance' };
-const KIND_NAME = { checkin: 'Check-in', jump: 'Jump test', round: 'Round', intervals: 'Intervals', session: 'Session', incident: 'Incident', clearance: 'Clearance', note: 'Note', decision: 'Decision', bout: 'Bout plan', settings: 'Settings' };
+import { VOCAB } from './vocab.js';
+
+// Each kind's words and the screen that corrects it come from the hub's
+// registry of record kinds.
+const EDIT_ROUTE = Object.fromEntries(Object.entries(VOCAB.kinds).filter(([k, v]) => v.screen && v.dated).map(([k, v]) => [k, v.screen]));
+const KIND_NAME = Object.fromEntries(Object.entries(VOCAB.kinds).map(([k, v]) => [k, v.label[0].toUpperCase() + v.label.slice(1)]));
 const ACT = { spar: 'sparring', pads: 'pads', bag: 'bag', drill: 'drill', other: 'other' };
 const INT = { 1: 'easy', 2: 'moderate', 3: 'hard' };
 
@@ -38,8 +42,24 @@ export function summary(r, units) {
     case 'incident': return (INCIDENTS.find(([v]) => v === b.type) || [b.type, b.type])[1] + (b.note ? ` — ${b.note}` : '');
     case 'clearance': return `cleared by ${b.by}`;
     case 'note': return b.text || '';
-    default: return '';
+    default: return fieldSummary(r.kind, b);
   }
+}
+
+// fieldSummary is a kind's line from its registry fields: each number with
+// its unit, each word as it is.
+function fieldSummary(kind, b) {
+  const k = VOCAB.kinds[kind];
+  if (!k) return '';
+  const parts = [];
+  for (const f of k.fields) {
+    const name = f.path.replace(/^body\./, '');
+    if (name.includes('.') || name.includes('[')) continue;
+    const v = b[name];
+    if (v === undefined || v === null || v === '') continue;
+    parts.push(typeof v === 'number' ? `${f.label.toLowerCase()} ${v}${f.unit ? ' ' + f.unit : ''}` : String(v));
+  }
+  return parts.join(', ');
 }
 
 export function Today() {

@@ -9,7 +9,8 @@ import (
 	devsync "cornerbook/sync"
 )
 
-// Who may write which kind.
+// Who may write which kind comes from the registry of record kinds
+// (records.Registry, each kind's Writers).
 //
 // Athletes write what they report about themselves: the morning check-in,
 // their session RPE, and notes. Staff (assistant coaches, physios, cutmen)
@@ -19,12 +20,22 @@ import (
 // knock and a decision acknowledges a flag, both the coach's judgement
 // (the medical team's, for clearances, entered by the coach).
 var (
-	athleteKinds = []string{records.KindCheckin, records.KindSession, records.KindNote}
-	staffKinds   = []string{
-		records.KindCheckin, records.KindJump, records.KindRound, records.KindIntervals,
-		records.KindSession, records.KindIncident, records.KindNote,
-	}
+	athleteKinds = records.WrittenBy(records.RoleAthlete)
+	staffKinds   = records.WrittenBy(records.RoleStaff)
 )
+
+// pluralsOf lists the kinds' words: "check-ins, sessions and notes".
+func pluralsOf(kinds []string) string {
+	words := make([]string, len(kinds))
+	for i, k := range kinds {
+		kind, _ := records.KindOf(k)
+		words[i] = kind.Plural
+	}
+	if len(words) < 2 {
+		return strings.Join(words, "")
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " and " + words[len(words)-1]
+}
 
 // ForbiddenError says which field of a record a device may not write and
 // why. errors.Is(err, ErrForbidden) is true; errors.As finds the
@@ -126,7 +137,7 @@ func canWriteContent(d Device, rec *devsync.Record, prefix string) error {
 		return nil
 	case RoleAthlete:
 		if !slices.Contains(athleteKinds, rec.Kind) {
-			return forbid("kind", "%san athlete's device can write check-ins, sessions and notes, not %s records", prefix, kindName(rec.Kind))
+			return forbid("kind", "%san athlete's device can write %s, not %s records", prefix, pluralsOf(athleteKinds), kindName(rec.Kind))
 		}
 		if d.Athlete == "" || rec.Athlete != d.Athlete {
 			who := "the whole camp"

@@ -271,20 +271,14 @@ func ExportCSV(db *storage.DB, w io.Writer, kind string) error {
 	return cw.Error()
 }
 
-var bodyTypes = map[string]reflect.Type{
-	records.KindAthlete:   reflect.TypeOf(records.Athlete{}),
-	records.KindSettings:  reflect.TypeOf(records.Settings{}),
-	records.KindBout:      reflect.TypeOf(records.Bout{}),
-	records.KindCheckin:   reflect.TypeOf(records.Checkin{}),
-	records.KindJump:      reflect.TypeOf(records.Jump{}),
-	records.KindRound:     reflect.TypeOf(records.Round{}),
-	records.KindIntervals: reflect.TypeOf(records.Intervals{}),
-	records.KindSession:   reflect.TypeOf(records.Session{}),
-	records.KindIncident:  reflect.TypeOf(records.Incident{}),
-	records.KindClearance: reflect.TypeOf(records.Clearance{}),
-	records.KindDecision:  reflect.TypeOf(records.Decision{}),
-	records.KindNote:      reflect.TypeOf(records.Note{}),
-}
+// bodyTypes are the record kinds' body types, from the registry.
+var bodyTypes = func() map[string]reflect.Type {
+	m := make(map[string]reflect.Type, len(records.Registry))
+	for i := range records.Registry {
+		m[records.Registry[i].Name] = records.Registry[i].BodyType()
+	}
+	return m
+}()
 
 type column struct{ name, header string }
 

@@ -34,11 +34,8 @@ const (
 	KindNote      = "note"
 )
 
-// Kinds lists every kind in a stable order (export, CSV files, docs).
-var Kinds = []string{
-	KindAthlete, KindSettings, KindBout, KindCheckin, KindJump, KindRound,
-	KindIntervals, KindSession, KindIncident, KindClearance, KindDecision, KindNote,
-}
+// Kinds lists every kind in the registry's order (export, CSV files, docs).
+var Kinds = kindNames()
 
 // Athlete is the body of an athlete record; the record id is the athlete id.
 type Athlete struct {

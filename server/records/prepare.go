@@ -49,30 +49,7 @@ const (
 	MaxIDLen   = 64   // record ids: a UUID is 36, a ULID 26 characters
 )
 
-// Kind groups.
-var (
-	// campWide kinds may have no athlete (settings without one are camp-wide).
-	campWide = map[string]bool{KindSettings: true}
-	// undated kinds carry no day of their own (it is optional).
-	undated = map[string]bool{KindAthlete: true, KindSettings: true, KindBout: true}
-)
-
 type validator func(c *check, raw json.RawMessage) (any, error)
-
-var validators = map[string]validator{
-	KindAthlete:   validateAthlete,
-	KindSettings:  validateSettings,
-	KindBout:      validateBout,
-	KindCheckin:   validateCheckin,
-	KindJump:      validateJump,
-	KindRound:     validateRound,
-	KindIntervals: validateIntervals,
-	KindSession:   validateSession,
-	KindIncident:  validateIncident,
-	KindClearance: validateClearance,
-	KindDecision:  validateDecision,
-	KindNote:      validateNote,
-}
 
 // check carries what a body validator needs besides the body.
 type check struct {
@@ -96,7 +73,8 @@ func prepare(rec *devsync.Record, now *time.Time) error {
 	if !utf8.Valid(rec.Body) {
 		return fe("body", "contains bytes that are not UTF-8 text; re-enter the text fields")
 	}
-	body, err := validators[rec.Kind](c, rec.Body)
+	kind, _ := KindOf(rec.Kind)
+	body, err := kind.validate(c, rec.Body)
 	if err != nil {
 		return err
 	}
@@ -113,7 +91,8 @@ func (c *check) common() error {
 	if err := checkID("id", rec.ID, "the record's id"); err != nil {
 		return err
 	}
-	if _, ok := validators[rec.Kind]; !ok {
+	kind, ok := KindOf(rec.Kind)
+	if !ok {
 		if rec.Kind == "" {
 			return fe("kind", "is required: one of %s", strings.Join(Kinds, ", "))
 		}
@@ -124,7 +103,7 @@ func (c *check) common() error {
 		if rec.Athlete != "" && rec.Athlete != rec.ID {
 			return fe("athlete", "of an athlete record must be empty or equal to its id %q; got %q", rec.ID, rec.Athlete)
 		}
-	case campWide[rec.Kind] && rec.Athlete == "":
+	case kind.Scope == CampOrAthlete && rec.Athlete == "":
 		// camp-wide
 	case rec.Athlete == "":
 		return fe("athlete", "is required: the id of the athlete this %s belongs to", rec.Kind)
@@ -134,7 +113,7 @@ func (c *check) common() error {
 		}
 	}
 	switch {
-	case rec.Day == "" && undated[rec.Kind]:
+	case rec.Day == "" && !kind.Dated:
 	case rec.Day == "":
 		return fe("day", "is required: the calendar day the %s belongs to, YYYY-MM-DD", rec.Kind)
 	default:

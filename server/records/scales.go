@@ -83,6 +83,25 @@ func ProtocolByID(id string) (Protocol, bool) {
 	return Protocol{}, false
 }
 
-// Modalities are the suggested interval modalities. Validation accepts
-// any short text, because camps use what they have.
-var Modalities = []string{"run", "shuttle", "bike", "row", "ski", "bag", "pads", "shadow", "rope", "swim", "circuit", "other"}
+// Option is a value a screen offers, with its words.
+type Option struct {
+	ID    string `json:"id"`
+	Label string `json:"label"`
+}
+
+// ModalityOptions are the suggested interval modalities, with their words.
+// Validation accepts any short text, because camps use what they have.
+var ModalityOptions = []Option{
+	{"run", "Run"}, {"shuttle", "Shuttle"}, {"bike", "Bike"}, {"row", "Rower"}, {"ski", "Ski ergometer"},
+	{"bag", "Bag"}, {"pads", "Pads"}, {"shadow", "Shadow boxing"}, {"rope", "Skipping rope"}, {"swim", "Swim"},
+	{"circuit", "Circuit"}, {"other", "Other"},
+}
+
+// Modalities are the ids of ModalityOptions.
+var Modalities = func() []string {
+	out := make([]string, len(ModalityOptions))
+	for i, o := range ModalityOptions {
+		out[i] = o.ID
+	}
+	return out
+}()

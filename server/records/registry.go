@@ -1,0 +1,468 @@
+package records
+
+import (
+	"encoding/json"
+	"math"
+	"reflect"
+	"strconv"
+	"strings"
+)
+
+// The registry of record kinds: the one place a kind is described. Every
+// other table is derived from it — the kind list and validators here,
+// who may write it (server/auth), the CSV columns (server/dataio) and the
+// app's vocabulary (pwa: /js/vocab.js, generated at embed time from
+// Vocab). Adding a kind is one entry below plus its screen.
+
+// Roles that may write a kind besides the coach, who writes every kind.
+const (
+	RoleStaff   = "staff"
+	RoleAthlete = "athlete"
+)
+
+// Scope says whether a kind belongs to one athlete, to the whole camp, or
+// may be either.
+type Scope string
+
+const (
+	PerAthlete    Scope = "athlete" // names a live athlete
+	CampOrAthlete Scope = "either"  // no athlete: camp-wide; with one: that athlete's
+	Self          Scope = "self"    // the athlete record itself (athlete = its id)
+)
+
+// Kind describes one record kind.
+type Kind struct {
+	Name   string // the kind's id in the record format
+	Label  string // words for one entry: "check-in"
+	Plural string // words for several: "check-ins"
+	Body   any    // the body's Go type, as a zero value (Checkin{})
+	// Writers are the roles besides the coach that may write it; an
+	// athlete's device only for its own athlete.
+	Writers []string
+	Scope   Scope
+	Dated   bool     // carries the calendar day it belongs to
+	Screen  string   // the app's route that writes and corrects it ("/checkin")
+	Rules   []string // flag rules that read it
+	// Fields are the body's fields a screen shows, with their words, units
+	// and the limits validation enforces. A generated test holds Prepare
+	// to every limit here, and the app's checks (pwa/js/checks.js, reading
+	// the vocabulary) to the same refusals.
+	Fields []Field
+	// Example is a valid body: the start of the generated tests.
+	Example string
+	// Cases are refusals beyond a single field's limits (one field against
+	// another, or a date against the camp): each a change to Example and
+	// the field the refusal names. The app checks them too.
+	Cases    []Case
+	validate validator
+}
+
+// Field describes one body field. Path is its JSON path in the record
+// ("body.mass_kg"); "[]" marks every element of an array
+// ("body.heights_cm[]").
+type Field struct {
+	Path  string   `json:"path"`
+	Label string   `json:"label"`          // words on screen: "Body mass"
+	Unit  string   `json:"unit,omitempty"` // shown beside the number
+	Min   *float64 `json:"min,omitempty"`
+	Max   *float64 `json:"max,omitempty"`
+	// MinAbove makes Min exclusive (more than Min).
+	MinAbove bool `json:"min_above,omitempty"`
+	// MaxYearsAgo bounds a year to the current year minus this many.
+	MaxYearsAgo int     `json:"max_years_ago,omitempty"`
+	Whole       bool    `json:"whole,omitempty"`
+	Step        float64 `json:"step,omitempty"` // e.g. 0.5: whole or half points
+	// Decimals shows the limits with this many decimals (0: as they are).
+	Decimals int      `json:"decimals,omitempty"`
+	Enum     []string `json:"enum,omitempty"`
+	MaxLen   int      `json:"max_len,omitempty"` // characters
+	// Words is the refusal of a value out of range, with {min}, {max},
+	// {unit} (" kg", or nothing) and {got}; empty: the usual wording.
+	Words     string `json:"words,omitempty"`
+	StepWords string `json:"step_words,omitempty"`
+}
+
+// Case is a refusal the registry's tests and the app's checks share.
+type Case struct {
+	Name  string `json:"name"`
+	Patch string `json:"patch"` // JSON object merged over the Example body (top-level keys)
+	Field string `json:"field"` // the field the refusal names
+}
+
+// RangeWords is the usual refusal of a value out of range.
+const RangeWords = "must be between {min} and {max}{unit}; got {got}"
+
+func f64(v float64) *float64 { return &v }
+
+func rng(path, label, unit string, lo, hi float64) Field {
+	return Field{Path: path, Label: label, Unit: unit, Min: f64(lo), Max: f64(hi)}
+}
+
+func wholeRng(path, label, unit string, lo, hi float64) Field {
+	f := rng(path, label, unit, lo, hi)
+	f.Whole = true
+	return f
+}
+
+func enum(path, label string, values []string) Field {
+	return Field{Path: path, Label: label, Enum: values}
+}
+
+func textField(path, label string, max int) Field {
+	return Field{Path: path, Label: label, MaxLen: max}
+}
+
+func rpeField(path string) Field {
+	f := rng(path, "Session RPE", "(CR-10 rating)", 0, 10)
+	f.Step = 0.5
+	f.StepWords = "must be a CR-10 rating from 0 to 10 in whole or half points; got {got}"
+	return f
+}
+
+// Registry lists every record kind, in a stable order (export, CSV files,
+// docs).
+var Registry = []Kind{
+	{
+		Name: KindAthlete, Screen: "/camp", Label: "athlete", Plural: "athletes", Body: Athlete{}, Scope: Self,
+		Fields: []Field{
+			textField("body.name", "Name", MaxNameLen),
+			enum("body.units", "Units", Units),
+			{Path: "body.birth_year", Label: "Birth year", Min: f64(MinBirthYear), MaxYearsAgo: MinAgeYears, Whole: true,
+				Words: "must be between {min} and {max} (athletes aged 10 or over); got {got}"},
+		},
+		Example:  `{"name":"Example Athlete","units":"kg"}`,
+		validate: validateAthlete,
+	},
+	{
+		Name: KindSettings, Label: "settings", Plural: "settings", Body: Settings{}, Scope: CampOrAthlete,
+		Rules: RuleIDs,
+		Fields: []Field{
+			rng("body.checkin_hour", "Check-in hour", "h (local time, 10.5 = 10:30)", 0, MaxCheckinHour),
+			textField("body.gym_name", "Gym name", MaxNameLen),
+		},
+		Example:  `{"checkin_hour":10}`,
+		validate: validateSettings,
+	},
+	{
+		Name: KindBout, Screen: "/plan", Label: "bout and camp plan", Plural: "bouts", Body: Bout{}, Scope: PerAthlete,
+		Rules: []string{RuleMassAbovePath, RuleMassLossFast, RuleCutAtRisk, RuleSparDensity, RuleLoadSpike, RuleOffPlan, RuleResidualGap},
+		Fields: []Field{
+			textField("body.name", "Bout", MaxBoutNameLen),
+			enum("body.weigh_in_type", "Weigh-in", WeighInTypes),
+			rng("body.start_mass_kg", "Start mass", "kg", MinMassKg, MaxMassKg),
+			rng("body.reference_load_au", "Usual weekly load", "AU per week", 0, MaxReferenceLoadAU),
+			rng("body.path[].mass_kg", "Planned mass", "kg", MinMassKg, MaxMassKg),
+			enum("body.weeks[].level", "Week's load", Levels),
+			wholeRng("body.weeks[].spar_cap_rounds", "Sparring cap", "sparring rounds", 0, MaxSparCap),
+		},
+		Example: `{"camp_start":"2026-01-05","weigh_in":"2026-02-27T10:00:00Z","weigh_in_type":"day_before","bout_day":"2026-02-28",` +
+			`"weight_class":"custom","limit_kg":66,"start_mass_kg":70,"path":[{"day":"2026-01-05","mass_kg":70}],` +
+			`"weeks":[{"week":1,"level":"medium","spar_cap_rounds":10}]}`,
+		Cases: []Case{
+			{"bout before camp start", `{"bout_day":"2026-01-01"}`, "body.bout_day"},
+			{"camp longer than a year", `{"camp_start":"2025-01-05","path":[],"weeks":[]}`, "body.bout_day"},
+			{"weigh-in after the bout", `{"weigh_in":"2026-03-01T10:00:00Z"}`, "body.weigh_in"},
+			{"same-day weigh-in on another day", `{"weigh_in_type":"same_day"}`, "body.weigh_in_type"},
+			{"day-before weigh-in on the bout day", `{"weigh_in":"2026-02-28T08:00:00Z"}`, "body.weigh_in_type"},
+			{"path day outside the camp", `{"path":[{"day":"2026-03-05","mass_kg":70}]}`, "body.path[0].day"},
+		},
+		validate: validateBout,
+	},
+	{
+		Name: KindCheckin, Screen: "/checkin", Label: "check-in", Plural: "check-ins", Body: Checkin{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff, RoleAthlete},
+		Rules:   []string{RuleMassAbovePath, RuleMassLossFast, RuleCutAtRisk, RuleWellnessDrop, RuleHydration, RuleMissingCheckin},
+		Fields: []Field{
+			rng("body.mass_kg", "Body mass", "kg", MinMassKg, MaxMassKg),
+			rng("body.sleep_h", "Sleep", "h", MinSleepH, MaxSleepH),
+			wellness("body.sleep", "Sleep quality"), wellness("body.fatigue", "Energy"), wellness("body.soreness", "Muscles"),
+			wellness("body.stress", "Stress"), wellness("body.mood", "Mood"),
+			wholeRng("body.rhr_bpm", "Resting heart rate", "bpm", MinRHR, MaxRHR),
+			{Path: "body.usg", Label: "Urine specific gravity", Min: f64(MinUSG), Max: f64(MaxUSG), Decimals: 3,
+				Words: "must be a urine specific gravity between {min} and {max} (e.g. 1.020); got {got}"},
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example: `{"mass_kg":70}`,
+		Cases: []Case{
+			{"nothing entered", `{"mass_kg":null}`, "body"},
+		},
+		validate: validateCheckin,
+	},
+	{
+		Name: KindJump, Screen: "/jumps", Label: "jump test", Plural: "jump tests", Body: Jump{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff}, Rules: []string{RuleJumpDrop},
+		Fields: []Field{
+			enum("body.test", "Test", JumpTests),
+			enum("body.method", "Measured with", JumpMethods),
+			rng("body.heights_cm[]", "Jump height", "cm", MinHeightCm, MaxHeightCm),
+			{Path: "body.flight_ms[]", Label: "Flight time", Unit: "ms", Min: f64(MinFlightMs), Max: f64(MaxFlightMs),
+				Words: "must be between {min} and {max} ms (a jump of 4.9 to 122.6 cm); got {got}"},
+			textField("body.session", "Test session", MaxShortLen),
+		},
+		Example:  `{"test":"cmj","heights_cm":[40,41,42]}`,
+		validate: validateJump,
+	},
+	{
+		Name: KindRound, Screen: "/rounds", Label: "round", Plural: "rounds", Body: Round{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff}, Rules: []string{RuleSparDensity, RuleSparSpacing, RuleSparOnHold},
+		Fields: []Field{
+			enum("body.activity", "Activity", Activities),
+			wholeRng("body.seconds", "Round length", "s", MinRoundS, MaxRoundS),
+			{Path: "body.intensity", Label: "Intensity", Min: f64(1), Max: f64(3), Whole: true,
+				Words: "must be 1 (easy), 2 (moderate) or 3 (hard); got {got}"},
+			textField("body.partner", "Partner", MaxNameLen),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example:  `{"activity":"spar","seconds":180,"intensity":2}`,
+		validate: validateRound,
+	},
+	{
+		Name: KindIntervals, Screen: "/intervals", Label: "interval session", Plural: "interval sessions", Body: Intervals{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff},
+		Fields: []Field{
+			textField("body.protocol", "Protocol", MaxShortLen),
+			textField("body.modality", "Modality", MaxShortLen),
+			{Path: "body.work_s", Label: "Work", Unit: "s", Min: f64(0), MinAbove: true, Max: f64(MaxIntervalS),
+				Words: "must be more than {min} and at most {max} s per repetition; got {got}"},
+			rng("body.rest_s", "Rest", "s", 0, MaxIntervalS),
+			rng("body.set_rest_s", "Rest between sets", "s", 0, MaxIntervalS),
+			wholeRng("body.reps", "Reps per set", "repetitions per set", 1, MaxReps),
+			wholeRng("body.sets", "Sets", "sets", 1, MaxSets),
+			wholeRng("body.hr_peak", "Peak heart rate", "bpm", MinHR, MaxHR),
+			wholeRng("body.hr_mean", "Mean heart rate", "bpm", MinHR, MaxHR),
+			rpeField("body.rpe"),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example: `{"modality":"bike","work_s":30,"rest_s":30,"reps":10,"sets":2}`,
+		Cases: []Case{
+			{"more reps done than planned", `{"done_reps":21}`, "body.done_reps"},
+			{"mean heart rate above the peak", `{"hr_peak":170,"hr_mean":180}`, "body.hr_mean"},
+			{"longer than a session", `{"work_s":600,"rest_s":0,"reps":20,"sets":2}`, "body.minutes"},
+		},
+		validate: validateIntervals,
+	},
+	{
+		Name: KindSession, Screen: "/session", Label: "session", Plural: "sessions", Body: Session{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff, RoleAthlete}, Rules: []string{RuleLoadSpike, RuleMonotony},
+		Fields: []Field{
+			enum("body.type", "Type", SessionTypes),
+			enum("body.focus", "Focus", SessionFocuses),
+			rng("body.minutes", "Duration", "min", MinSessionMin, MaxSessionMin),
+			rpeField("body.rpe"),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example:  `{"type":"boxing","minutes":60,"rpe":6}`,
+		validate: validateSession,
+	},
+	{
+		Name: KindIncident, Screen: "/incident", Label: "incident", Plural: "incidents", Body: Incident{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff}, Rules: []string{RuleSparOnHold},
+		Fields: []Field{
+			enum("body.type", "What happened", IncidentTypes),
+			textField("body.note", "What you saw", MaxNoteLen),
+		},
+		Example:  `{"type":"head_knock"}`,
+		validate: validateIncident,
+	},
+	{
+		Name: KindClearance, Screen: "/clearance", Label: "clearance", Plural: "clearances", Body: Clearance{}, Scope: PerAthlete, Dated: true,
+		Rules: []string{RuleSparOnHold},
+		Fields: []Field{
+			textField("body.by", "Cleared in writing by", MaxNameLen),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example:  `{"incident":"0190a0b0-0000-7000-8000-000000000001","by":"Dr. A. Example"}`,
+		validate: validateClearance,
+	},
+	{
+		Name: KindDecision, Label: "decision", Plural: "decisions", Body: Decision{}, Scope: PerAthlete, Dated: true,
+		Fields: []Field{
+			enum("body.rule", "Flag", RuleIDs),
+			textField("body.note", "What was decided", MaxNoteLen),
+			textField("body.by", "By", MaxNameLen),
+		},
+		Example:  `{"rule":"jump_drop","note":"Lighter session today."}`,
+		validate: validateDecision,
+	},
+	{
+		Name: KindNote, Label: "note", Plural: "notes", Body: Note{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff, RoleAthlete},
+		Fields: []Field{
+			textField("body.text", "Note", MaxNoteLen),
+			textField("body.by", "By", MaxNameLen),
+		},
+		Example:  `{"text":"Left hand sore after pads."}`,
+		validate: validateNote,
+	},
+}
+
+func wellness(path, label string) Field {
+	return Field{Path: path, Label: label, Min: f64(1), Max: f64(5), Whole: true,
+		Words: "must be a whole number from {min} to {max} (5 = best); got {got}"}
+}
+
+var byName = func() map[string]*Kind {
+	m := make(map[string]*Kind, len(Registry))
+	for i := range Registry {
+		m[Registry[i].Name] = &Registry[i]
+	}
+	return m
+}()
+
+// KindOf finds a kind in the registry.
+func KindOf(name string) (*Kind, bool) {
+	k, ok := byName[name]
+	return k, ok
+}
+
+// BodyType is the Go type of the kind's body.
+func (k *Kind) BodyType() reflect.Type { return reflect.TypeOf(k.Body) }
+
+// CanWrite reports whether a role other than the coach may write the kind.
+func (k *Kind) CanWrite(role string) bool {
+	for _, r := range k.Writers {
+		if r == role {
+			return true
+		}
+	}
+	return false
+}
+
+// WrittenBy lists, in registry order, the kinds a role (staff, athlete) may
+// write.
+func WrittenBy(role string) []string {
+	var out []string
+	for _, k := range Registry {
+		if k.CanWrite(role) {
+			out = append(out, k.Name)
+		}
+	}
+	return out
+}
+
+// Field finds a field by path ("body.mass_kg", or "body.heights_cm[]").
+func (k *Kind) Field(path string) (Field, bool) {
+	for _, f := range k.Fields {
+		if f.Path == path {
+			return f, true
+		}
+	}
+	return Field{}, false
+}
+
+// Range is the field's lowest and highest value, given the current year
+// for fields bounded by an age.
+func (f Field) Range(year int) (lo, hi float64, ok bool) {
+	if f.Min == nil {
+		return 0, 0, false
+	}
+	lo, hi = *f.Min, math.Inf(1)
+	if f.Max != nil {
+		hi = *f.Max
+	}
+	if f.MaxYearsAgo > 0 {
+		hi = float64(year - f.MaxYearsAgo)
+	}
+	return lo, hi, true
+}
+
+// Refusal is the hub's words for a value out of the field's range, given
+// the current year (for fields bounded by an age).
+func (f Field) Refusal(v float64, year int) string {
+	lo, hi, _ := f.Range(year)
+	words := f.Words
+	if words == "" {
+		words = RangeWords
+	}
+	if f.Step > 0 && v >= lo && v <= hi && f.StepWords != "" {
+		words = f.StepWords
+	}
+	num := func(x float64) string {
+		if f.Decimals > 0 {
+			return strconv.FormatFloat(x, 'f', f.Decimals, 64)
+		}
+		return fmtNum(x)
+	}
+	unit := ""
+	if f.Unit != "" {
+		unit = " " + f.Unit
+	}
+	return strings.NewReplacer("{min}", num(lo), "{max}", num(hi), "{unit}", unit, "{got}", fmtNum(v)).Replace(words)
+}
+
+// Vocabulary is what the app's screens and checks read: generated from
+// the registry into /js/vocab.js when the app is embedded.
+type Vocabulary struct {
+	Kinds      map[string]VocabKind `json:"kinds"`
+	Order      []string             `json:"order"`
+	RangeWords string               `json:"range_words"`
+	MinYear    int                  `json:"min_year"`
+	MaxNameLen int                  `json:"max_name_len"`
+	MaxNoteLen int                  `json:"max_note_len"`
+	Protocols  []Protocol           `json:"protocols"`
+	Modalities []Option             `json:"modalities"`
+	Levels     []string             `json:"levels"`
+	CR10       []Anchor             `json:"cr10"`
+	Cases      map[string][]Case    `json:"cases"`
+	// Limits are the numbers the checks of one field against another use.
+	Limits map[string]float64 `json:"limits"`
+}
+
+// VocabKind is one kind as the app sees it.
+type VocabKind struct {
+	Label   string          `json:"label"`
+	Plural  string          `json:"plural"`
+	Writers []string        `json:"writers"`
+	Scope   Scope           `json:"scope"`
+	Dated   bool            `json:"dated"`
+	Screen  string          `json:"screen,omitempty"`
+	Fields  []Field         `json:"fields"`
+	Example json.RawMessage `json:"example"`
+}
+
+// Vocab builds the app's vocabulary from the registry.
+func Vocab() Vocabulary {
+	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, MinYear: MinYear,
+		MaxNameLen: MaxNameLen, MaxNoteLen: MaxNoteLen, Protocols: Protocols, Modalities: ModalityOptions,
+		Levels: Levels, CR10: CR10, Cases: map[string][]Case{},
+		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin}}
+	for _, k := range Registry {
+		w := k.Writers
+		if w == nil {
+			w = []string{}
+		}
+		v.Kinds[k.Name] = VocabKind{Label: k.Label, Plural: k.Plural, Writers: w, Scope: k.Scope, Dated: k.Dated, Screen: k.Screen,
+			Fields: k.Fields, Example: json.RawMessage(k.Example)}
+		v.Order = append(v.Order, k.Name)
+		if len(k.Cases) > 0 {
+			v.Cases[k.Name] = k.Cases
+		}
+	}
+	return v
+}
+
+// kindNames lists the registry's kinds in order.
+func kindNames() []string {
+	out := make([]string, len(Registry))
+	for i, k := range Registry {
+		out[i] = k.Name
+	}
+	return out
+}
+
+// EnumWords and LengthWords are the refusals of a value not in a list and
+// of a text too long.
+const (
+	EnumWords   = "must be one of {list}; got {got}"
+	LengthWords = "must be at most {max} characters; got {got}"
+)
+
+// EnumRefusal is the hub's words for a value not in the field's list.
+func (f Field) EnumRefusal(got string) string {
+	return strings.NewReplacer("{list}", strings.Join(f.Enum, ", "), "{got}", strconv.Quote(got)).Replace(EnumWords)
+}
+
+// LengthRefusal is the hub's words for a text of n characters, too long.
+func (f Field) LengthRefusal(n int) string {
+	return strings.NewReplacer("{max}", strconv.Itoa(f.MaxLen), "{got}", strconv.Itoa(n)).Replace(LengthWords)
+}
