@@ -308,11 +308,13 @@ func TestE2EClockSkewRestampsAndRejectionsAreShown(t *testing.T) {
 	require.NoError(t, pwatest.Meta(ctx, "offset", &offset))
 	assert.InDelta(t, 0, offset, 2000)
 
-	// Entries the hub refuses are kept, shown with field and reason, and
-	// stay until corrected or discarded.
+	// Entries the hub refuses (here queued as an older app would have,
+	// past the app's own checks) are kept, shown with field and reason,
+	// and stay until corrected or discarded.
 	day := time.Now().Format("2006-01-02")
 	for i := 0; i < 2; i++ {
-		require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((m) => m.save({ kind: 'checkin', athlete: '`+ids["Ana Pereira"]+`', day: '`+day+`', body: { mass_kg: 300 } })).then(() => true)`, nil))
+		_, err := pwatest.QueueUnchecked(ctx, `{ kind: 'checkin', athlete: '`+ids["Ana Pereira"]+`', day: '`+day+`', body: { mass_kg: 300 } }`)
+		require.NoError(t, err)
 	}
 	require.NoError(t, pwatest.WaitText(ctx, "status-rejected", "2 entries rejected — tap to see why"))
 	require.NoError(t, pwatest.Click(ctx, "status-rejected"))
