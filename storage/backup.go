@@ -206,49 +206,89 @@ func checkExtent(path string, size int64) error {
 	return nil
 }
 
-// RestoreFile replaces the database at dst with the backup at src after
+// RestoreFile replaces the camp's data at dst with the backup at src after
 // checking the backup, and gives the restored store a new epoch so every
 // device re-pushes its own records and pulls from the start. A refused
-// backup changes nothing. The store that was at dst is not deleted: it is
+// backup changes nothing.
+//
+// A restore replaces the data, not who may reach it: every bucket that is
+// not the store's own (the device list, tokens, revocations and passphrase
+// kept by server/auth) and the store's per-device counters are carried over
+// from the current store, so a device that joined after the backup stays
+// paired and re-sends its records, and one revoked since stays revoked.
+// Only when there is no current store do the backup's come along. The store that was at dst is not deleted: it is
 // kept beside it as dst.replaced-YYYYMMDD-HHMMSS (ReplacedPath finds the
 // newest). dst must not be open by a running hub: its lock is held for
 // the whole swap, and a hub holding it makes the restore stop with
 // ErrLocked before anything changes.
 func RestoreFile(src, dst string) (epoch string, err error) {
+	r, err := Restore(src, dst)
+	return r.Epoch, err
+}
+
+// Restored says what a restore did.
+type Restored struct {
+	Epoch   string
+	Records int // live and deleted records in the restored data
+	// KeptAccess is true when the access buckets (devices, revocations,
+	// passphrase) and device counters were kept from the store replaced.
+	KeptAccess bool
+	Aside      string // where the replaced store was kept, "" if there was none
+}
+
+// Restore is RestoreFile, answering what it did.
+func Restore(src, dst string) (res Restored, err error) {
 	if err := VerifyFile(src); err != nil {
-		return "", err
+		return res, err
 	}
+	var cur *bolt.DB
 	if _, err := os.Stat(dst); err == nil {
 		// The lock alone, not an open: the store being replaced may be
 		// the damaged file the hub refused to serve.
 		unlock, err := lockFile(dst, time.Second)
 		if err != nil {
-			return "", err
+			return res, err
 		}
 		defer unlock() // after the swap: no hub can open the old file meanwhile
 	}
 	removeRestoreLeftovers(dst)
+	if _, err := os.Stat(dst); err == nil {
+		// Who may reach the hub is read from a copy of the current store
+		// (its lock is held); a store too damaged to open keeps nothing,
+		// and the backup's devices and passphrase stay.
+		if c, cleanup, err := openCopy(dst); err == nil {
+			cur = c
+			defer cleanup()
+		}
+	}
 	in, err := os.Open(src)
 	if err != nil {
-		return "", err
+		return res, err
 	}
 	defer in.Close()
 	tmpPath := dst + ".restoring"
 	if _, err := writeAtomically(tmpPath, func(f *os.File) (int64, error) { return io.Copy(f, in) }); err != nil {
-		return "", err
+		return res, err
+	}
+	if cur != nil {
+		if res.KeptAccess, err = keepAccess(cur, tmpPath); err != nil {
+			os.Remove(tmpPath)
+			return res, fmt.Errorf("keep the devices and passphrase of the current store: %w", err)
+		}
 	}
 	db, err := Open(tmpPath, Options{})
 	if err != nil {
 		os.Remove(tmpPath)
-		return "", err
+		return res, err
 	}
-	epoch, err = db.RotateEpoch()
+	res.Records = db.countRecords()
+	res.Epoch, err = db.RotateEpoch()
 	if cerr := db.Close(); err == nil {
 		err = cerr
 	}
 	if err != nil {
 		os.Remove(tmpPath)
-		return "", err
+		return res, err
 	}
 	aside := ""
 	if _, err := os.Stat(dst); err == nil {
@@ -260,7 +300,7 @@ func RestoreFile(src, dst string) (epoch string, err error) {
 		}
 		if err := os.Rename(dst, aside); err != nil {
 			os.Remove(tmpPath)
-			return "", fmt.Errorf("keep the current store aside: %w", err)
+			return res, fmt.Errorf("keep the current store aside: %w", err)
 		}
 	}
 	if err := os.Rename(tmpPath, dst); err != nil {
@@ -268,9 +308,79 @@ func RestoreFile(src, dst string) (epoch string, err error) {
 			os.Rename(aside, dst)
 		}
 		os.Remove(tmpPath)
-		return "", err
+		return res, err
 	}
-	return epoch, syncDir(filepath.Dir(dst))
+	res.Aside = aside
+	return res, syncDir(filepath.Dir(dst))
+}
+
+// keepAccess replaces, in the restored file at path, every bucket that is
+// not the store's camp data with the current store's: the access buckets
+// of other packages (auth_*) and the per-device counters. It answers false
+// when the current store has none to keep (the backup's then stay).
+func keepAccess(cur *bolt.DB, path string) (bool, error) {
+	data := map[string]bool{}
+	for _, b := range allBuckets {
+		data[string(b)] = true
+	}
+	delete(data, string(BucketDevices))
+	keep := func(name []byte) bool { return !data[string(name)] && string(name) != string(bucketSeqsV1) }
+	var names [][]byte
+	err := cur.View(func(tx *bolt.Tx) error {
+		return tx.ForEach(func(name []byte, _ *bolt.Bucket) error {
+			if keep(name) && string(name) != string(BucketDevices) {
+				names = append(names, append([]byte(nil), name...))
+			}
+			return nil
+		})
+	})
+	if err != nil || len(names) == 0 {
+		return false, err
+	}
+	out, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: time.Second})
+	if err != nil {
+		return false, err
+	}
+	defer out.Close()
+	return true, cur.View(func(from *bolt.Tx) error {
+		return out.Update(func(to *bolt.Tx) error {
+			var drop [][]byte
+			to.ForEach(func(name []byte, _ *bolt.Bucket) error {
+				if keep(name) {
+					drop = append(drop, append([]byte(nil), name...))
+				}
+				return nil
+			})
+			for _, name := range drop {
+				if err := to.DeleteBucket(name); err != nil {
+					return err
+				}
+			}
+			return from.ForEach(func(name []byte, b *bolt.Bucket) error {
+				if !keep(name) {
+					return nil
+				}
+				nb, err := to.CreateBucket(name)
+				if err != nil {
+					return err
+				}
+				return copyBucket(b, nb)
+			})
+		})
+	})
+}
+
+func copyBucket(from, to *bolt.Bucket) error {
+	return from.ForEach(func(k, v []byte) error {
+		if v == nil {
+			nb, err := to.CreateBucket(k)
+			if err != nil {
+				return err
+			}
+			return copyBucket(from.Bucket(k), nb)
+		}
+		return to.Put(k, v)
+	})
 }
 
 // removeRestoreLeftovers deletes what a restore killed part-way leaves
@@ -278,7 +388,7 @@ func RestoreFile(src, dst string) (epoch string, err error) {
 // they hold dst, so no restore is running.
 func removeRestoreLeftovers(dst string) {
 	names, _ := filepath.Glob(filepath.Join(filepath.Dir(dst), "."+filepath.Base(dst)+".restoring.tmp-*"))
-	names = append(names, dst+".restoring")
+	names = append(names, dst+".restoring", dst+".access")
 	for _, n := range names {
 		os.Remove(n)
 	}
@@ -323,4 +433,45 @@ func Snapshot(db *DB, dir, day string, keep int) (string, error) {
 		names = names[1:]
 	}
 	return written, nil
+}
+
+// countRecords counts the records (live and deleted) in the store.
+func (db *DB) countRecords() int {
+	n := 0
+	db.bolt.View(func(tx *bolt.Tx) error {
+		if b := tx.Bucket(BucketRecords); b != nil {
+			n = b.Stats().KeyN
+		}
+		return nil
+	})
+	return n
+}
+
+// openCopy opens a copy of the store at path, read only: the file's own
+// lock is held by the caller.
+func openCopy(path string) (*bolt.DB, func(), error) {
+	in, err := os.Open(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer in.Close()
+	tmp := path + ".access"
+	out, err := os.OpenFile(tmp, os.O_CREATE|os.O_TRUNC|os.O_WRONLY, 0o600)
+	if err != nil {
+		return nil, nil, err
+	}
+	_, err = io.Copy(out, in)
+	if cerr := out.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		os.Remove(tmp)
+		return nil, nil, err
+	}
+	db, err := bolt.Open(tmp, 0o600, &bolt.Options{Timeout: time.Second, ReadOnly: true})
+	if err != nil {
+		os.Remove(tmp)
+		return nil, nil, err
+	}
+	return db, func() { db.Close(); os.Remove(tmp) }, nil
 }

@@ -212,11 +212,20 @@ func runRestore(args []string, stdout io.Writer) error {
 	if err := os.MkdirAll(*data, 0o700); err != nil {
 		return err
 	}
-	epoch, err := storage.RestoreFile(fs.Arg(0), dataPath(*data))
+	res, err := storage.Restore(fs.Arg(0), dataPath(*data))
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "restored %s into %s; new epoch %s (devices will resync)\n", fs.Arg(0), *data, epoch)
+	fmt.Fprintf(stdout, "Restored the camp's entries from %s into %s: %d records.\n", fs.Arg(0), *data, res.Records)
+	if res.KeptAccess {
+		fmt.Fprintln(stdout, "Kept as they were: the paired devices, the devices removed since, and the coach's passphrase.")
+	} else {
+		fmt.Fprintln(stdout, "The paired devices and the coach's passphrase come from the backup (there was no camp here before).")
+	}
+	fmt.Fprintln(stdout, "Each device sends again the entries it wrote and then takes the restored camp (new epoch "+res.Epoch+").")
+	if res.Aside != "" {
+		fmt.Fprintf(stdout, "The replaced data is kept at %s.\n", res.Aside)
+	}
 	return nil
 }
 
