@@ -40,6 +40,8 @@ func TestPush_BadRequests(t *testing.T) {
 	future.Stamp.L = fixedNow.Add(2 * time.Hour).UnixMilli()
 	second := okMut
 	second.N = 9
+	huge := good
+	huge.Gen = devsync.MaxExact + 1 // 2^53: a JavaScript number cannot tell it from 2^53 + 1
 
 	cases := []struct {
 		name   string
@@ -61,6 +63,9 @@ func TestPush_BadRequests(t *testing.T) {
 		{"counter zero", reqBody(t, "phone-1", devsync.Mutation{N: 0, Op: "upsert", Record: good}), 400, "BAD_REQUEST", "mutations[0].n"},
 		{"stamp far in the hub's future", reqBody(t, "phone-1", devsync.Mutation{N: 10, Op: "upsert", Record: future}), 409, "CLOCK_SKEW", "mutations[0].record.stamp.l"},
 		{"stamp counter of the wrong type", []byte(`{"device":"phone-1","mutations":[{"n":10,"op":"upsert","record":{"id":"x","stamp":{"l":"soon"}}}]}`), 400, "BAD_REQUEST", "mutations[0].record.stamp.l"},
+		{"generation above 2^53 − 1", reqBody(t, "phone-1", okMut, devsync.Mutation{N: 11, Op: "restore", Record: huge}), 400, "BAD_REQUEST", "mutations[1].record.gen"},
+		{"generation of 2^63 − 1", []byte(`{"device":"phone-1","mutations":[{"n":10,"op":"restore","record":{"id":"` + good.ID + `","kind":"checkin","athlete":"` + a.ID + `","day":"2026-11-20","at":"2026-11-20T07:00:00Z","device":"phone-1","stamp":{"l":1,"c":0},"gen":9223372036854775807,"body":{"mass_kg":70}}}]}`), 400, "BAD_REQUEST", "mutations[0].record.gen"},
+		{"counter above 2^53 − 1", reqBody(t, "phone-1", devsync.Mutation{N: devsync.MaxExact + 1, Op: "upsert", Record: good}), 400, "BAD_REQUEST", "mutations[0].n"},
 		{"too many mutations", reqBody(t, "phone-1", manyMutations(good, devsync.MaxMutationsPerPush+1)...), 413, "TOO_LARGE", "mutations"},
 	}
 	for _, tc := range cases {

@@ -141,6 +141,9 @@ func checkRequest(req *devsync.PushRequest) error {
 				"is %d after %d: mutation counters must be strictly increasing within a push", m.N, prev)
 		}
 		prev = m.N
+		if err := req.Mutations[i].CheckCounters(fmt.Sprintf("mutations[%d]", i)); err != nil {
+			return err
+		}
 	}
 	return nil
 }

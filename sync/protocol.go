@@ -88,6 +88,27 @@ type ErrorBody struct {
 	ServerTime int64  `json:"serverTime,omitempty"`
 }
 
+// MaxExact is the largest integer every device holds exactly: JavaScript
+// numbers are IEEE 754 doubles, exact up to 2^53 − 1. Counters, stamps and
+// generations above it are refused, so what crosses the wire compares the
+// same on the hub and on every phone.
+const MaxExact = 1<<53 - 1
+
+// CheckCounters refuses a mutation whose counter, generation or stamp a
+// device could not hold exactly, naming the field under prefix
+// ("mutations[3]").
+func (m *Mutation) CheckCounters(prefix string) error {
+	switch {
+	case m.N > MaxExact:
+		return Invalid(prefix+".n", "is %d, above %d (2^53 − 1), the largest counter every device holds exactly", m.N, uint64(MaxExact))
+	case m.Record.Gen < 0 || m.Record.Gen > MaxExact:
+		return Invalid(prefix+".record.gen", "is %d; a generation must be between 0 and %d (2^53 − 1)", m.Record.Gen, MaxExact)
+	case m.Record.Stamp.L < 0 || m.Record.Stamp.L > MaxExact:
+		return Invalid(prefix+".record.stamp.l", "is %d; a stamp must be between 0 and %d (2^53 − 1)", m.Record.Stamp.L, MaxExact)
+	}
+	return nil
+}
+
 // Check verifies that the operation agrees with the record it carries.
 func (m *Mutation) Check() error {
 	switch m.Op {

@@ -166,3 +166,23 @@ export function fieldOf(kind, path) {
 export function kindLabel(kind) {
   return (VOCAB.kinds[kind] || {}).label || kind;
 }
+
+// Words for the fields every record carries.
+const COMMON = {
+  id: 'Entry id', kind: 'Kind', athlete: 'Athlete', day: 'Day', at: 'Time of the entry', device: 'Device',
+  gen: 'Restore counter', 'stamp.l': 'Time stamp', 'stamp.c': 'Time stamp', n: 'Entry counter', op: 'Operation', body: 'Entry', record: 'Entry',
+};
+
+// fieldWords names a field the hub named by its path ("body.path[2].mass_kg")
+// in words ("Planned mass"), for a coach.
+export function fieldWords(kind, path) {
+  const p = String(path || '').replace(/^mutations\[\d+\]\.(record\.)?/, '').replace(/^record\./, '');
+  if (!p) return '';
+  const k = VOCAB.kinds[kind];
+  const f = k && k.fields.find((x) => x.path === p.replace(/\[\d+\]/g, '[]'));
+  if (f) {
+    const i = p.match(/\[(\d+)\]/);
+    return i ? `${f.label} (${Number(i[1]) + 1}.)` : f.label;
+  }
+  return COMMON[p] || p.replace(/^body\./, '').replace(/_/g, ' ');
+}

@@ -1,14 +1,26 @@
 // Settings: this device, the hub, storage, rejected entries, app version.
-import { html, useState, useEffect, useAsync, useVersion, navigate } from './ui.js';
+import { html, useState, useEffect, useAsync, useVersion, useAthletes, navigate } from './ui.js';
 import { allMeta, setMeta, rejectedList, discard } from './db.js';
 import { requestSync } from './sync.js';
+import { VOCAB } from './vocab.js';
+import { fieldWords, kindLabel } from './checks.js';
 
-const EDIT_ROUTE = { checkin: '/checkin', jump: '/jumps', round: '/rounds', intervals: '/intervals', session: '/session', incident: '/incident', clearance: '/clearance' };
+// The screen that corrects each kind, from the hub's registry.
+const EDIT_ROUTE = Object.fromEntries(Object.entries(VOCAB.kinds).filter(([, v]) => v.screen && v.dated).map(([k, v]) => [k, v.screen]));
+const WHY = { VALIDATION: 'refused by the hub', FORBIDDEN: 'not allowed from this device', BAD_REQUEST: 'refused by the hub', TOO_LARGE: 'too large for the hub' };
+
+// entryWords names a rejected entry: "Check-in of Ana Pereira, 2026-12-03".
+function entryWords(rec, names) {
+  const what = kindLabel(rec.kind);
+  const who = rec.kind === 'athlete' ? (rec.body && rec.body.name) : names[rec.athlete];
+  return `${what[0].toUpperCase()}${what.slice(1)}${who ? ` of ${who}` : ''}${rec.day ? `, ${rec.day}` : ''}`;
+}
 
 export function Settings({ build }) {
   const v = useVersion();
   const meta = useAsync(allMeta, [v], {});
   const rejected = useAsync(rejectedList, [v], []);
+  const names = Object.fromEntries((useAthletes() || []).map((a) => [a.id, a.name]));
   const [name, setName] = useState(null);
   const [persist, setPersist] = useState('');
   const [saved, setSaved] = useState('');
@@ -69,8 +81,8 @@ export function Settings({ build }) {
       <h2>Rejected entries</h2>
       ${rejected.length === 0 && html`<p class="muted">None. Every entry the hub received was accepted.</p>`}
       ${rejected.map((r) => html`<div class="entry" data-testid=${`rejected-${r.n}`}>
-        <div class="what"><strong>${r.record.kind}</strong> of ${r.record.day}: ${r.field ? html`<code>${r.field}</code> ` : ''}${r.reason}
-          <span class="tag warn">${r.code}</span></div>
+        <div class="what" data-field=${r.field} data-code=${r.code}><strong>${entryWords(r.record, names)}</strong>${r.field ? html` — <strong data-testid=${`rejected-field-${r.n}`}>${fieldWords(r.record.kind, r.field)}</strong>` : ''}: ${r.reason}
+          <span class="tag warn">${WHY[r.code] || 'refused by the hub'}</span></div>
         ${EDIT_ROUTE[r.record.kind] && !r.record.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-edit-${r.n}`} onClick=${() => navigate(`${EDIT_ROUTE[r.record.kind]}?edit=${r.id}`)}>Correct</button>`}
         <button class="secondary danger" type="button" data-testid=${`rejected-discard-${r.n}`} onClick=${() => discard(r.n)}>Discard</button>
       </div>`)}

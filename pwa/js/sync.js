@@ -91,8 +91,17 @@ async function pushAll() {
         batch = Math.max(1, Math.floor(rows.length / 2)); // too big a request: send fewer at a time
         continue;
       }
+      if (e instanceof HubError && [400, 422].includes(e.status) && e.body.code && rows.length > 1) {
+        // Refused as a whole: one entry may spoil the push. Send halves, so
+        // the good entries land and the bad one is found and filed alone.
+        batch = Math.ceil(rows.length / 2);
+        continue;
+      }
       if (e instanceof HubError && [400, 413, 422].includes(e.status) && e.body.code) {
-        await rejectRows(rows, e.body); // permanent: never retried as is
+        // One entry, refused for good: filed with its field, never retried as is.
+        const field = String(e.body.field || '').replace(/^mutations\[\d+\]\.(record\.)?/, '');
+        await rejectRows(rows, { ...e.body, field });
+        batch = PUSH_BATCH;
         continue;
       }
       throw e;
