@@ -468,6 +468,10 @@ func openCopy(path string) (*bolt.DB, func(), error) {
 		os.Remove(tmp)
 		return nil, nil, err
 	}
+	if err := VerifyFile(tmp); err != nil { // a damaged store is read no further
+		os.Remove(tmp)
+		return nil, nil, err
+	}
 	db, err := bolt.Open(tmp, 0o600, &bolt.Options{Timeout: time.Second, ReadOnly: true})
 	if err != nil {
 		os.Remove(tmp)
