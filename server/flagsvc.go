@@ -419,10 +419,34 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 		return in, err
 	}
 	in.Bout = best
+	in.FirstDay = f.firstDay(id, day)
 	if in.Settings, err = f.settingsFor(id); err != nil {
 		return in, err
 	}
 	return in, nil
+}
+
+// errFound stops a Range at its first record.
+var errFound = errors.New("found")
+
+// firstDay is the day of the athlete's first record on or before day of a
+// kind that marks activity (every kind but athlete, settings, bout and
+// note), "" if none: missing_checkin runs from it, however long ago.
+func (f *flagService) firstDay(id, day string) string {
+	first := ""
+	for _, kind := range records.Kinds {
+		switch kind {
+		case records.KindAthlete, records.KindSettings, records.KindBout, records.KindNote:
+			continue
+		}
+		f.s.store.Range(id, kind, "0000-01-01", day, func(r devsync.Record) error {
+			if r.Day != "" && (first == "" || r.Day < first) {
+				first = r.Day
+			}
+			return errFound
+		})
+	}
+	return first
 }
 
 // settingsFor merges the defaults, the camp-wide settings and the

@@ -134,3 +134,23 @@ func TestFlags_TodayFollowsTheClock(t *testing.T) {
 	require.True(t, ok, "missing_checkin raised once the hour has passed")
 	assert.Equal(t, "info", f.Level)
 }
+
+// TestFlags_MissingCheckinFromTheFirstRecordLongAgo: missing_checkin runs
+// from the athlete's first record (settled reading), even when that record
+// is older than the window of records the rules read; a note does not
+// count as a first record.
+func TestFlags_MissingCheckinFromTheFirstRecordLongAgo(t *testing.T) {
+	h := newHub(t)
+	a := h.athlete("Long Absent", "kg")
+	b := h.athlete("Only Notes", "kg")
+	c := h.rec("checkin", a.ID, "2026-05-02", map[string]any{"mass_kg": 70.2})
+	n := h.rec("note", b.ID, "2026-05-02", map[string]any{"text": "joined"})
+	resp := h.push("phone-1", 1, a, b, c, n)
+	require.Equal(t, 4, resp.Applied, "rejected: %+v", resp.Rejected)
+	day := "2026-11-19" // 201 days later, the hour long past (hub clock 2026-11-20)
+	f, ok := flagRules(t, h, day, a.ID)["missing_checkin"]
+	require.True(t, ok, "no missing_checkin 201 days after the first record")
+	assert.Equal(t, "No morning check-in", f.Title)
+	assert.NotContains(t, flagRules(t, h, day, b.ID), "missing_checkin", "a note is not a first record")
+	assert.NotContains(t, flagRules(t, h, "2026-05-01", a.ID), "missing_checkin", "nothing before the first record")
+}

@@ -134,6 +134,9 @@ func newEngine(in *Input) (*engine, bool) {
 			}
 		}
 	}
+	if d, ok := dayOf(in.FirstDay); ok && d <= today {
+		e.active = true
+	}
 	e.loads = make([]float64, int(today-e.first)+1)
 	// Pass 2: index each record under its day, decoding only the bodies a
 	// rule will read.

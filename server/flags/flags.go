@@ -111,6 +111,11 @@ type Input struct {
 	// silent, run from one bout day to the next camp start. Bout records
 	// in Records count too.
 	Bouts []devsync.Record
+	// FirstDay is the day of the athlete's first record of a kind that
+	// marks activity (not athlete, settings, bout or note), when the caller
+	// knows it from beyond Records' window; "" to read it from Records.
+	// missing_checkin runs from it.
+	FirstDay string
 	// Settings are merged thresholds overriding the defaults
 	// (rule → parameter → value); absent entries take DefaultThresholds.
 	Settings map[string]map[string]float64
