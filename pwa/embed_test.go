@@ -91,7 +91,19 @@ func TestServiceWorkerListsShellAndNoAPI(t *testing.T) {
 	require.NoError(t, json.Unmarshal([]byte(rest[:end+1]), &list))
 	assert.Equal(t, Files(), list)
 
-	// Every embedded shell file is listed; nothing under /api; no licence files.
+	// The lazy list: what a screen loads only when it opens.
+	start = strings.Index(sw, "const LAZY = new Set(")
+	require.Positive(t, start)
+	rest = sw[start+len("const LAZY = new Set("):]
+	end = strings.Index(rest, "]);")
+	var lazy []string
+	require.NoError(t, json.Unmarshal([]byte(rest[:end+1]), &lazy))
+	assert.Equal(t, Lazy(), lazy)
+	assert.ElementsMatch(t, []string{"/vendor/uplot/uPlot.esm.js", "/vendor/uplot/uPlot.min.css", "/icons/icon-512.png", "/icons/maskable-512.png"}, lazy,
+		"the chart library and the 512 px icons are fetched when asked for, not at install")
+
+	// Every embedded shell file is in one list or the other, never both;
+	// nothing under /api; no licence files.
 	var all []string
 	for p := range load().assets {
 		all = append(all, p)
@@ -99,13 +111,15 @@ func TestServiceWorkerListsShellAndNoAPI(t *testing.T) {
 	for _, p := range all {
 		if strings.HasSuffix(p, "/LICENSE") || strings.HasSuffix(p, "/VERSIONS") {
 			assert.NotContains(t, list, p)
+			assert.NotContains(t, lazy, p)
 			continue
 		}
+		assert.True(t, slices.Contains(list, p) != slices.Contains(lazy, p), "%s in exactly one list", p)
+	}
+	for _, p := range []string{"/index.html", "/manifest.webmanifest", "/js/main.js", "/js/db.js", "/js/sync.js", "/vendor/idb/index.js", "/vendor/htm/standalone.module.js", "/icons/icon-192.png", "/icons/apple-touch-180.png", "/css/app.css"} {
 		assert.Contains(t, list, p)
 	}
-	for _, p := range []string{"/index.html", "/manifest.webmanifest", "/js/main.js", "/js/db.js", "/js/sync.js", "/vendor/idb/index.js", "/vendor/htm/standalone.module.js", "/vendor/uplot/uPlot.esm.js", "/icons/icon-512.png", "/css/app.css"} {
-		assert.Contains(t, list, p)
-	}
+	assert.NotContains(t, sw, "reload", "the install never bypasses what the page already downloaded")
 	for _, p := range list {
 		assert.False(t, strings.HasPrefix(p, "/api"), p)
 		assert.NotEqual(t, "/sw.js", p)

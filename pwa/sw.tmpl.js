@@ -5,13 +5,18 @@ import { pushOnce } from '/js/sync.js';
 const BUILD = {{.Hash}};
 const CACHE = 'shell-' + BUILD;
 const SHELL = {{.Files}};
+// Files a screen asks for only when it opens (the chart library, the large
+// install icons): cached the first time they are fetched, never at install.
+const LAZY = new Set({{.Lazy}});
 
 self.addEventListener('install', (event) => {
   // addAll is atomic: if one file fails, the install fails and the old
-  // version keeps serving. cache: 'reload' skips the HTTP cache.
-  event.waitUntil(
-    caches.open(CACHE).then((cache) => cache.addAll(SHELL.map((u) => new Request(u, { cache: 'reload' }))))
-  );
+  // version keeps serving. The requests go through the HTTP cache: the hub
+  // serves every file with no-cache and an ETag, so what the page has just
+  // downloaded is revalidated (a 304 of a few bytes, on the page's own
+  // connection) rather than downloaded a second time, and a file changed
+  // since is fetched anew.
+  event.waitUntil(caches.open(CACHE).then((cache) => cache.addAll(SHELL)));
 });
 
 self.addEventListener('activate', (event) => {
@@ -46,7 +51,13 @@ self.addEventListener('fetch', (event) => {
   }
   event.respondWith((async () => {
     const hit = await caches.match(req, { cacheName: CACHE });
-    return hit || fetch(req);
+    if (hit) return hit;
+    const res = await fetch(req);
+    if (res.ok && LAZY.has(url.pathname)) {
+      const copy = res.clone();
+      event.waitUntil(caches.open(CACHE).then((cache) => cache.put(url.pathname, copy)).catch(() => {}));
+    }
+    return res;
   })());
 });
 

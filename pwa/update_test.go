@@ -69,4 +69,10 @@ func TestUpdateWaitsForTheTapThenReloadsOnce(t *testing.T) {
 	require.NoError(t, pwatest.Poll(ctx, `window.__sameDocument === undefined && document.querySelector('#app-root[data-ready="true"]')`, 10*time.Second))
 	require.NoError(t, pwatest.WaitText(ctx, "settings-build", v2.hash))
 	require.NoError(t, pwatest.Poll(ctx, `caches.keys().then((k) => k.length === 1 && k[0] === 'shell-`+v2.hash+`')`, 10*time.Second))
+	// The new worker installs through the HTTP cache (revalidating what it
+	// already has): the changed file must be the new build's, never the
+	// copy the browser held from build 1.
+	var css string
+	require.NoError(t, pwatest.Eval(ctx, `caches.open('shell-`+v2.hash+`').then((c) => c.match('/css/app.css')).then((r) => r.text())`, &css))
+	require.Contains(t, css, "/* build 2 */")
 }

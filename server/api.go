@@ -117,7 +117,14 @@ func (s *Server) handlePull(w http.ResponseWriter, r *http.Request) error {
 	if limit == 0 || limit > devsync.MaxPullLimit {
 		return userError(devsync.CodeBadRequest, "limit", fmt.Sprintf("must be between 1 and %d", devsync.MaxPullLimit))
 	}
-	recs, next, more, maxSeq, err := s.store.Pull(since, int(limit), who.canRead)
+	size, err := uintParam(q.Get("bytes"), "bytes", devsync.DefaultPullBytes)
+	if err != nil {
+		return err
+	}
+	if size < devsync.MinPullBytes || size > devsync.MaxPullBytes {
+		return userError(devsync.CodeBadRequest, "bytes", fmt.Sprintf("must be between %d and %d", devsync.MinPullBytes, devsync.MaxPullBytes))
+	}
+	recs, next, more, maxSeq, err := s.store.PullBytes(since, int(limit), int(size), who.canRead)
 	if err != nil {
 		return err
 	}

@@ -21,6 +21,7 @@ import (
 	"cornerbook/pwa"
 	"cornerbook/server/auth"
 	"cornerbook/server/certs"
+	"cornerbook/server/compression"
 	"cornerbook/server/records"
 	"cornerbook/storage"
 	devsync "cornerbook/sync"
@@ -158,7 +159,7 @@ func (s *Server) Handler() http.Handler {
 		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
 	}))
 	r.PathPrefix("/").Handler(pwa.Handler())
-	return s.killSwitch(s.bodyDeadline(auth.SecurityHeaders(r)))
+	return s.killSwitch(s.bodyDeadline(auth.SecurityHeaders(compression.Middleware(r))))
 }
 
 // bodyDeadline gives every request with a body, except a push, BodyTimeout
@@ -186,8 +187,9 @@ func (s *Server) killSwitch(next http.Handler) http.Handler {
 					return
 				}
 			}
-			http.Error(w, "hub down", http.StatusServiceUnavailable)
-			return
+			// HTTP/2 has no connection to hand over: reset the stream,
+			// which the client sees as a network error too.
+			panic(http.ErrAbortHandler)
 		}
 		next.ServeHTTP(w, r)
 	})
@@ -217,7 +219,15 @@ func (s *Server) Open(addr string) error {
 // certificate.
 func (s *Server) Serve(ln net.Listener) error {
 	if s.cfg.Certs != nil {
-		ln = tls.NewListener(ln, s.cfg.Certs.TLSConfig())
+		// Offer HTTP/2 in the handshake (ALPN): a phone then opens one
+		// connection for the page, its files and every sync request.
+		// http.Server only adds "h2" itself in ServeTLS, not for a
+		// listener wrapped here, which is why HTTP/1.1 was all a browser
+		// could agree before. Websockets stay on HTTP/1.1: Extended
+		// CONNECT is off by default (REFERENCES.md §0).
+		cfg := s.cfg.Certs.TLSConfig()
+		cfg.NextProtos = []string{"h2", "http/1.1"}
+		ln = tls.NewListener(ln, cfg)
 	}
 	s.ln = ln
 	s.http = s.httpServer(s.Handler())

@@ -72,6 +72,13 @@ func (db *DB) History(id string) ([]devsync.Record, error) {
 // transaction; a record edited between pages moves to a later sequence
 // and appears once more in a later page.
 func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) (recs []devsync.Record, next uint64, more bool, maxSeq uint64, err error) {
+	return db.PullBytes(since, limit, 0, visible)
+}
+
+// PullBytes is Pull with a page also ended once the records it holds
+// reach maxBytes of stored JSON (≤ 0: no byte bound). A page holds at
+// least one record whatever its size.
+func (db *DB) PullBytes(since uint64, limit, maxBytes int, visible func(*devsync.Record) bool) (recs []devsync.Record, next uint64, more bool, maxSeq uint64, err error) {
 	if limit <= 0 {
 		limit = devsync.DefaultPullLimit
 	}
@@ -85,9 +92,9 @@ func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) 
 			return nil
 		}
 		c := changes.Cursor()
-		scanned := 0
+		scanned, size := 0, 0
 		for k, id := c.Seek(u64(since + 1)); k != nil; k, id = c.Next() {
-			if len(recs) == limit || scanned == scanBudget {
+			if len(recs) == limit || scanned == scanBudget || (maxBytes > 0 && size >= maxBytes) {
 				more = true
 				return nil
 			}
@@ -103,6 +110,7 @@ func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) 
 			next = binary.BigEndian.Uint64(k)
 			if visible == nil || visible(&r) {
 				recs = append(recs, r)
+				size += len(v)
 			}
 		}
 		return nil

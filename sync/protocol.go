@@ -12,7 +12,15 @@ const (
 	MaxMutationsPerPush = 500
 	MaxPushBytes        = 1 << 20 // 1 MiB request body
 	DefaultPullLimit    = 500
-	MaxPullLimit        = 2000
+	MaxPullLimit        = 10000
+	// A pull page is sized in bytes as well as records: the app asks for
+	// as many bytes as its link carried in about a second on the last
+	// page, so a slow Wi-Fi gets small pages and a good one few round
+	// trips. The sizes count the records' stored JSON, before
+	// compression.
+	DefaultPullBytes = 256 << 10
+	MinPullBytes     = 16 << 10
+	MaxPullBytes     = 4 << 20
 	// MaxDriftMs is how far in the hub's future a stamp may be before the
 	// push is refused with CodeClockSkew (common practice in HLC
 	// implementations: 60 s).

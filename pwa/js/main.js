@@ -34,7 +34,11 @@ async function setupSW() {
     if (e.data && e.data.type === 'BUILD') { sw.build = e.data.build; swPublish(); }
   });
   try {
-    const reg = await navigator.serviceWorker.register('/sw.js', { type: 'module', scope: '/', updateViaCache: 'none' });
+    // sw.js itself always skips the HTTP cache (an update check sees each
+    // new build); the modules it imports go through it, so installing the
+    // worker revalidates what the page already loaded instead of
+    // downloading it again. Every file is served no-cache with an ETag.
+    const reg = await navigator.serviceWorker.register('/sw.js', { type: 'module', scope: '/', updateViaCache: 'imports' });
     const watch = (w) => {
       if (!w) return;
       w.addEventListener('statechange', () => {

@@ -15,7 +15,19 @@ const PUSH_BATCH = 200;
 function trace(what) {
   if (globalThis.__cbTrace) globalThis.__cbTrace.push([what, Date.now()]);
 }
-const PULL_LIMIT = 500;
+// Pull pages are sized for the link: the first asks for 256 KB of
+// records, each next one for what the last page's round trip would carry
+// in about a second (within 64 KB–4 MB; the hub counts uncompressed JSON),
+// so a crowded travel router gets small pages and a good Wi-Fi few round
+// trips.
+const PULL_LIMIT = 10000;
+const PULL_BYTES = { first: 256 << 10, min: 64 << 10, max: 4 << 20, aimMs: 1000 };
+export function nextPullBytes(bytes, ms) {
+  const scaled = bytes * PULL_BYTES.aimMs / Math.max(ms, 50);
+  // Grow at most fourfold a page, so one quick page on a busy link does
+  // not ask for a page that outlasts the request's timeout.
+  return Math.round(Math.min(PULL_BYTES.max, bytes * 4, Math.max(PULL_BYTES.min, scaled)));
+}
 const TIMEOUT_MS = 10000;
 
 export class HubError extends Error {
@@ -125,12 +137,14 @@ async function pullAll() {
   // resetForEpoch (or a pull page, applied below), so it is re-read then.
   let [cursor, epoch, token] = await getMetas(['cursor', 'epoch', 'token']);
   cursor = cursor || 0;
+  let bytes = PULL_BYTES.first;
   for (;;) {
     const sentAt = Date.now();
     trace('pull-sent');
-    const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}`, undefined, token || null);
+    const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}&bytes=${bytes}`, undefined, token || null);
     trace('pull-answered');
     const gotAt = Date.now();
+    bytes = nextPullBytes(bytes, gotAt - sentAt);
     if (resets < 1 && ((epoch && page.epoch && page.epoch !== epoch) || (page.maxSeq < cursor))) {
       resets++;
       await resetForEpoch(page.epoch);
