@@ -317,70 +317,111 @@ func Restore(src, dst string) (res Restored, err error) {
 // keepAccess replaces, in the restored file at path, every bucket that is
 // not the store's camp data with the current store's: the access buckets
 // of other packages (auth_*) and the per-device counters. It answers false
-// when the current store has none to keep (the backup's then stay).
+// when the current store has none to keep, or cannot be read (the
+// backup's then stay).
 func keepAccess(cur *bolt.DB, path string) (bool, error) {
-	data := map[string]bool{}
+	data := map[string]bool{string(bucketSeqsV1): true}
 	for _, b := range allBuckets {
 		data[string(b)] = true
 	}
 	delete(data, string(BucketDevices))
-	keep := func(name []byte) bool { return !data[string(name)] && string(name) != string(bucketSeqsV1) }
-	var names [][]byte
-	err := cur.View(func(tx *bolt.Tx) error {
-		return tx.ForEach(func(name []byte, _ *bolt.Bucket) error {
-			if keep(name) && string(name) != string(BucketDevices) {
-				names = append(names, append([]byte(nil), name...))
-			}
-			return nil
-		})
-	})
-	if err != nil || len(names) == 0 {
-		return false, err
+	keep := func(name []byte) bool { return !data[string(name)] }
+	kept, ok := readKept(cur, keep)
+	if !ok {
+		return false, nil
 	}
 	out, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: time.Second})
 	if err != nil {
 		return false, err
 	}
 	defer out.Close()
-	return true, cur.View(func(from *bolt.Tx) error {
-		return out.Update(func(to *bolt.Tx) error {
-			var drop [][]byte
-			to.ForEach(func(name []byte, _ *bolt.Bucket) error {
-				if keep(name) {
-					drop = append(drop, append([]byte(nil), name...))
-				}
-				return nil
-			})
-			for _, name := range drop {
-				if err := to.DeleteBucket(name); err != nil {
-					return err
-				}
+	return true, out.Update(func(to *bolt.Tx) error {
+		var drop [][]byte
+		to.ForEach(func(name []byte, _ *bolt.Bucket) error {
+			if keep(name) {
+				drop = append(drop, append([]byte(nil), name...))
 			}
-			return from.ForEach(func(name []byte, b *bolt.Bucket) error {
-				if !keep(name) {
-					return nil
-				}
-				nb, err := to.CreateBucket(name)
-				if err != nil {
-					return err
-				}
-				return copyBucket(b, nb)
-			})
+			return nil
 		})
+		for _, name := range drop {
+			if err := to.DeleteBucket(name); err != nil {
+				return err
+			}
+		}
+		for _, k := range kept {
+			if err := k.write(to); err != nil {
+				return err
+			}
+		}
+		return nil
 	})
 }
 
-func copyBucket(from, to *bolt.Bucket) error {
-	return from.ForEach(func(k, v []byte) error {
-		if v == nil {
-			nb, err := to.CreateBucket(k)
-			if err != nil {
-				return err
-			}
-			return copyBucket(from.Bucket(k), nb)
+// keptBucket is a bucket read into memory: its pairs and nested buckets.
+type keptBucket struct {
+	name   []byte
+	pairs  [][2][]byte
+	nested []keptBucket
+}
+
+type bucketMaker interface {
+	CreateBucket([]byte) (*bolt.Bucket, error)
+}
+
+func (k keptBucket) write(parent bucketMaker) error {
+	b, err := parent.CreateBucket(k.name)
+	if err != nil {
+		return err
+	}
+	for _, p := range k.pairs {
+		if err := b.Put(p[0], p[1]); err != nil {
+			return err
 		}
-		return to.Put(k, v)
+	}
+	for _, n := range k.nested {
+		if err := n.write(b); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// readKept reads the buckets to keep; false when there are none besides
+// the device counters, or the store cannot be read (bbolt panics on some
+// damaged pages).
+func readKept(cur *bolt.DB, keep func([]byte) bool) (out []keptBucket, ok bool) {
+	defer func() {
+		if recover() != nil {
+			out, ok = nil, false
+		}
+	}()
+	access := false
+	err := cur.View(func(tx *bolt.Tx) error {
+		return tx.ForEach(func(name []byte, b *bolt.Bucket) error {
+			if !keep(name) {
+				return nil
+			}
+			if string(name) != string(BucketDevices) {
+				access = true
+			}
+			out = append(out, readBucket(name, b))
+			return nil
+		})
 	})
+	return out, err == nil && access
+}
+
+func readBucket(name []byte, b *bolt.Bucket) keptBucket {
+	k := keptBucket{name: append([]byte(nil), name...)}
+	b.ForEach(func(key, v []byte) error {
+		if v == nil {
+			k.nested = append(k.nested, readBucket(key, b.Bucket(key)))
+			return nil
+		}
+		k.pairs = append(k.pairs, [2][]byte{append([]byte(nil), key...), append([]byte(nil), v...)})
+		return nil
+	})
+	return k
 }
 
 // removeRestoreLeftovers deletes what a restore killed part-way leaves
