@@ -413,7 +413,7 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	require.NoError(t, coachSet(ctx, "plan-bout", "new"))
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-bout-day"]').value === ''`, 5*time.Second))
 	start := time.Now().AddDate(0, 0, 14)
-	bout := start.AddDate(0, 0, 8*7)
+	bout := start.AddDate(0, 0, 10*7)
 	d := func(t time.Time) string { return t.Format("2006-01-02") }
 	require.NoError(t, pwatest.Type(ctx, "plan-name", "Invented rematch"))
 	require.NoError(t, coachSet(ctx, "plan-camp-start", d(start)))
@@ -427,9 +427,9 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "74.0"))
 	require.NoError(t, pwatest.Type(ctx, "plan-ref-load", "3400"))
 	require.NoError(t, pwatest.Click(ctx, "plan-generate"))
-	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="plan-week-"][data-level]').length === 8`, 10*time.Second))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="plan-week-"][data-level]').length === 10`, 10*time.Second))
 	var last string
-	require.NoError(t, pwatest.Eval(ctx, `document.querySelector('[data-testid="plan-week-8"]').dataset.level`, &last))
+	require.NoError(t, pwatest.Eval(ctx, `document.querySelector('[data-testid="plan-week-10"]').dataset.level`, &last))
 	assert.Equal(t, "taper", last, "the final week is the taper")
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-taper-cut"]')`, 10*time.Second))
 	var pct float64
@@ -471,7 +471,23 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 
 	// Edit week 4 by hand, then save through the device's store.
 	require.NoError(t, coachSet(ctx, "plan-week-4-level", "rest"))
-	require.NoError(t, coachSet(ctx, "plan-week-4-cap", "0"))
+	require.NoError(t, coachSet(ctx, "plan-week-4-spar", "0"))
+	require.NoError(t, coachSet(ctx, "plan-week-4-hard", "0"))
+	// Week 2 holds a flight: 9 h east (Lisbon → Tokyo in winter), read
+	// from zone data.
+	wk3 := start.AddDate(0, 0, 7)
+	require.NoError(t, pwatest.Click(ctx, "plan-week-2-travel-add"))
+	require.NoError(t, coachSet(ctx, "plan-week-2-from-zone", "Europe/Lisbon"))
+	require.NoError(t, coachSet(ctx, "plan-week-2-dep-date", d(wk3)))
+	require.NoError(t, coachSet(ctx, "plan-week-2-dep-time", "08:00"))
+	require.NoError(t, coachSet(ctx, "plan-week-2-to-zone", "Asia/Tokyo"))
+	require.NoError(t, coachSet(ctx, "plan-week-2-arr-date", d(wk3.AddDate(0, 0, 1))))
+	require.NoError(t, coachSet(ctx, "plan-week-2-arr-time", "12:00"))
+	require.NoError(t, coachSet(ctx, "plan-week-2-strength", "strength_speed"))
+	require.NoError(t, pwatest.Type(ctx, "plan-week-2-note", "Fly out early"))
+	// The hub's check names the flight in words: 9 days to adjust, heavy weeks after it.
+	require.NoError(t, pwatest.Poll(ctx, `[...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes("the body needs about 9 days"))`, 10*time.Second))
+	require.NoError(t, pwatest.Poll(ctx, `Number(document.querySelector('[data-testid="plan-path-chart"]').dataset.points) >= 2`, 5*time.Second))
 	// What was typed first is still there (nothing reloaded the form).
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-name"]').value === 'Invented rematch'`, time.Second))
 	require.NoError(t, pwatest.Click(ctx, "plan-save"))
@@ -505,9 +521,16 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 			MassKg float64 `json:"mass_kg"`
 		}
 		Weeks []struct {
-			Week  int
-			Level string
-			Cap   *int `json:"spar_cap_rounds"`
+			Week   int
+			Level  string
+			Cap    *int `json:"spar_rounds"`
+			Note   string
+			Travel *struct {
+				DepartAt string `json:"depart_at"`
+				ArriveAt string `json:"arrive_at"`
+				ToZone   string `json:"to_zone"`
+			}
+			Strength *struct{ IDs []string }
 		}
 	}
 	require.NoError(t, json.Unmarshal(got.Body, &b))
@@ -523,11 +546,20 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 	assert.InDelta(t, 71.0, b.LimitKg, 1e-9)
 	assert.InDelta(t, 74.0, b.StartMassKg, 1e-9)
 	assert.InDelta(t, 3400, b.RefLoad, 1e-9)
-	require.Len(t, b.Weeks, 8)
+	require.Len(t, b.Weeks, 10)
+	require.NotNil(t, b.Weeks[1].Travel)
+	tokyo, _ := time.LoadLocation("Asia/Tokyo")
+	arr, err := time.Parse(time.RFC3339, b.Weeks[1].Travel.ArriveAt)
+	require.NoError(t, err)
+	assert.Equal(t, d(wk3.AddDate(0, 0, 1))+" 12:00", arr.In(tokyo).Format("2006-01-02 15:04"), "landing at 12:00 on Tokyo's clock")
+	assert.Equal(t, "Asia/Tokyo", b.Weeks[1].Travel.ToZone)
+	assert.Equal(t, "Fly out early", b.Weeks[1].Note)
+	require.NotNil(t, b.Weeks[1].Strength)
+	assert.Equal(t, "strength_speed", b.Weeks[1].Strength.IDs[0])
 	assert.Equal(t, "rest", b.Weeks[3].Level)
 	require.NotNil(t, b.Weeks[3].Cap)
 	assert.Equal(t, 0, *b.Weeks[3].Cap)
-	assert.Equal(t, "taper", b.Weeks[7].Level)
+	assert.Equal(t, "taper", b.Weeks[9].Level)
 	require.Len(t, b.Path, knots, "the edited path is stored as knots")
 	assert.InDelta(t, 73.1, b.Path[1].MassKg, 1e-9)
 	assert.Equal(t, d(start), b.Path[0].Day, "the path starts at camp start")

@@ -8,7 +8,11 @@ import { toKg, roundTo, parseNum } from '../record.js';
 import { hubGet, hubPost, getTables } from './api.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
 
-const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium-heavy', heavy: 'Heavy', taper: 'Taper' };
+const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium–heavy', heavy: 'Heavy', taper: 'Taper' };
+const EMPH_GROUP = { strength: ['max_strength', 'strength_speed', 'speed', 'plyometric', 'none'], conditioning: ['aerobic', 'anaerobic', 'fight_specific', 'none'] };
+// emphWords names an emphasis from the hub's list of emphases.
+const emphWords = (tables, id) => ((tables && tables.emphases) || []).find((e) => e.id === id)?.words || id;
+const emphText = (tables, e) => (!e ? '' : e.label || (e.ids || []).map((id) => emphWords(tables, id)).join(' + '));
 const MON = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 const dayMonth = (d) => `${+d.slice(8, 10)} ${MON[+d.slice(5, 7) - 1]}`;
 const dayOfNumber = (n) => new Date(n * 86400000).toISOString().slice(0, 10);
@@ -74,8 +78,18 @@ function formFromBout(b, units) {
     weigh_in_type: b.weigh_in_type || 'day_before', weight_class: b.weight_class || (b.limit_kg ? 'custom' : ''),
     limit: b.weight_class === 'custom' || !b.weight_class ? (b.limit_kg ? fmtN(massNum(b.limit_kg, units), 1) : '') : '',
     start_mass: b.start_mass_kg ? fmtN(massNum(b.start_mass_kg, units), 1) : '', ref_load: b.reference_load_au ? String(b.reference_load_au) : '',
-    weeks: b.weeks || [], knots: (b.path || []).map((k) => ({ day: k.day, mass: fmtN(massNum(k.mass_kg, units), 1) })),
+    weeks: (b.weeks || []).map(weekForm), knots: (b.path || []).map((k) => ({ day: k.day, mass: fmtN(massNum(k.mass_kg, units), 1) })),
   };
+}
+
+// weekForm turns a stored week into the form's week (travel as wall-clock
+// dates and times on each end's own clock).
+function weekForm(w) {
+  if (!w.travel) return { ...w };
+  const t = w.travel;
+  const dep = wallClock(t.depart_at, t.from_zone);
+  const arr = wallClock(t.arrive_at, t.to_zone);
+  return { ...w, travel: { dep_date: dep.date, dep_time: dep.time, arr_date: arr.date, arr_time: arr.time, from_zone: t.from_zone, to_zone: t.to_zone } };
 }
 
 function blank() {
@@ -108,7 +122,22 @@ function bodyFromForm(f, units) {
     if (!Number.isFinite(r) || r < 0) errs.push('Reference weekly load: a number of AU per week (session RPE × minutes, summed over a usual heavy week).');
     else b.reference_load_au = r;
   }
-  if (f.weeks.length) b.weeks = f.weeks.map((w, i) => ({ week: i + 1, level: w.level, ...(w.spar_cap_rounds !== undefined && w.spar_cap_rounds !== '' ? { spar_cap_rounds: Number(w.spar_cap_rounds) } : {}) }));
+  if (f.weeks.length) {
+    b.weeks = f.weeks.map((w, i) => {
+      const o = { week: i + 1, level: w.level };
+      for (const k of ['spar_cap_rounds', 'spar_rounds', 'hard_rounds']) if (w[k] !== undefined && w[k] !== '' && w[k] !== null) o[k] = Number(w[k]);
+      for (const k of ['strength', 'conditioning']) if (w[k] && ((w[k].ids && w[k].ids.length) || w[k].label)) o[k] = w[k];
+      if (w.note) o.note = w.note;
+      if (w.travel) {
+        const t = w.travel;
+        if (!isDay(t.dep_date) || !isDay(t.arr_date) || !t.from_zone || !t.to_zone) errs.push(`Week ${i + 1} travel: fill in leaving and landing (date, time, time zone).`);
+        else {
+          try { o.travel = { depart_at: weighInRFC3339(t.from_zone, t.dep_date, t.dep_time || '09:00'), arrive_at: weighInRFC3339(t.to_zone, t.arr_date, t.arr_time || '18:00'), from_zone: t.from_zone, to_zone: t.to_zone }; } catch (_) { errs.push(`Week ${i + 1} travel: a time zone this device does not know (e.g. Europe/Lisbon).`); }
+        }
+      }
+      return o;
+    });
+  }
   if (f.knots.length) {
     const ks = [];
     f.knots.forEach((k, i) => {
@@ -179,7 +208,7 @@ export function Plan() {
     setGen({ busy: true });
     try {
       const d = await hubGet(query('/api/plan/default', { camp_start: f.camp_start, bout_day: f.bout_day, athlete: aid }));
-      setF((o) => ({ ...o, weeks: d.weeks.map((w) => ({ level: w.level, spar_cap_rounds: w.spar_cap_rounds })) }));
+      setF((o) => ({ ...o, weeks: d.weeks.map(weekForm) }));
       setGen({ done: true });
     } catch (e) { setGen({ error: e.message }); }
   };
@@ -254,21 +283,14 @@ export function Plan() {
     </div>
     ${gen && gen.error && html`<p class="error" data-testid="plan-generate-error">${gen.error}</p>`}
     ${!f.weeks.length && html`<p class="muted small">The default plan steps the load up for three weeks, eases off in the fourth, and tapers in the final week. You can change every week after.</p>`}
-    ${f.weeks.length > 0 && html`<div class="weeks" data-testid="plan-weeks" role="table" aria-label="Planned weeks">
-      <div class="wrow whead" role="row"><span role="columnheader">Week</span><span role="columnheader">Load level</span><span role="columnheader">Sparring cap, rounds</span></div>
-      ${f.weeks.map((w, i) => html`<div class="wrow" role="row" data-testid=${`plan-week-${i + 1}`} data-level=${w.level}>
-        <span class="wk" role="cell"><strong>${i + 1}</strong><br /><span class="small muted">${weekStart(i) ? dayMonth(weekStart(i)) : ''}</span></span>
-        <span role="cell"><select data-testid=${`plan-week-${i + 1}-level`} aria-label=${`Week ${i + 1} load level`} value=${w.level}
-          onChange=${(e) => set('weeks', f.weeks.map((x, j) => (j === i ? { ...x, level: e.target.value } : x)))}>
-          ${Object.entries(LEVEL_WORDS).map(([k, t]) => html`<option value=${k}>${t}</option>`)}</select>
-          ${fractions[w.level] !== undefined && html`<span class="au">${fmtN(fractions[w.level] * 100, 0)} % of reference${Number.isFinite(ref) && ref > 0 ? ` ≈ ${fmtN(fractions[w.level] * ref, 0)} AU` : ''}</span>`}</span>
-        <span role="cell"><input data-testid=${`plan-week-${i + 1}-cap`} aria-label=${`Week ${i + 1} sparring cap, rounds`} inputmode="numeric" value=${w.spar_cap_rounds ?? ''}
-          onInput=${(e) => set('weeks', f.weeks.map((x, j) => (j === i ? { ...x, spar_cap_rounds: e.target.value === '' ? '' : Number(e.target.value) } : x)))} /></span>
-      </div>`)}
+    ${f.weeks.length > 0 && html`<div class="weeks" data-testid="plan-weeks" aria-label="Planned weeks">
+      ${f.weeks.map((w, i) => html`<${WeekRow} w=${w} i=${i} start=${weekStart(i)} tables=${tables} fraction=${fractions[w.level]} refAU=${ref}
+        onEdit=${(nw) => set('weeks', f.weeks.map((x, j) => (j === i ? nw : x)))} current=${weekStart(i) && weekStart(i) <= today() && today() < addDays(weekStart(i), 7)} />`)}
     </div>`}
     ${check && check.taper_cut_pct != null && html`<p class="taper" data-testid="plan-taper-cut" data-pct=${check.taper_cut_pct}>Taper week: load cut by <strong>${fmtN(check.taper_cut_pct, 0)} %</strong> of the reference week (a 41–60 % cut is the range found to work best; Bosquet et al. 2007).</p>`}
 
     <h2>Planned mass path</h2>
+    <${PathChart} check=${check} units=${units} />
     <${PathView} check=${check} units=${units} f=${f} set=${set} />
 
     <h2>Checks</h2>
@@ -276,7 +298,9 @@ export function Plan() {
 
     <button class="primary" type="submit" data-testid="plan-save" disabled=${state && state.saving}>${boutId && boutId !== 'new' ? 'Save the changes' : 'Save the plan'}</button>
     <${SaveLine} state=${state} />
-    <p class="links"><${Link} to=${query('/athlete', { id: aid })} class="secondary linkbtn" data-testid="plan-to-charts">Charts of ${a.name}</${Link}></p>`}
+    <p class="links no-print"><${Link} to=${query('/athlete', { id: aid })} class="secondary linkbtn" data-testid="plan-to-charts">Charts of ${a.name}</${Link}>
+      <button type="button" class="secondary" data-testid="plan-print" onClick=${() => window.print()}>Print the plan on one page</button></p>
+    ${boutId && boutId !== 'new' && html`<h2>Planned against done</h2><${PlanDone} aid=${aid} tables=${tables} />`}`}
   </form>`;
 }
 
@@ -342,4 +366,98 @@ function levelFractions(tables) {
   const r = tables && tables.rules && tables.rules.find((x) => x.id === 'off_plan');
   if (r) for (const p of r.params) if (p.name.startsWith('level_')) out[p.name.slice(6)] = p.default;
   return out;
+}
+
+// WeekRow edits one week: level, strength and conditioning emphases,
+// planned sparring and hard rounds, travel and a note.
+function WeekRow({ w, i, start, tables, fraction, refAU, onEdit, current }) {
+  const k = i + 1;
+  const ed = (patch) => onEdit({ ...w, ...patch });
+  const emph = (group) => {
+    const e = w[group] || {};
+    const main = (e.ids || [])[0] || '';
+    const rest = (e.ids || []).slice(1);
+    return html`<div class="emph"><label for=${`w${k}-${group}`}>${group === 'strength' ? 'Strength' : 'Conditioning'}</label>
+      <select id=${`w${k}-${group}`} data-testid=${`plan-week-${k}-${group}`} value=${main}
+        onChange=${(ev) => ed({ [group]: { ...e, ids: ev.target.value ? [ev.target.value, ...rest.filter((x) => x !== ev.target.value && ev.target.value !== 'none')] : rest } })}>
+        <option value="">—</option>${EMPH_GROUP[group].map((id) => html`<option value=${id}>${emphWords(tables, id)}</option>`)}</select>
+      ${group === 'strength' && main !== 'plyometric' && main !== 'none' && html`<label class="small"><input type="checkbox" data-testid=${`plan-week-${k}-plyo`} checked=${rest.includes('plyometric')}
+        onChange=${(ev) => ed({ strength: { ...e, ids: [main, ...(ev.target.checked ? ['plyometric'] : [])].filter(Boolean) } })} /> with ${emphWords(tables, 'plyometric').toLowerCase()}</label>`}
+      <input aria-label=${`Week ${k} ${group}, in your words`} data-testid=${`plan-week-${k}-${group}-label`} placeholder="in your words (optional)" value=${e.label || ''}
+        onInput=${(ev) => ed({ [group]: { ...e, label: ev.target.value } })} /></div>`;
+  };
+  const t = w.travel;
+  const et = (patch) => ed({ travel: { ...t, ...patch } });
+  return html`<div class=${`wcard${current ? ' current' : ''}`} data-testid=${`plan-week-${k}`} data-level=${w.level} aria-current=${current ? 'date' : undefined}>
+    <div class="whead2"><strong>Week ${k}</strong> <span class="small muted">${start ? dayMonth(start) : ''}${current ? ' · this week' : ''}</span></div>
+    <div class="wgrid">
+      <div><label for=${`w${k}-level`}>Load level</label><select id=${`w${k}-level`} data-testid=${`plan-week-${k}-level`} aria-label=${`Week ${k} load level`} value=${w.level}
+        onChange=${(e) => ed({ level: e.target.value })}>${Object.entries(LEVEL_WORDS).map(([id, t2]) => html`<option value=${id}>${t2}</option>`)}</select>
+        ${fraction !== undefined && html`<span class="au">${fmtN(fraction * 100, 0)} % of reference${Number.isFinite(refAU) && refAU > 0 ? ` ≈ ${fmtN(fraction * refAU, 0)} AU` : ''}</span>`}</div>
+      ${emph('strength')}
+      ${emph('conditioning')}
+      <div><label for=${`w${k}-spar`}>Sparring, rounds</label><input id=${`w${k}-spar`} data-testid=${`plan-week-${k}-spar`} inputmode="numeric" value=${w.spar_rounds ?? w.spar_cap_rounds ?? ''}
+        onInput=${(e) => ed({ spar_rounds: e.target.value === '' ? '' : Number(e.target.value), spar_cap_rounds: undefined })} /></div>
+      <div><label for=${`w${k}-hard`}>Hard rounds, at most</label><input id=${`w${k}-hard`} data-testid=${`plan-week-${k}-hard`} inputmode="numeric" value=${w.hard_rounds ?? ''}
+        onInput=${(e) => ed({ hard_rounds: e.target.value === '' ? '' : Number(e.target.value) })} /></div>
+      <div class="wide"><label for=${`w${k}-note`}>Note</label><input id=${`w${k}-note`} data-testid=${`plan-week-${k}-note`} value=${w.note || ''} onInput=${(e) => ed({ note: e.target.value })} /></div>
+    </div>
+    ${!t && html`<button type="button" class="secondary small" data-testid=${`plan-week-${k}-travel-add`} onClick=${() => ed({ travel: { dep_date: start, dep_time: '09:00', arr_date: start, arr_time: '18:00', from_zone: deviceZone(), to_zone: '' } })}>Add travel this week</button>`}
+    ${t && html`<fieldset class="travel" data-testid=${`plan-week-${k}-travel`}><legend>Travel</legend><div class="wgrid">
+      <div><label for=${`w${k}-tfz`}>From (time zone)</label><input id=${`w${k}-tfz`} list="plan-zones" data-testid=${`plan-week-${k}-from-zone`} value=${t.from_zone} onInput=${(e) => et({ from_zone: e.target.value.trim() })} /></div>
+      <div><label for=${`w${k}-tdd`}>Leaves (date)</label><input id=${`w${k}-tdd`} type="date" data-testid=${`plan-week-${k}-dep-date`} value=${t.dep_date} onInput=${(e) => et({ dep_date: e.target.value })} /></div>
+      <div><label for=${`w${k}-tdt`}>Leaves (time there)</label><input id=${`w${k}-tdt`} type="time" data-testid=${`plan-week-${k}-dep-time`} value=${t.dep_time} onInput=${(e) => et({ dep_time: e.target.value })} /></div>
+      <div><label for=${`w${k}-ttz`}>To (time zone)</label><input id=${`w${k}-ttz`} list="plan-zones" data-testid=${`plan-week-${k}-to-zone`} value=${t.to_zone} onInput=${(e) => et({ to_zone: e.target.value.trim() })} /></div>
+      <div><label for=${`w${k}-tad`}>Lands (date)</label><input id=${`w${k}-tad`} type="date" data-testid=${`plan-week-${k}-arr-date`} value=${t.arr_date} onInput=${(e) => et({ arr_date: e.target.value })} /></div>
+      <div><label for=${`w${k}-tat`}>Lands (time there)</label><input id=${`w${k}-tat`} type="time" data-testid=${`plan-week-${k}-arr-time`} value=${t.arr_time} onInput=${(e) => et({ arr_time: e.target.value })} /></div>
+    </div><button type="button" class="secondary small" data-testid=${`plan-week-${k}-travel-remove`} onClick=${() => ed({ travel: undefined })}>No travel this week</button></fieldset>`}
+  </div>`;
+}
+
+// PathChart draws the planned mass path as it is edited: mass against
+// day, the limit as a line.
+function PathChart({ check, units }) {
+  // The last path the hub drew stays while a change is being typed, so
+  // the chart never jumps out from under the coach's finger.
+  const last = useRef([]);
+  if (check && Array.isArray(check.path) && check.path.length >= 2) last.current = check.path;
+  const path = last.current;
+  if (path.length < 2) return html`<figure class="pathchart" data-testid="plan-path-chart" data-points="0"><figcaption class="small muted">The chart of the path appears once the bout, limit and start mass are filled in.</figcaption></figure>`;
+  const W = 320, H = 120, P = 28;
+  const xs = path.map((k) => k.Day), ys = path.map((k) => massNum(k.MassKg, units));
+  const x0 = Math.min(...xs), x1 = Math.max(...xs);
+  const y0 = Math.min(...ys) - 0.5, y1 = Math.max(...ys) + 0.5;
+  const X = (d) => P + ((d - x0) / Math.max(1, x1 - x0)) * (W - P - 8);
+  const Y = (m) => 8 + (1 - (m - y0) / (y1 - y0)) * (H - 8 - 18);
+  const pts = path.map((k, i) => `${X(xs[i]).toFixed(1)},${Y(ys[i]).toFixed(1)}`).join(' ');
+  return html`<figure class="pathchart" data-testid="plan-path-chart" data-points=${path.length}>
+    <svg viewBox=${`0 0 ${W} ${H}`} role="img" aria-label=${`Planned mass path from ${fmtN(ys[0], 1)} to ${fmtN(ys[ys.length - 1], 1)} ${units}`}>
+      <polyline points=${pts} fill="none" stroke="currentColor" stroke-width="2" />
+      ${path.map((k, i) => html`<circle cx=${X(xs[i])} cy=${Y(ys[i])} r="3" />`)}
+      <text x="2" y=${Y(ys[0]) + 4} font-size="10">${fmtN(ys[0], 1)}</text>
+      <text x="2" y=${Y(ys[ys.length - 1]) + 4} font-size="10">${fmtN(ys[ys.length - 1], 1)}</text>
+      <text x=${P} y=${H - 4} font-size="10">${shortDay(dayOfNumber(x0))}</text>
+      <text x=${W - 8} y=${H - 4} font-size="10" text-anchor="end">${shortDay(dayOfNumber(x1))}</text>
+    </svg><figcaption class="small muted">Planned morning mass, ${units}, from camp start to the weigh-in.</figcaption></figure>`;
+}
+
+// PlanDone shows the saved plan week by week against what was logged,
+// refreshed whenever the device's store changes (a session syncs).
+function PlanDone({ aid, tables }) {
+  const v = useVersion();
+  const rep = useAsync(() => hubGet(`/api/athletes/${encodeURIComponent(aid)}/plan`).catch((e) => ({ error: e.message })), [aid, v], null);
+  if (!rep) return html`<p class="muted small">Reading what was done from the hub…</p>`;
+  if (rep.error) return html`<p class="muted small" data-testid="plan-done-error">Planned against done needs the hub: ${rep.error}</p>`;
+  return html`<div class="done-table" data-testid="plan-done" role="table" aria-label="Planned against done">
+    <div class="drow dhead" role="row"><span role="columnheader">Week</span><span role="columnheader">Load, AU</span><span role="columnheader">Sessions</span><span role="columnheader">Sparring, rounds (hard)</span></div>
+    ${rep.weeks.map((w) => html`<div class=${`drow${w.current ? ' current' : ''}${w.verdict ? ' ' + w.verdict : ''}`} role="row" data-testid=${`plan-done-${w.week}`}
+      data-load=${w.done.load_au} data-sessions=${w.done.sessions} data-rounds=${w.done.rounds} data-hard=${w.done.hard_rounds} aria-current=${w.current ? 'date' : undefined}>
+      <span role="cell"><strong>${w.week}</strong> <span class="small muted">${LEVEL_WORDS[w.level] || w.level}${w.current ? ' · this week' : ''}</span></span>
+      <span role="cell" class="num">${w.done.days ? fmtN(w.done.load_au, 0) : '—'} / ${w.planned_load_au != null ? fmtN(w.planned_load_au, 0) : '—'}</span>
+      <span role="cell">${w.done.days ? `${w.done.sessions}` : '—'}${w.done.sessions ? html` <span class="small muted">${Object.entries(w.done.by_emphasis).map(([id, n]) => `${n} ${id ? emphWords(tables, id).toLowerCase() : 'no focus'}`).join(', ')}</span>` : ''}
+        <span class="small muted" style="display:block">Plan: ${[emphText(tables, w.strength), emphText(tables, w.conditioning)].filter(Boolean).join('; ') || '—'}</span></span>
+      <span role="cell" class="num">${w.done.days ? `${w.done.rounds} (${w.done.hard_rounds})` : '—'} / ${w.spar_rounds ?? '—'} (${w.hard_rounds ?? '—'})</span>
+      ${w.words && html`<span role="cell" class="words" data-testid=${`plan-done-${w.week}-words`}>${w.words}</span>`}
+    </div>`)}
+  </div>`;
 }
