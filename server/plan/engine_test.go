@@ -39,7 +39,7 @@ func TestPlanAgreesWithFlagEngine(t *testing.T) {
 	b := bout(t, 55, 70, 66.5, nil, ws)
 	taperNote := func(fs []flags.Flag) bool {
 		for _, f := range fs {
-			if f.Rule == flags.RuleOffPlan && strings.Contains(f.Reason, "Planned taper") {
+			if f.Rule == flags.RuleOffPlan && strings.Contains(f.Reason, "planned taper") {
 				return true
 			}
 		}
