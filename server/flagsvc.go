@@ -419,7 +419,7 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 		return in, err
 	}
 	in.Bout = best
-	in.FirstDay = f.firstDay(id, day)
+	in.FirstDay, in.From = f.firstDay(id, day), from
 	if in.Settings, err = f.settingsFor(id); err != nil {
 		return in, err
 	}

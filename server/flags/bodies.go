@@ -84,6 +84,7 @@ type weekBody struct {
 	SparCapRounds *int   `json:"spar_cap_rounds"`
 	SparRounds    *int   `json:"spar_rounds"` // stands over SparCapRounds
 	HardRounds    *int   `json:"hard_rounds"`
+	pos           int    // its index in the bout's weeks list (for JSON paths)
 }
 
 type boutBody struct {

@@ -136,6 +136,12 @@ func newEngine(in *Input) (*engine, bool) {
 	}
 	if d, ok := dayOf(in.FirstDay); ok && d <= today {
 		e.active = true
+		if from, ok := dayOf(in.From); ok && d < from {
+			d = from // sessions before From are not in Records
+		}
+		if d < e.first && d >= today-maxHistoryDays {
+			e.first = d
+		}
 	}
 	e.loads = make([]float64, int(today-e.first)+1)
 	// Pass 2: index each record under its day, decoding only the bodies a

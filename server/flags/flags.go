@@ -113,9 +113,13 @@ type Input struct {
 	Bouts []devsync.Record
 	// FirstDay is the day of the athlete's first record of a kind that
 	// marks activity (not athlete, settings, bout or note), when the caller
-	// knows it from beyond Records' window; "" to read it from Records.
-	// missing_checkin runs from it.
+	// knows it from beyond Records' window or kinds; "" to read it from
+	// Records. missing_checkin runs from it, and the daily load series
+	// (load_spike, monotony, residual_gap) from it or From, the later.
 	FirstDay string
+	// From is the first day from which Records hold every session ("" for
+	// the whole history).
+	From string
 	// Settings are merged thresholds overriding the defaults
 	// (rule → parameter → value); absent entries take DefaultThresholds.
 	Settings map[string]map[string]float64

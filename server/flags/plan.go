@@ -55,7 +55,8 @@ func parsePlan(r *devsync.Record) *plan {
 	}
 	sort.Slice(p.knots, func(i, j int) bool { return p.knots[i].Day < p.knots[j].Day })
 	p.weekByIndex = map[int]weekBody{}
-	for _, w := range b.Weeks {
+	for i, w := range b.Weeks {
+		w.pos = i
 		p.weekByIndex[w.Week] = w
 	}
 	return p

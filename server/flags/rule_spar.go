@@ -51,14 +51,14 @@ func (e *engine) sparDensity() {
 				// The week's planned rounds stand over the older flat cap.
 				switch {
 				case w.SparRounds != nil:
-					capRounds, capName = float64(*w.SparRounds), fmt.Sprintf("bout.weeks[%d].spar_rounds", k-1)
+					capRounds, capName = float64(*w.SparRounds), fmt.Sprintf("bout.weeks[%d].spar_rounds", w.pos)
 					capWords = fmt.Sprintf("week %d's planned rounds", k)
 				case w.SparCapRounds != nil:
-					capRounds, capName = float64(*w.SparCapRounds), fmt.Sprintf("bout.weeks[%d].spar_cap_rounds", k)
+					capRounds, capName = float64(*w.SparCapRounds), fmt.Sprintf("bout.weeks[%d].spar_cap_rounds", w.pos)
 					capWords = fmt.Sprintf("week %d's planned cap", k)
 				}
 				if w.HardRounds != nil {
-					hardCap, hardName = float64(*w.HardRounds), fmt.Sprintf("bout.weeks[%d].hard_rounds", k-1)
+					hardCap, hardName = float64(*w.HardRounds), fmt.Sprintf("bout.weeks[%d].hard_rounds", w.pos)
 					hardWords = fmt.Sprintf("week %d's planned hard rounds", k)
 				}
 			}

@@ -53,7 +53,7 @@ func TestSparDensityWeekCapAndForming(t *testing.T) {
 	c.rounds(d(10), 13, 2)
 	f := one(t, c.run(d(10)), RuleSparDensity)
 	wantLevel(t, f, LevelWatch, StatusFlag)
-	if f.ThresholdName != "bout.weeks[2].spar_cap_rounds" {
+	if f.ThresholdName != "bout.weeks[0].spar_cap_rounds" { // the JSON path: the first entry of weeks, week 2
 		t.Errorf("threshold %q", f.ThresholdName)
 	}
 	approx(t, "cap", f.Reference, 12, 0)

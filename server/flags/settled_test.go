@@ -47,7 +47,7 @@ func TestSettledMassTrendCountsMassesBeforeCampStart(t *testing.T) {
 	kg := []float64{70, 69.95, 69.9, 69.85, 69.8, 69.75, 69.7, 69.6}
 	want := kg[0]
 	for _, m := range kg[1:] {
-		want += 0.25 * (m - want) // EWMA, Hunter 1986 (λ = 2/(N+1), N = 7)
+		want += 0.25 * (m - want) // EWMA recursion, λ = 2/(N+1), N = 7 (Williams et al. 2017)
 	}
 	tr, _, _, _, ok := mustEngine(t, c.input(d(0))).trend()
 	if !ok || math.Abs(tr-want) > 1e-9 {
@@ -319,7 +319,8 @@ func TestSettledWellnessSDFloorOnePoint(t *testing.T) {
 
 // Reading "Jumps": valid attempts are flight times 200–1000 ms or typed
 // heights 4.9–122.6 cm (REFERENCES §1.2; h = g·t²/8 gives 4.9 cm at 200 ms
-// and 122.6 cm at 1000 ms, Bosco et al. 1983), the same range as entry. A
+// and 122.6 cm at 1000 ms, Asmussen & Bonde-Petersen flight-time formula,
+// REFERENCES §1.1), the same range as entry. A
 // 1000 ms flight counts; a 1.5 cm typo does not enter the value or the
 // noise estimate.
 func TestSettledJumpValidRange(t *testing.T) {
@@ -408,5 +409,24 @@ func TestSettledFirstRecordSkipsNotes(t *testing.T) {
 	}
 	if f := one(t, fs, RuleMonotony); !strings.Contains(f.Reason, ": 3 of 7 days") {
 		t.Errorf("monotony counted the note's day: %s", f.Reason)
+	}
+}
+
+// Reading "First record": a record of any kind but athlete, settings,
+// bout and note starts the load series, even one the rules do not read
+// (a weigh-in, a test), when the caller names its day.
+func TestSettledFirstRecordOfAnyKind(t *testing.T) {
+	c := &camp{}
+	c.load(d(20), 500)
+	in := c.input(d(22))
+	in.FirstDay = d(10)
+	f := one(t, Compute(in), RuleLoadSpike)
+	if !strings.Contains(f.Reason, ": 13 of 28 days") {
+		t.Errorf("load days not counted from the first record: %s", f.Reason)
+	}
+	// Older than the records given: counted from the first day they cover.
+	in.FirstDay, in.From = d(-300), d(5)
+	if f := one(t, Compute(in), RuleLoadSpike); !strings.Contains(f.Reason, ": 18 of 28 days") {
+		t.Errorf("load days before the records given: %s", f.Reason)
 	}
 }

@@ -291,7 +291,7 @@ func badCases(t *testing.T) []badCase {
 		{"jump seven heights", jump(`{"heights_cm":[30,30,30,30,30,30,30]}`), "body.heights_cm", []string{"1 to 6 attempts", "7"}},
 		// One valid range at entry and in the rules (REFERENCES.md §1.2):
 		// 200–1000 ms of flight, or typed heights 4.9–122.6 cm (g·t²/8 at
-		// those flight times, Bosco et al. 1983).
+		// those flight times by the flight-time formula, REFERENCES §1.1).
 		{"jump height zero", jump(`{"heights_cm":[30,31,0]}`), "body.heights_cm[2]", []string{"4.9 and 122.6 cm", "got 0"}},
 		{"jump height typo 1.5 cm", jump(`{"heights_cm":[1.5,35,36]}`), "body.heights_cm[0]", []string{"4.9 and 122.6 cm", "got 1.5"}},
 		{"jump height just below", jump(`{"heights_cm":[4.8]}`), "body.heights_cm[0]", []string{"4.9 and 122.6 cm"}},
