@@ -113,3 +113,16 @@ func TestBaselines_Demo(t *testing.T) {
 	assert.False(t, byName["Ines Halloran"].OnHold)
 	assert.Greater(t, kofi.SparRounds7d, 21, "the hard streak's rounds are counted")
 }
+
+// The demo camp never stamps ahead of the clock: a coach's edit of any
+// demo entry, stamped after now, wins.
+func TestDemoStampsNothingAheadOfTheClock(t *testing.T) {
+	for _, hour := range []int{0, 7, 12, 23} {
+		now := time.Date(2026, 12, 3, hour, 30, 0, 0, time.UTC)
+		for _, r := range demo.Build(now) {
+			if r.Stamp.L > now.UnixMilli() {
+				t.Fatalf("at %s the demo stamps %s (%s) at %s", now.Format(time.Kitchen), r.ID, r.Kind, time.UnixMilli(r.Stamp.L).UTC())
+			}
+		}
+	}
+}

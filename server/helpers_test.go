@@ -88,13 +88,7 @@ func (h *hub) pushRaw(body []byte) (int, []byte) {
 func (h *hub) push(device string, n0 uint64, recs ...devsync.Record) devsync.PushResponse {
 	req := devsync.PushRequest{Device: device}
 	for i, r := range recs {
-		op := devsync.OpUpsert
-		if r.Deleted {
-			op = devsync.OpDelete
-		} else if r.Gen > 0 {
-			op = devsync.OpRestore
-		}
-		req.Mutations = append(req.Mutations, devsync.Mutation{N: n0 + uint64(i), Op: op, Record: r})
+		req.Mutations = append(req.Mutations, devsync.Mutation{N: n0 + uint64(i), Op: devsync.OpOf(r), Record: r})
 	}
 	b, _ := json.Marshal(req)
 	st, out := h.pushRaw(b)

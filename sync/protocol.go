@@ -96,6 +96,19 @@ type ErrorBody struct {
 	ServerTime int64  `json:"serverTime,omitempty"`
 }
 
+// OpOf is the operation a record version implies: delete for a
+// tombstone, restore for a live record above generation 0, otherwise
+// upsert. The app's db.js opOf is the same rule.
+func OpOf(r Record) string {
+	switch {
+	case r.Deleted:
+		return OpDelete
+	case r.Gen > 0:
+		return OpRestore
+	}
+	return OpUpsert
+}
+
 // MaxExact is the largest integer every device holds exactly: JavaScript
 // numbers are IEEE 754 doubles, exact up to 2^53 − 1. Counters, stamps and
 // generations above it are refused, so what crosses the wire compares the

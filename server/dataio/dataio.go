@@ -15,6 +15,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 	"unicode/utf8"
 
 	"cornerbook/server/records"
@@ -123,6 +124,19 @@ func ImportJSONL(db *storage.DB, r io.Reader, prepare func(*devsync.Record) erro
 			continue
 		}
 		seen[rec.ID] = line
+		// As a push: a stamp beyond the hub's allowed drift would win over
+		// every later edit; a counter no phone holds exactly is refused.
+		if rec.Stamp.L > time.Now().UnixMilli()+devsync.MaxDriftMs {
+			bad = append(bad, LineError{Line: line, Field: "stamp.l", Msg: fmt.Sprintf("is %s, more than %d s ahead of this computer's clock; an entry cannot be stamped in the future",
+				time.UnixMilli(rec.Stamp.L).UTC().Format(time.RFC3339), devsync.MaxDriftMs/1000)})
+			continue
+		}
+		if err := (&devsync.Mutation{N: 1, Record: rec}).CheckCounters(""); err != nil {
+			e := lineErr(line, err)
+			e.Field = strings.TrimPrefix(e.Field, ".record.")
+			bad = append(bad, e)
+			continue
+		}
 		if err := storage.CheckShape(&rec); err != nil {
 			bad = append(bad, lineErr(line, err))
 			continue
@@ -158,7 +172,7 @@ func ImportJSONL(db *storage.DB, r io.Reader, prepare func(*devsync.Record) erro
 		req := devsync.PushRequest{Device: ImportDevice}
 		for _, rec := range recs[start:end] {
 			n++
-			req.Mutations = append(req.Mutations, devsync.Mutation{N: n, Op: opOf(rec), Record: rec})
+			req.Mutations = append(req.Mutations, devsync.Mutation{N: n, Op: devsync.OpOf(rec), Record: rec})
 		}
 		pr, err := db.Push(req, nil)
 		if err != nil {
@@ -177,16 +191,6 @@ func ImportJSONL(db *storage.DB, r io.Reader, prepare func(*devsync.Record) erro
 		}
 	}
 	return res, nil
-}
-
-func opOf(r devsync.Record) string {
-	switch {
-	case r.Deleted:
-		return devsync.OpDelete
-	case r.Gen > 0:
-		return devsync.OpRestore
-	}
-	return devsync.OpUpsert
 }
 
 func decodeLine(raw []byte) (devsync.Record, error) {

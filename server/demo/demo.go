@@ -72,7 +72,16 @@ func (f *fighter) planScale(d int) float64 {
 // today (the camp's local day), in the order they would have been logged.
 func Build(today time.Time) []devsync.Record {
 	g := &gen{rng: rand.New(rand.NewPCG(Seed, 0x5eed)), today: dayStart(today), loc: today.Location()}
-	return g.build()
+	out := g.build()
+	// Nothing is stamped ahead of the clock: an entry of later today is
+	// stamped now, so a coach's edit of it (stamped after now) wins.
+	now := today.UnixMilli()
+	for i := range out {
+		if out[i].Stamp.L > now {
+			out[i].Stamp = devsync.HLC{L: now}
+		}
+	}
+	return out
 }
 
 // SeedIfEmpty pushes the demo camp into an empty store through the normal

@@ -184,19 +184,8 @@ func Records(seed uint64, athletes, days int) []devsync.Record {
 func Mutations(n uint64, recs ...devsync.Record) []devsync.Mutation {
 	out := make([]devsync.Mutation, len(recs))
 	for i, r := range recs {
-		out[i] = devsync.Mutation{N: n + uint64(i), Op: OpOf(r), Record: r}
+		out[i] = devsync.Mutation{N: n + uint64(i), Op: devsync.OpOf(r), Record: r}
 	}
 	return out
 }
 
-// OpOf is the operation a record version implies: delete for a tombstone,
-// restore for a live record above generation 0, otherwise upsert.
-func OpOf(r devsync.Record) string {
-	switch {
-	case r.Deleted:
-		return devsync.OpDelete
-	case r.Gen > 0:
-		return devsync.OpRestore
-	}
-	return devsync.OpUpsert
-}
