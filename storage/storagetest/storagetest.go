@@ -188,4 +188,3 @@ func Mutations(n uint64, recs ...devsync.Record) []devsync.Mutation {
 	}
 	return out
 }
-
