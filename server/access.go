@@ -28,6 +28,15 @@ type principal struct {
 
 var laptop = principal{Role: string(auth.RoleCoach)}
 
+// seesOnly is the athlete whose records alone the caller sees ("" when
+// it sees the whole camp).
+func (p principal) seesOnly() string {
+	if p.Role == string(auth.RoleAthlete) {
+		return p.Athlete
+	}
+	return ""
+}
+
 func (s *Server) authorize(r *http.Request, need access) (principal, error) {
 	if s.cfg.Auth == nil || auth.FromLaptop(r) {
 		return laptop, nil

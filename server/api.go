@@ -82,6 +82,11 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 	if res.Rejected == nil {
 		res.Rejected = []devsync.Rejection{}
 	}
+	if a := who.seesOnly(); a != "" && res.Applied == 0 {
+		// Nothing of its own stored: an athlete's device learns no count
+		// of what others logged.
+		res.MaxSeq, _ = s.hub.view(a)
+	}
 	writeJSON(w, http.StatusOK, devsync.PushResponse{
 		AckedThrough: res.AckedThrough, Rejected: res.Rejected,
 		Applied: res.Applied, Superseded: res.Superseded, Duplicates: res.Duplicates,
@@ -94,7 +99,7 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 	}
 	if res.Applied > 0 {
 		s.flags.Changed(res.Changed)
-		s.hub.Poke(res.MaxSeq)
+		s.hub.Poke(res.MaxSeq, res.Changed)
 	}
 	return nil
 }
@@ -124,9 +129,18 @@ func (s *Server) handlePull(w http.ResponseWriter, r *http.Request) error {
 	if size < devsync.MinPullBytes || size > devsync.MaxPullBytes {
 		return userError(devsync.CodeBadRequest, "bytes", fmt.Sprintf("must be between %d and %d", devsync.MinPullBytes, devsync.MaxPullBytes))
 	}
-	recs, next, more, maxSeq, err := s.store.PullBytes(since, int(limit), int(size), who.canRead)
+	recs, next, more, maxSeq, lastSeen, err := s.store.PullSeen(since, int(limit), int(size), who.canRead)
 	if err != nil {
 		return err
+	}
+	if who.seesOnly() != "" {
+		// An athlete's cursor and count move only with what it sees, so a
+		// pull never tells when others log. A full page (more) moves on
+		// through the others' records: it tells only that there were many.
+		if !more {
+			next = max(since, lastSeen)
+		}
+		maxSeq = next
 	}
 	epoch, err := s.store.Epoch()
 	if err != nil {
@@ -166,8 +180,9 @@ func (s *Server) handleStatus(w http.ResponseWriter, r *http.Request) error {
 		return err
 	}
 	loc := s.flags.location()
+	seq, _ := s.hub.view(who.seesOnly())
 	writeJSON(w, http.StatusOK, Status{
-		Name: s.cfg.Name, Epoch: epoch, MaxSeq: s.hub.seq.Load(), ServerTime: s.now().UnixMilli(),
+		Name: s.cfg.Name, Epoch: epoch, MaxSeq: seq, ServerTime: s.now().UnixMilli(),
 		Build: pwa.BuildHash(), TimeZone: loc.String(), Today: s.now().In(loc).Format("2006-01-02"),
 		Peers: s.hub.Count(), Role: who.Role, Athlete: who.Athlete,
 	})

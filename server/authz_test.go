@@ -319,3 +319,96 @@ func TestPlan_AthleteSeesOwnOnly(t *testing.T) {
 	st, out = c.do("athleteA", "POST", "/api/plan/check", map[string]any{"athlete": c.athleteB.ID, "bout": map[string]any{}})
 	assert.Equal(t, 403, st, "%s", out)
 }
+
+// TestAthleteSeesOnlyOwnActivity: an athlete's device is not poked, and
+// its pull's cursor and count do not move, when another athlete's entry
+// is logged; its own athlete's entry pokes it and moves them; coach and
+// staff devices hear of every change.
+func TestAthleteSeesOnlyOwnActivity(t *testing.T) {
+	c := newCampHub(t)
+	url := "ws" + strings.TrimPrefix(c.http.URL, "http") + "/api/ws"
+	type msg struct {
+		T     string
+		Seq   uint64
+		Flags uint64
+	}
+	listen := func(as string) (<-chan msg, msg) {
+		d := websocket.Dialer{Subprotocols: []string{auth.WSProtocol, auth.WSTokenPrefix + c.tokens[as]}}
+		conn, _, err := d.Dial(url, http.Header{"Host": {"camp.local"}})
+		require.NoError(t, err)
+		t.Cleanup(func() { conn.Close() })
+		var hello msg
+		require.NoError(t, conn.ReadJSON(&hello))
+		ch := make(chan msg, 64)
+		go func() {
+			defer close(ch)
+			for {
+				var m msg
+				if conn.ReadJSON(&m) != nil {
+					return
+				}
+				ch <- m
+			}
+		}()
+		return ch, hello
+	}
+	quiet := func(ch <-chan msg, who string) {
+		select {
+		case m := <-ch:
+			t.Errorf("%s was poked about another athlete's entry: %+v", who, m)
+		case <-time.After(700 * time.Millisecond):
+		}
+	}
+	heard := func(ch <-chan msg, who string) msg {
+		select {
+		case m := <-ch:
+			return m
+		case <-time.After(5 * time.Second):
+			t.Fatalf("%s was not poked", who)
+		}
+		return msg{}
+	}
+	pull := func(as string, since uint64) devsync.PullResponse {
+		st, out := c.do(as, "GET", fmt.Sprintf("/api/pull?since=%d&limit=500", since), nil)
+		require.Equal(t, 200, st, "%s", out)
+		var p devsync.PullResponse
+		require.NoError(t, json.Unmarshal(out, &p))
+		return p
+	}
+	status := func(as string) uint64 {
+		st, out := c.do(as, "GET", "/api/status", nil)
+		require.Equal(t, 200, st)
+		var s struct{ MaxSeq uint64 }
+		require.NoError(t, json.Unmarshal(out, &s))
+		return s.MaxSeq
+	}
+
+	a, helloA := listen("athleteA")
+	staff, _ := listen("staff")
+	before := pull("athleteA", 0)
+	statusBefore := status("athleteA")
+	assert.Equal(t, helloA.Seq, statusBefore)
+
+	// Athlete B logs a check-in.
+	st, resp := c.pushAs("athleteB", c.recordAs("athleteB", "checkin", c.athleteB, map[string]any{"mass_kg": 61.5}))
+	require.Equal(t, "stored", pushOutcome(st, resp))
+	heard(staff, "staff")
+	quiet(a, "athlete A")
+	after := pull("athleteA", before.Next)
+	assert.Empty(t, after.Records)
+	assert.Equal(t, before.Next, after.Next, "athlete A's cursor moved on B's entry")
+	assert.Equal(t, before.MaxSeq, after.MaxSeq, "athlete A's count moved on B's entry")
+	assert.Equal(t, statusBefore, status("athleteA"))
+	again := pull("athleteA", 0)
+	assert.Equal(t, before.MaxSeq, again.MaxSeq)
+
+	// Athlete A's own check-in: poked, and it arrives.
+	st, resp = c.pushAs("athleteA", c.recordAs("athleteA", "checkin", c.athleteA, map[string]any{"mass_kg": 70.5}))
+	require.Equal(t, "stored", pushOutcome(st, resp))
+	m := heard(a, "athlete A")
+	assert.Greater(t, m.Seq, helloA.Seq)
+	own := pull("athleteA", before.Next)
+	require.Len(t, own.Records, 1)
+	assert.Equal(t, resp.MaxSeq, own.Next)
+	assert.Equal(t, resp.MaxSeq, own.MaxSeq)
+}

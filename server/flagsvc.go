@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"maps"
 	"net/http"
 	"slices"
 	"sort"
@@ -507,8 +508,12 @@ func (f *flagService) Changed(recs []devsync.Record) {
 		f.cache.removeAthletes(touched)
 	}
 	f.mu.Unlock()
-	if all || otherDay {
+	if all {
 		f.s.hub.FlagsChanged()
+		return
+	}
+	if otherDay {
+		f.s.hub.FlagsChanged(slices.Collect(maps.Keys(touched))...)
 		return
 	}
 	// Recompute today's flags of the touched athletes off the request
@@ -544,7 +549,7 @@ func (f *flagService) refresh(athlete, today string, old []flags.Flag, had bool)
 		f.mu.Unlock()
 		now, err := f.forAthlete(athlete, today)
 		if err != nil || !had || !sameFlags(old, now) {
-			f.s.hub.FlagsChanged()
+			f.s.hub.FlagsChanged(athlete)
 		}
 	}()
 }

@@ -3,6 +3,7 @@ package server
 import (
 	"encoding/json"
 	"net/http"
+	"slices"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -10,6 +11,8 @@ import (
 	"github.com/gorilla/websocket"
 
 	"cornerbook/server/auth"
+	"cornerbook/server/records"
+	devsync "cornerbook/sync"
 )
 
 // Websocket timing, after the gorilla chat example's reasoning.
@@ -24,44 +27,97 @@ const (
 // pokeHub owns the set of websocket peers. It carries no data: only "the
 // change sequence is now N". A peer that falls behind loses nothing — it
 // sees the latest sequence on its next wake-up and pulls.
+//
+// An athlete's device is told only of changes it can see: its own
+// athlete's records and the camp-wide settings. Its counters are its own
+// (the sequence of the last change it can see, a count of its athlete's
+// flag changes), so its pokes never reveal when anyone else logs.
 type pokeHub struct {
-	mu     sync.Mutex // guards peers and closed
+	mu     sync.Mutex // guards peers, closed and the athletes' counters
 	peers  map[*peer]struct{}
 	closed bool
 	seq    atomic.Uint64 // latest sequence announced
 	flags  atomic.Uint64 // bumps when the day's flags change
+
+	athSeq   map[string]uint64 // athlete → sequence of its latest change
+	campSeq  uint64            // sequence of the latest camp-wide settings change
+	athFlags map[string]uint64 // athlete → changes of its flags
+	flagsAll uint64            // changes of every athlete's flags at once
 }
 
 type peer struct {
-	conn *websocket.Conn
-	wake chan struct{} // 1 slot: coalesces pokes
-	done chan struct{}
-	once sync.Once
+	conn    *websocket.Conn
+	athlete string        // "" for coach and staff devices, who see everything
+	wake    chan struct{} // 1 slot: coalesces pokes
+	done    chan struct{}
+	once    sync.Once
 }
 
-func newPokeHub() *pokeHub { return &pokeHub{peers: map[*peer]struct{}{}} }
+func newPokeHub() *pokeHub {
+	return &pokeHub{peers: map[*peer]struct{}{}, athSeq: map[string]uint64{}, athFlags: map[string]uint64{}}
+}
 
-// Poke announces a new maximum sequence to every peer.
-func (h *pokeHub) Poke(seq uint64) {
+// view is what a peer is told: the camp's counters, or an athlete's own.
+func (h *pokeHub) view(athlete string) (seq, flags uint64) {
+	if athlete == "" {
+		return h.seq.Load(), h.flags.Load()
+	}
+	h.mu.Lock()
+	defer h.mu.Unlock()
+	return max(h.athSeq[athlete], h.campSeq), h.athFlags[athlete] + h.flagsAll
+}
+
+// Poke announces a new maximum sequence, reached by a push that changed
+// recs: coach and staff devices are woken, and the devices of the
+// athletes those records belong to (all athletes for camp settings).
+func (h *pokeHub) Poke(seq uint64, recs []devsync.Record) {
 	for {
 		old := h.seq.Load()
 		if seq <= old || h.seq.CompareAndSwap(old, seq) {
 			break
 		}
 	}
-	h.wakeAll()
+	h.mu.Lock()
+	touched := map[string]bool{}
+	all := false
+	for _, r := range recs {
+		switch {
+		case r.Athlete != "":
+			h.athSeq[r.Athlete] = seq
+			touched[r.Athlete] = true
+		case r.Kind == records.KindSettings:
+			h.campSeq = seq
+			all = true
+		}
+	}
+	h.mu.Unlock()
+	h.wake(func(a string) bool { return all || touched[a] })
 }
 
-// FlagsChanged tells dashboards the flags were recomputed.
-func (h *pokeHub) FlagsChanged() {
+// FlagsChanged tells dashboards the flags were recomputed: of the named
+// athletes, or of every athlete when none is named.
+func (h *pokeHub) FlagsChanged(athletes ...string) {
 	h.flags.Add(1)
-	h.wakeAll()
+	h.mu.Lock()
+	if len(athletes) == 0 {
+		h.flagsAll++
+	}
+	for _, a := range athletes {
+		h.athFlags[a]++
+	}
+	h.mu.Unlock()
+	h.wake(func(a string) bool { return len(athletes) == 0 || slices.Contains(athletes, a) })
 }
 
-func (h *pokeHub) wakeAll() {
+// wake wakes coach and staff peers, and athletes' peers for which
+// concerns says so.
+func (h *pokeHub) wake(concerns func(athlete string) bool) {
 	h.mu.Lock()
 	defer h.mu.Unlock()
 	for p := range h.peers {
+		if p.athlete != "" && !concerns(p.athlete) {
+			continue
+		}
 		select {
 		case p.wake <- struct{}{}:
 		default: // already woken; the writer will send the latest values
@@ -130,7 +186,8 @@ type wsMessage struct {
 var upgrader = websocket.Upgrader{ReadBufferSize: 1024, WriteBufferSize: 1024, Subprotocols: []string{auth.WSProtocol}}
 
 func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) error {
-	if _, err := s.authorize(r, accessRead); err != nil {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
 		return err
 	}
 	epoch, err := s.store.Epoch()
@@ -141,12 +198,13 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) error {
 	if err != nil {
 		return nil // the upgrader already answered
 	}
-	p := &peer{conn: conn, wake: make(chan struct{}, 1), done: make(chan struct{})}
+	p := &peer{conn: conn, athlete: who.seesOnly(), wake: make(chan struct{}, 1), done: make(chan struct{})}
 	if !s.hub.add(p) {
 		conn.Close()
 		return nil
 	}
-	hello := wsMessage{T: "hello", Epoch: epoch, Seq: s.hub.seq.Load(), Flags: s.hub.flags.Load(), ServerTime: s.now().UnixMilli()}
+	seq, fl := s.hub.view(p.athlete)
+	hello := wsMessage{T: "hello", Epoch: epoch, Seq: seq, Flags: fl, ServerTime: s.now().UnixMilli()}
 	go s.wsWriter(p, hello)
 	go s.wsReader(p)
 	return nil
@@ -191,7 +249,7 @@ func (s *Server) wsWriter(p *peer, hello wsMessage) {
 			p.conn.WriteMessage(websocket.CloseMessage, websocket.FormatCloseMessage(websocket.CloseGoingAway, "hub closing"))
 			return
 		case <-p.wake:
-			seq, fl := s.hub.seq.Load(), s.hub.flags.Load()
+			seq, fl := s.hub.view(p.athlete)
 			if seq == sentSeq && fl == sentFlags {
 				continue
 			}
@@ -200,7 +258,8 @@ func (s *Server) wsWriter(p *peer, hello wsMessage) {
 			}
 			sentSeq, sentFlags = seq, fl
 		case <-beat.C:
-			if !write(wsMessage{T: "poke", Seq: s.hub.seq.Load(), Flags: s.hub.flags.Load()}) {
+			seq, fl := s.hub.view(p.athlete)
+			if !write(wsMessage{T: "poke", Seq: seq, Flags: fl}) {
 				return
 			}
 		case <-ping.C:

@@ -79,6 +79,13 @@ func (db *DB) Pull(since uint64, limit int, visible func(*devsync.Record) bool) 
 // reach maxBytes of stored JSON (≤ 0: no byte bound). A page holds at
 // least one record whatever its size.
 func (db *DB) PullBytes(since uint64, limit, maxBytes int, visible func(*devsync.Record) bool) (recs []devsync.Record, next uint64, more bool, maxSeq uint64, err error) {
+	recs, next, more, maxSeq, _, err = db.PullSeen(since, limit, maxBytes, visible)
+	return recs, next, more, maxSeq, err
+}
+
+// PullSeen is PullBytes that also returns lastSeen, the change sequence
+// of the last record of the page that visible passed (0 if none).
+func (db *DB) PullSeen(since uint64, limit, maxBytes int, visible func(*devsync.Record) bool) (recs []devsync.Record, next uint64, more bool, maxSeq, lastSeen uint64, err error) {
 	if limit <= 0 {
 		limit = devsync.DefaultPullLimit
 	}
@@ -111,14 +118,15 @@ func (db *DB) PullBytes(since uint64, limit, maxBytes int, visible func(*devsync
 			if visible == nil || visible(&r) {
 				recs = append(recs, r)
 				size += len(v)
+				lastSeen = next
 			}
 		}
 		return nil
 	})
 	if err != nil {
-		return nil, since, false, 0, err
+		return nil, since, false, 0, 0, err
 	}
-	return recs, next, more, maxSeq, nil
+	return recs, next, more, maxSeq, lastSeen, nil
 }
 
 // Range calls fn for each live record of one athlete and kind whose day
