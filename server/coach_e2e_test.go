@@ -458,9 +458,9 @@ func TestCoachPlanSetsUpANewBout(t *testing.T) {
 
 	// A start mass that needs more than 1.5 %/week is explained before the camp starts.
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "84.0"))
-	require.NoError(t, pwatest.Poll(ctx, `[...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('mass_loss_fast'))`, 10*time.Second))
+	require.NoError(t, pwatest.Poll(ctx, `[...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('fast-loss rule'))`, 10*time.Second))
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "74.0"))
-	require.NoError(t, pwatest.Poll(ctx, `![...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('mass_loss_fast'))`, 10*time.Second))
+	require.NoError(t, pwatest.Poll(ctx, `![...document.querySelectorAll('[data-testid="plan-issue"]')].some((e) => e.textContent.includes('fast-loss rule'))`, 10*time.Second))
 
 	// Edit the planned path: the default's points become editable knots.
 	require.NoError(t, pwatest.Click(ctx, "plan-path-edit"))

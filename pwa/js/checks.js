@@ -129,9 +129,67 @@ const cross = {
       if (prev && k.day <= prev) return { field, label: 'Planned mass', reason: `is ${k.day}; path days must be in order, each after the one before (${prev})` };
       prev = k.day;
     }
+    for (const [i, w] of (b.weeks || []).entries()) {
+      const bad = checkWeek(`body.weeks[${i}]`, w || {}, Number.isFinite(start) ? start + 7 * i * DAY : NaN);
+      if (bad) return bad;
+    }
     return null;
   },
 };
+
+const RFC3339 = /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(\.\d+)?(Z|[+-]\d\d:\d\d)$/;
+const zoneOK = (z) => {
+  if (z === 'Local' || z.trim() !== z) return false;
+  try { new Intl.DateTimeFormat('en-CA', { timeZone: z }); return true; } catch (_) { return false; }
+};
+const dayIn = (ms, zone) => new Intl.DateTimeFormat('en-CA', { timeZone: zone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(ms));
+
+// checkWeek is the hub's check of one plan week's content (emphases,
+// planned rounds, travel); start is the week's first day (ms, UTC).
+function checkWeek(f, w, start) {
+  for (const [name, group] of [['strength', 'Strength emphasis'], ['conditioning', 'Conditioning emphasis']]) {
+    const e = w[name];
+    if (!e || !Array.isArray(e.ids)) continue;
+    const field = `${f}.${name}.ids`;
+    const allowed = VOCAB.emphases.filter((x) => x.groups.includes(name)).map((x) => x.id);
+    if (e.ids.length > VOCAB.limits.max_emphasis_ids) return { field, label: group, reason: `has ${e.ids.length} emphases; at most ${VOCAB.limits.max_emphasis_ids} a week` };
+    const seen = new Set();
+    for (const [j, id] of e.ids.entries()) {
+      if (id === '') return { field: `${field}[${j}]`, label: group, reason: `is required: one of ${allowed.join(', ')}` };
+      if (seen.has(id)) return { field: `${field}[${j}]`, label: group, reason: `${JSON.stringify(id)} is listed twice` };
+      seen.add(id);
+    }
+    if (seen.has('none') && e.ids.length > 1) return { field, label: group, reason: 'holds "none" with other emphases; use either' };
+  }
+  if (Number.isFinite(w.hard_rounds) && Number.isFinite(w.spar_rounds) && w.hard_rounds > w.spar_rounds) {
+    return { field: `${f}.hard_rounds`, label: 'Planned hard rounds', reason: `is ${w.hard_rounds}, more than the ${w.spar_rounds} sparring rounds planned that week` };
+  }
+  const t = w.travel;
+  if (!t) return null;
+  const tf = `${f}.travel`;
+  const label = 'Travel';
+  const zone = (k, what) => {
+    if (!t[k]) return { field: `${tf}.${k}`, label, reason: `is required: ${what}` };
+    if (!zoneOK(t[k])) return { field: `${tf}.${k}`, label, reason: `must be an IANA time zone such as Europe/Madrid or Asia/Bangkok; got ${JSON.stringify(t[k])}` };
+    return null;
+  };
+  const z = zone('from_zone', 'the time zone of the place left, such as Europe/Madrid') || zone('to_zone', 'the time zone of the destination, such as Asia/Bangkok');
+  if (z) return z;
+  const dep = RFC3339.test(t.depart_at || '') ? Date.parse(t.depart_at) : NaN;
+  if (!Number.isFinite(dep)) return { field: `${tf}.depart_at`, label, reason: `must be the departure date and time in RFC 3339 with offset (e.g. 2026-03-02T09:30:00+00:00); got ${JSON.stringify(t.depart_at || '')}` };
+  const arr = RFC3339.test(t.arrive_at || '') ? Date.parse(t.arrive_at) : NaN;
+  if (!Number.isFinite(arr)) return { field: `${tf}.arrive_at`, label, reason: `must be the arrival date and time in RFC 3339 with offset (e.g. 2026-03-02T21:15:00+07:00); got ${JSON.stringify(t.arrive_at || '')}` };
+  if (!(arr > dep)) return { field: `${tf}.arrive_at`, label, reason: `is ${t.arrive_at}, not after the departure ${t.depart_at}` };
+  const h = (arr - dep) / 3600000;
+  if (h > VOCAB.limits.max_travel_hours) return { field: `${tf}.arrive_at`, label, reason: `is ${h.toFixed(0)} h after the departure; a journey is at most ${VOCAB.limits.max_travel_hours} h — check the dates` };
+  if (Number.isFinite(start)) {
+    const d = dayIn(dep, t.from_zone);
+    const first = new Date(start).toISOString().slice(0, 10);
+    const last = new Date(start + 6 * DAY).toISOString().slice(0, 10);
+    if (d < first || d > last) return { field: `${tf}.depart_at`, label, reason: `is on ${d} (${t.from_zone}), outside this week (${first} to ${last}); plan the journey in the week it leaves` };
+  }
+  return null;
+}
 
 // checkBody answers as the hub would for a body of a kind: null when the
 // hub would keep it, else {field, reason, label}. Fields are checked in

@@ -4,6 +4,7 @@ import {
   Choice, SaveLine, savedState, useAsync, useVersion, getPicked, setPicked, fmt,
 } from './ui.js';
 import { save, getRecord, byKind } from './db.js';
+import { VOCAB } from './vocab.js';
 import { localDay, toKg, fromKg, roundTo, parseNum } from './record.js';
 
 const DONE = 'Saved on this phone';
@@ -169,7 +170,9 @@ export function Checkin() {
 // CR-10 anchors as modified by Foster et al. 2001.
 export const CR10 = { 0: 'Rest', 1: 'Very, very easy', 2: 'Easy', 3: 'Moderate', 4: 'Somewhat hard', 5: 'Hard', 7: 'Very hard', 10: 'Maximal' };
 const SESSION_TYPES = [['boxing', 'Boxing'], ['spar', 'Sparring'], ['conditioning', 'Conditioning'], ['strength', 'Strength'], ['other', 'Other']];
-const FOCUS = [['', 'No particular focus'], ['max_strength', 'Maximal strength'], ['strength_speed', 'Strength-speed'], ['speed', 'Speed'], ['plyometric', 'Plyometric'], ['aerobic', 'Aerobic'], ['anaerobic', 'Anaerobic'], ['technical', 'Technical']];
+// A session's focus: the training emphases a plan week names (one list,
+// from the hub's vocabulary), and technical work.
+const FOCUS = [['', 'No particular focus'], ...VOCAB.emphases.filter((e) => e.id !== 'none').map((e) => [e.id, e.words]), ['technical', 'Technical']];
 
 export function Session() {
   const list = useAthletes();

@@ -142,7 +142,7 @@ func validateTravel(f string, t *Travel, start time.Time) error {
 		return fe(f+".arrive_at", "must be the arrival date and time in RFC 3339 with offset (e.g. 2026-03-02T21:15:00+07:00); got %q", t.ArriveAt)
 	}
 	if !arr.After(dep) {
-		return fe(f+".arrive_at", "is %s, not after the departure %s", arr.Format(time.RFC3339), dep.Format(time.RFC3339))
+		return fe(f+".arrive_at", "is %s, not after the departure %s", t.ArriveAt, t.DepartAt)
 	}
 	if h := arr.Sub(dep).Hours(); h > MaxTravelHours {
 		return fe(f+".arrive_at", "is %.0f h after the departure; a journey is at most %d h — check the dates", h, MaxTravelHours)

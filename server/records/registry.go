@@ -154,6 +154,13 @@ var Registry = []Kind{
 			rng("body.path[].mass_kg", "Planned mass", "kg", MinMassKg, MaxMassKg),
 			enum("body.weeks[].level", "Week's load", Levels),
 			wholeRng("body.weeks[].spar_cap_rounds", "Sparring cap", "sparring rounds", 0, MaxSparCap),
+			enum("body.weeks[].strength.ids[]", "Strength emphasis", EmphasisIDs(GroupStrength)),
+			textField("body.weeks[].strength.label", "Strength, in your words", MaxEmphasisLabel),
+			enum("body.weeks[].conditioning.ids[]", "Conditioning emphasis", EmphasisIDs(GroupConditioning)),
+			textField("body.weeks[].conditioning.label", "Conditioning, in your words", MaxEmphasisLabel),
+			wholeRng("body.weeks[].spar_rounds", "Planned sparring", "sparring rounds", 0, MaxSparCap),
+			wholeRng("body.weeks[].hard_rounds", "Planned hard rounds", "hard sparring rounds", 0, MaxSparCap),
+			textField("body.weeks[].note", "Week's note", MaxWeekNoteLen),
 		},
 		Example: `{"camp_start":"2026-01-05","weigh_in":"2026-02-27T10:00:00Z","weigh_in_type":"day_before","bout_day":"2026-02-28",` +
 			`"weight_class":"custom","limit_kg":66,"start_mass_kg":70,"path":[{"day":"2026-01-05","mass_kg":70}],` +
@@ -165,6 +172,14 @@ var Registry = []Kind{
 			{"same-day weigh-in on another day", `{"weigh_in_type":"same_day"}`, "body.weigh_in_type"},
 			{"day-before weigh-in on the bout day", `{"weigh_in":"2026-02-28T08:00:00Z"}`, "body.weigh_in_type"},
 			{"path day outside the camp", `{"path":[{"day":"2026-03-05","mass_kg":70}]}`, "body.path[0].day"},
+			{"more hard rounds than rounds", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","spar_rounds":10,"hard_rounds":12}]}`, "body.weeks[1].hard_rounds"},
+			{"an emphasis listed twice", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","conditioning":{"ids":["aerobic","aerobic"]}}]}`, "body.weeks[1].conditioning.ids[1]"},
+			{"none with another emphasis", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","strength":{"ids":["none","speed"]}}]}`, "body.weeks[1].strength.ids"},
+			{"travel without its origin", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-14T09:00:00Z","arrive_at":"2026-01-14T21:00:00+07:00","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.from_zone"},
+			{"travel to an unknown zone", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-14T09:00:00Z","arrive_at":"2026-01-14T21:00:00+07:00","from_zone":"Europe/London","to_zone":"Asia/Atlantis"}}]}`, "body.weeks[1].travel.to_zone"},
+			{"travel landing before it leaves", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-14T09:00:00Z","arrive_at":"2026-01-14T08:00:00Z","from_zone":"Europe/London","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.arrive_at"},
+			{"travel longer than three days", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-14T09:00:00Z","arrive_at":"2026-01-18T21:00:00+07:00","from_zone":"Europe/London","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.arrive_at"},
+			{"travel leaving outside its week", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-19T09:00:00Z","arrive_at":"2026-01-19T21:00:00+07:00","from_zone":"Europe/London","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.depart_at"},
 		},
 		validate: validateBout,
 	},
@@ -402,8 +417,11 @@ type Vocabulary struct {
 	Protocols  []Protocol           `json:"protocols"`
 	Modalities []Option             `json:"modalities"`
 	Levels     []string             `json:"levels"`
-	CR10       []Anchor             `json:"cr10"`
-	Cases      map[string][]Case    `json:"cases"`
+	// Emphases are the training emphases a plan week and a session's
+	// focus name, in the product's words.
+	Emphases []EmphasisDef     `json:"emphases"`
+	CR10     []Anchor          `json:"cr10"`
+	Cases    map[string][]Case `json:"cases"`
 	// Limits are the numbers the checks of one field against another use.
 	Limits map[string]float64 `json:"limits"`
 }
@@ -424,8 +442,9 @@ type VocabKind struct {
 func Vocab() Vocabulary {
 	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, MinYear: MinYear,
 		MaxNameLen: MaxNameLen, MaxNoteLen: MaxNoteLen, Protocols: Protocols, Modalities: ModalityOptions,
-		Levels: Levels, CR10: CR10, Cases: map[string][]Case{},
-		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin}}
+		Levels: Levels, Emphases: Emphases, CR10: CR10, Cases: map[string][]Case{},
+		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
+			"max_emphasis_ids": MaxEmphasisIDs, "max_travel_hours": MaxTravelHours}}
 	for _, k := range Registry {
 		w := k.Writers
 		if w == nil {

@@ -4,14 +4,17 @@
 // the device's store like every other entry.
 import { html, useState, useEffect, useRef, useAthletes, useVersion, useAsync, Link, SaveLine, savedState, Choice } from '../ui.js';
 import { save, byKind } from '../db.js';
+import { VOCAB } from '../vocab.js';
+import { fieldWords } from '../checks.js';
 import { toKg, roundTo, parseNum } from '../record.js';
 import { hubGet, hubPost, getTables } from './api.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
 
 const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium–heavy', heavy: 'Heavy', taper: 'Taper' };
-const EMPH_GROUP = { strength: ['max_strength', 'strength_speed', 'speed', 'plyometric', 'none'], conditioning: ['aerobic', 'anaerobic', 'fight_specific', 'none'] };
-// emphWords names an emphasis from the hub's list of emphases.
-const emphWords = (tables, id) => ((tables && tables.emphases) || []).find((e) => e.id === id)?.words || id;
+// The emphases of each group and their words come from the hub's
+// vocabulary (one list, shared with a session's focus).
+const EMPH_GROUP = { strength: VOCAB.emphases.filter((e) => e.groups.includes('strength')).map((e) => e.id), conditioning: VOCAB.emphases.filter((e) => e.groups.includes('conditioning')).map((e) => e.id) };
+const emphWords = (_tables, id) => VOCAB.emphases.find((e) => e.id === id)?.words || (id === 'technical' ? 'Technical' : id);
 const emphText = (tables, e) => (!e ? '' : e.label || (e.ids || []).map((id) => emphWords(tables, id)).join(' + '));
 const MON = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 const dayMonth = (d) => `${+d.slice(8, 10)} ${MON[+d.slice(5, 7) - 1]}`;
@@ -330,11 +333,25 @@ function Checks({ check, errs }) {
   if (errs.length) return html`<ul class="issues" data-testid="plan-missing">${errs.map((e) => html`<li>${e}</li>`)}</ul>`;
   if (!check) return html`<p class="muted small">Checking with the hub…</p>`;
   if (check.error) return html`<p class="error" data-testid="plan-check-error">The plan cannot be checked: ${check.error}. It can still be saved; the hub checks it when it arrives.</p>`;
-  if (check.invalid) return html`<p class="error" data-testid="plan-invalid">The hub would refuse this bout — ${check.field ? html`<code>${check.field.replace('body.', '')}</code> ` : ''}${check.invalid}</p>`;
+  if (check.invalid) return html`<p class="error" data-testid="plan-invalid">The hub would refuse this bout — ${check.field ? html`<strong>${placeWords(check.field)}</strong> ` : ''}${check.invalid}</p>`;
   if (!check.issues.length) return html`<p class="okline" data-testid="plan-ok">Nothing to point out in this plan.</p>`;
   return html`<ul class="issues" data-testid="plan-issues">${check.issues.map((i) => html`<li class=${i.level} data-testid="plan-issue" data-level=${i.level} data-field=${i.field}>
-    <span class="field">${i.level === 'watch' ? 'Look at this' : 'Worth knowing'} · ${i.field.replace('body.', '')}${i.threshold ? ` · ${i.threshold}` : ''}</span>
+    <span class="field">${i.level === 'watch' ? 'Look at this' : 'Worth knowing'} · ${placeWords(i.field)}</span>
     ${i.message}${i.caution ? html`<span class="small muted" style="display:block;margin-top:4px">${i.caution}</span>` : ''}</li>`)}</ul>`;
+}
+
+// placeWords names the part of the plan a check or a refusal is about, in
+// words: "Week 3, travel", "Planned mass path".
+const PART_WORDS = { level: 'load level', strength: 'strength', conditioning: 'conditioning', spar_rounds: 'sparring', spar_cap_rounds: 'sparring', hard_rounds: 'hard rounds', travel: 'travel', note: 'note', week: 'number' };
+export function placeWords(field) {
+  const m = /^body\.weeks\[(\d+)\]\.?([a-z_]*)(.*)$/.exec(field || '');
+  if (m) {
+    const part = PART_WORDS[m[2]] || '';
+    const sub = m[3] && /travel\.(\w+)/.test(field) ? { from_zone: ' (leaving from)', to_zone: ' (going to)', depart_at: ' (leaves)', arrive_at: ' (lands)' }[field.split('.').pop()] || '' : '';
+    return `Week ${Number(m[1]) + 1}${part ? ', ' + part : ''}${sub}`;
+  }
+  if ((field || '').startsWith('body.path')) return 'Planned mass path';
+  return fieldWords('bout', field) || 'The bout';
 }
 
 function classLabel(c) {
