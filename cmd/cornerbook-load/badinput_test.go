@@ -182,7 +182,7 @@ func TestBadInputMatrix(t *testing.T) {
 		{"locked folder: export", []string{"export", "--data", data}, "", 1, []string{"in use by another cornerbook", "stop the running hub"}, false, nil},
 		{"locked folder: import", []string{"import", "--data", data, f("ok.jsonl", good(func(map[string]any) {}))}, "", 1, []string{"in use by another cornerbook"}, false, nil},
 		{"locked folder: flags", []string{"flags", "--data", data, "--day", today.Format(time.DateOnly)}, "", 1, []string{"in use by another cornerbook"}, false, nil},
-		{"locked folder: backup", []string{"backup", "--data", data, filepath.Join(files, "b.db")}, "", 1, []string{"in use by another cornerbook"}, false, nil},
+		{"running hub: backup asks it for a hot copy", []string{"backup", "--data", data, filepath.Join(files, "b.db")}, "", 0, []string{"backup written from the running hub"}, false, nil},
 		{"locked folder: a second hub", []string{"serve", "--data", data, "--addr", "127.0.0.1:0", "--http-addr", "127.0.0.1:0"}, "", 1, []string{"in use by another cornerbook"}, false, nil},
 	} {
 		checkCLI(c)
@@ -337,8 +337,8 @@ func TestBadInputMatrix(t *testing.T) {
 		// pull
 		{"pull: since is text", asLaptop, "GET", "/api/pull?since=abc", "", 400, "BAD_REQUEST", "since", "whole number", "", ""},
 		{"pull: since negative", asLaptop, "GET", "/api/pull?since=-1", "", 400, "BAD_REQUEST", "since", "", "", ""},
-		{"pull: limit 0", asLaptop, "GET", "/api/pull?limit=0", "", 400, "BAD_REQUEST", "limit", "between 1 and 2000", "", ""},
-		{"pull: limit over 2000", asLaptop, "GET", "/api/pull?limit=5000", "", 400, "BAD_REQUEST", "limit", "between 1 and 2000", "", ""},
+		{"pull: limit 0", asLaptop, "GET", "/api/pull?limit=0", "", 400, "BAD_REQUEST", "limit", "between 1 and 10000", "", ""},
+		{"pull: limit over 10000", asLaptop, "GET", "/api/pull?limit=20000", "", 400, "BAD_REQUEST", "limit", "between 1 and 10000", "", ""},
 		{"pull: no token from the Wi-Fi", asStranger, "GET", "/api/pull", "", 401, "UNAUTHORIZED", "", "", "", ""},
 		// joins and join
 		{"joins: unknown role", asLaptop, "POST", "/api/joins", `{"role":"boss"}`, 400, "BAD_REQUEST", "role", "coach, staff or athlete", "", ""},
