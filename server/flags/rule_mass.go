@@ -159,11 +159,12 @@ func (e *engine) cutAtRisk() {
 	default:
 		return
 	}
-	reason := fmt.Sprintf("Losing %.1f %%/week from today's %s trend reaches %s in %.0f days, when the final %.0f days start: %s (%.1f %%) still to lose to the %s limit, above %.1f %% for a %s weigh-in.",
-		rate, e.mass(trend, 1), e.mass(projected, 1), ahead, e.param(rule, "final_days"), e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
+	final := count(int(e.param(rule, "final_days")), "day", "days")
+	reason := fmt.Sprintf("Losing %.1f %%/week from today's %s trend reaches %s in %s, when the final %s start: %s (%.1f %%) still to lose to the %s limit, above %.1f %% for a %s weigh-in.",
+		rate, e.mass(trend, 1), e.mass(projected, 1), count(int(ahead), "day", "days"), final, e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
 	if ahead == 0 {
-		reason = fmt.Sprintf("In the final %.0f days, today's %s trend is %s (%.1f %%) above the %s limit, above %.1f %% for a %s weigh-in.",
-			e.param(rule, "final_days"), e.mass(trend, 1), e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
+		reason = fmt.Sprintf("In the final %s, today's %s trend is %s (%.1f %%) above the %s limit, above %.1f %% for a %s weigh-in.",
+			final, e.mass(trend, 1), e.mass(still, 1), pct, e.mass(p.body.LimitKg, 1), e.param(rule, name), kind)
 	}
 	e.add(Flag{Rule: rule, Level: level, Title: "Weight cut at risk", Value: f64(pct), Threshold: f64(e.param(rule, name)),
 		ThresholdName: rule + "." + name, Unit: "%", Inputs: append(ids, p.id), Caution: CautionMass, Reason: reason,

@@ -91,8 +91,8 @@ func (e *engine) offPlan() {
 	e.add(Flag{Rule: rule, Level: LevelInfo, Title: "Week load " + dir + " the plan", Value: f64(projected), Reference: f64(planned), Threshold: f64(thr),
 		ThresholdName: rule + ".tolerance_pct", Unit: "AU", Inputs: inputs,
 		Details: map[string]float64{"so_far_au": soFar, "days": float64(elapsed), "deviation_pct": dev, "week": float64(k)},
-		Reason: fmt.Sprintf("Week %d: %.0f AU in %d days projects to %.0f AU, %.0f %% %s the planned %s week of %.0f AU (tolerance %.0f %%).",
-			k, soFar, elapsed, projected, math.Abs(dev), dir, levelWords(w.Level), planned, tol)})
+		Reason: fmt.Sprintf("Week %d: %.0f AU in %s projects to %.0f AU, %.0f %% %s the planned %s week of %.0f AU (tolerance %.0f %%).",
+			k, soFar, count(elapsed, "day", "days"), projected, math.Abs(dev), dir, levelWords(w.Level), planned, tol)})
 }
 
 // residualGap: days since the last session of a quality whose training
