@@ -37,22 +37,22 @@ func TestFlightTimesIntervalsAndTheSparringHold(t *testing.T) {
 	// Intervals: a template fills the protocol.
 	require.NoError(t, pwatest.Route(ctx, "/intervals"))
 	require.NoError(t, pwatest.SelectAthlete(ctx, "Beto Lindqvist"))
-	require.NoError(t, pwatest.Click(ctx, "intervals-protocol-w30r15x10x2"))
-	require.NoError(t, pwatest.WaitText(ctx, "intervals-summary", "20 reps, about 18 min in all")) // 20 × 45 s + 1 × 180 s = 1080 s
-	require.NoError(t, pwatest.Type(ctx, "intervals-done_reps", "19"))
+	require.NoError(t, pwatest.Click(ctx, "intervals-protocol-shuttle_30_15"))
+	require.NoError(t, pwatest.WaitText(ctx, "intervals-summary", "16 reps, about 15 min in all")) // 16 × 45 s + 1 × 180 s = 900 s
+	require.NoError(t, pwatest.Type(ctx, "intervals-done_reps", "15"))
 	require.NoError(t, pwatest.Type(ctx, "intervals-hr_peak", "188"))
 	require.NoError(t, pwatest.Type(ctx, "intervals-rpe", "8"))
 	require.NoError(t, pwatest.SaveAndWait(ctx, "intervals-save"))
 	iv := records(t, ctx, "intervals")
 	require.Len(t, iv, 1)
 	b := iv[0].Body
-	assert.Equal(t, "w30r15x10x2", b["protocol"])
+	assert.Equal(t, "shuttle_30_15", b["protocol"])
 	assert.EqualValues(t, 30, b["work_s"])
 	assert.EqualValues(t, 15, b["rest_s"])
-	assert.EqualValues(t, 10, b["reps"])
+	assert.EqualValues(t, 8, b["reps"])
 	assert.EqualValues(t, 2, b["sets"])
 	assert.EqualValues(t, 180, b["set_rest_s"])
-	assert.EqualValues(t, 19, b["done_reps"])
+	assert.EqualValues(t, 15, b["done_reps"])
 	assert.EqualValues(t, 188, b["hr_peak"])
 	assert.EqualValues(t, 8, b["rpe"])
 

@@ -6,6 +6,8 @@ import {
 import { save, remove, getRecord, byDay } from './db.js';
 import { localDay, parseNum, attemptStats, heightFromFlightMs } from './record.js';
 import { uuidv7 } from './uuid.js';
+import { VOCAB } from './vocab.js';
+import { fieldOf } from './checks.js';
 import { openIncidents } from './screens.js';
 import { useStanding, RoundClock, AthleteChips, useSparGate, RingsideIncident, JumpRef } from './ringside/index.js';
 
@@ -21,7 +23,8 @@ function useEdit(kind) {
 // ---------------- jump grid ----------------
 // Valid ranges, the same as the hub's (records.MinHeightCm…): flight
 // 200–1000 ms, typed heights 4.9–122.6 cm (h = g·t²/8 at those times).
-const RANGE = { height: [4.9, 122.6, 'cm'], flight: [200, 1000, 'ms'] };
+const rangeOf = (path) => { const x = fieldOf('jump', path); return [x.min, x.max, x.unit]; };
+const RANGE = { height: rangeOf('body.heights_cm[]'), flight: rangeOf('body.flight_ms[]') };
 
 export function Jumps() {
   const list = useAthletes();
@@ -206,17 +209,13 @@ export function Rounds() {
 }
 
 // ---------------- conditioning intervals ----------------
-export const PROTOCOLS = [
-  { id: 'w180r60x6', label: '3 min work / 1 min rest × 6', work_s: 180, rest_s: 60, reps: 6, sets: 1, set_rest_s: 0 },
-  { id: 'w30r15x10x2', label: '30 s / 15 s × 10 × 2 sets', work_s: 30, rest_s: 15, reps: 10, sets: 2, set_rest_s: 180 },
-  { id: 'w20r10x8', label: '20 s / 10 s × 8', work_s: 20, rest_s: 10, reps: 8, sets: 1, set_rest_s: 0 },
-];
-const MODALITIES = [['bike', 'Bike'], ['run', 'Run'], ['rower', 'Rower'], ['bag', 'Bag'], ['skip', 'Skipping'], ['other', 'Other']];
-const NUM_FIELDS = [
-  ['work_s', 'Work', 's', 1, 3600], ['rest_s', 'Rest', 's', 0, 3600], ['reps', 'Reps per set', '', 1, 200],
-  ['sets', 'Sets', '', 1, 20], ['set_rest_s', 'Rest between sets', 's', 0, 3600],
-];
-const OPT_FIELDS = [['done_reps', 'Reps completed', '', 0, 2000], ['hr_peak', 'Peak heart rate', 'bpm', 40, 230], ['hr_mean', 'Mean heart rate', 'bpm', 40, 230], ['rpe', 'RPE (0–10)', '', 0, 10]];
+// Templates, modalities, labels, units and limits come from the hub's
+// registry (/js/vocab.js); the hub's checks run on save.
+export const PROTOCOLS = VOCAB.protocols;
+const MODALITIES = VOCAB.modalities.map((m) => [m.id, m.label]);
+const labelled = (k, fallback) => { const x = fieldOf('intervals', `body.${k}`); return [k, x ? x.label : fallback, x && x.unit && !x.unit.includes(' ') ? x.unit : '']; };
+const NUM_FIELDS = [labelled('work_s'), labelled('rest_s'), labelled('reps'), labelled('sets'), labelled('set_rest_s')];
+const OPT_FIELDS = [labelled('done_reps', 'Reps completed'), labelled('hr_peak'), labelled('hr_mean'), ['rpe', 'RPE (0–10)', '']];
 
 export function Intervals() {
   const list = useAthletes();
@@ -233,7 +232,7 @@ export function Intervals() {
     setF({ ...g, modality: b.modality || 'other', protocol: b.protocol });
   }, [editing]);
   if (list && !list.length) return html`<${NoAthletes} />`;
-  const usePreset = (p) => setF((o) => ({ ...o, protocol: p.id, work_s: String(p.work_s), rest_s: String(p.rest_s), reps: String(p.reps), sets: String(p.sets), set_rest_s: String(p.set_rest_s) }));
+  const usePreset = (p) => setF((o) => ({ ...o, protocol: p.id, modality: p.modality || o.modality, work_s: String(p.work_s), rest_s: String(p.rest_s), reps: String(p.reps), sets: String(p.sets), set_rest_s: String(p.set_rest_s) }));
   const n = (k) => parseNum(f[k]);
   const total = n('reps') * n('sets');
   const minutes = (n('work_s') + n('rest_s')) * total / 60 + (n('sets') - 1) * (n('set_rest_s') || 0) / 60;
@@ -243,15 +242,15 @@ export function Intervals() {
     if (!athlete) return setState({ error: 'Choose the athlete first.' });
     const body = { modality: f.modality };
     if (f.protocol) body.protocol = f.protocol;
-    for (const [k, l, u, lo, hi] of NUM_FIELDS) {
+    for (const [k, l] of NUM_FIELDS) {
       const x = n(k);
-      if (!(x >= lo && x <= hi)) return setState({ error: `${l} must be between ${lo} and ${hi}${u ? ' ' + u : ''}.` });
+      if (!Number.isFinite(x)) return setState({ error: `${l}: type a number.` });
       body[k] = k === 'reps' || k === 'sets' ? Math.round(x) : x;
     }
-    for (const [k, l, u, lo, hi] of OPT_FIELDS) {
+    for (const [k, l] of OPT_FIELDS) {
       if (!f[k] || !f[k].trim()) continue;
       const x = n(k);
-      if (!(x >= lo && x <= hi)) return setState({ error: `${l} must be between ${lo} and ${hi}${u ? ' ' + u : ''}.` });
+      if (!Number.isFinite(x)) return setState({ error: `${l}: type a number.` });
       body[k] = k === 'rpe' ? x : Math.round(x);
     }
     setState({ saving: true });

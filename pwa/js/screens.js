@@ -3,8 +3,9 @@ import {
   html, useState, useEffect, useRef, Link, navigate, useAthletes, useAthlete, AthleteSelect, NoAthletes,
   Choice, SaveLine, savedState, useAsync, useVersion, getPicked, setPicked, fmt,
 } from './ui.js';
-import { save, getRecord, byKind } from './db.js';
+import { save, getRecord, byKind, byAthleteDay } from './db.js';
 import { VOCAB } from './vocab.js';
+import { checkBody, fieldOf } from './checks.js';
 import { localDay, toKg, fromKg, roundTo, parseNum } from './record.js';
 
 const DONE = 'Saved on this phone';
@@ -70,7 +71,7 @@ export function Checkin() {
   const [athlete, pick] = useAthlete(list, editing && editing.athlete);
   const [f, setF] = useState({});
   const [state, setState] = useState(null);
-  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  const set = (k, val) => { setF((o) => ({ ...o, [k]: val })); setState(null); };
   const units = athlete ? athlete.units : 'kg';
 
   const prefilled = useRef('');
@@ -91,46 +92,68 @@ export function Checkin() {
     });
   }, [editing, list]);
 
+  // Another check-in of the same athlete today: offered for correction
+  // rather than saved beside it without a word.
+  const today = localDay();
+  const v = useVersion();
+  const existing = useAsync(async () => {
+    if (editing || !athlete) return null;
+    const same = (await byAthleteDay(athlete.id, today)).filter((r) => r.kind === 'checkin' && !r.deleted);
+    return same.sort((x, y) => (x.at < y.at ? -1 : 1))[0] || null;
+  }, [athlete && athlete.id, today, v, editing && editing.id], null);
+
   if (list && !list.length) return html`<${NoAthletes} />`;
 
-  const submit = async (e) => {
-    e.preventDefault();
-    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+  // bodyOf reads the form: numbers as typed (kg stored), no limits here —
+  // the hub's checks run on save, from its registry.
+  const bodyOf = () => {
     const body = {};
     const errs = [];
-    const mass = parseNum(f.mass);
-    if (f.mass) {
-      const kg = toKg(mass, units);
-      if (!Number.isFinite(kg) || kg < 25 || kg > 250) errs.push(`Body mass must be between ${units === 'lb' ? '55 and 551 lb' : '25 and 250 kg'}.`);
-      else body.mass_kg = roundTo(kg, 3);
-    }
-    const sh = parseNum(f.sleep_h);
-    if (f.sleep_h) {
-      if (!(sh >= 0 && sh <= 16)) errs.push('Sleep must be between 0 and 16 hours.');
-      else body.sleep_h = sh;
-    }
+    const num = (k, field, label, conv = (x) => x) => {
+      if (!f[k] || !String(f[k]).trim()) return;
+      const x = parseNum(f[k]);
+      if (!Number.isFinite(x)) errs.push(`${label}: type a number.`);
+      else body[field] = conv(x);
+    };
+    num('mass', 'mass_kg', 'Body mass', (x) => roundTo(toKg(x, units), 3));
+    num('sleep_h', 'sleep_h', 'Sleep');
     for (const [k] of WELLNESS) if (f[k]) body[k] = f[k];
-    const rhr = parseNum(f.rhr);
-    if (f.rhr) {
-      if (!(Number.isInteger(rhr) && rhr >= 25 && rhr <= 150)) errs.push('Resting heart rate must be a whole number between 25 and 150 bpm.');
-      else body.rhr_bpm = rhr;
-    }
-    const usg = parseNum(f.usg);
-    if (f.usg) {
-      if (!(usg >= 1.0 && usg <= 1.04)) errs.push('Urine specific gravity must be between 1.000 and 1.040.');
-      else body.usg = usg;
-    }
+    num('rhr', 'rhr_bpm', 'Resting heart rate');
+    num('usg', 'usg', 'Urine specific gravity');
     if (f.note && f.note.trim()) body.note = f.note.trim();
-    if (errs.length) return setState({ error: errs.join(' ') });
-    if (!Object.keys(body).length) return setState({ error: 'Enter at least one value.' });
+    if (errs.length) return { error: errs.join(' ') };
+    const bad = checkBody('checkin', body);
+    if (bad) {
+      const m = bad.field === 'body.mass_kg' && units === 'lb' ? massInLb(bad, parseNum(f.mass)) : bad.reason;
+      return { error: bad.field === 'body' ? 'Enter at least one value.' : `${bad.label} ${m}.` };
+    }
+    return { body };
+  };
+
+  const store = async (id, body, day) => {
     setState({ saving: true });
     try {
-      await save({ id: editing && editing.id, kind: 'checkin', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState(savedState(DONE));
+      await save({ id, kind: 'checkin', athlete: athlete.id, day, body });
+      setState(savedState(id && !editing ? `${DONE}: today's check-in corrected` : DONE));
       if (!editing) setF({});
     } catch (err) {
       setState({ error: `Not saved: ${err.message}` });
     }
+  };
+
+  const submit = async (e, second) => {
+    if (e) e.preventDefault();
+    if (!athlete) return setState({ error: 'Choose the athlete first.' });
+    const { body, error } = bodyOf();
+    if (error) return setState({ error });
+    if (existing && !second) return setState({ twice: true });
+    return store(editing && editing.id, body, editing ? editing.day : today);
+  };
+  // correctExisting keeps today's check-in and puts what was typed over it.
+  const correctExisting = () => {
+    const { body, error } = bodyOf();
+    if (error) return setState({ error });
+    return store(existing.id, { ...(existing.body || {}), ...body }, existing.day);
   };
 
   return html`<form onSubmit=${submit} data-testid="screen-checkin" novalidate>
@@ -161,9 +184,19 @@ export function Checkin() {
     <p class="caution" data-testid="usg-caution">Urine strips misclassify hydration often. The reading is a prompt to talk to the medical team, who decide — not a diagnosis.</p>
     <label for="checkin-note">Note (optional)</label>
     <textarea id="checkin-note" data-testid="checkin-note" value=${f.note || ''} onInput=${(e) => set('note', e.target.value)}></textarea>
-    <button class="primary" type="submit" data-testid="checkin-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save check-in'}</button>
-    <${SaveLine} state=${state} />
+    ${state && state.twice && existing ? html`<div class="card" role="alert" data-testid="checkin-existing">
+      <p><strong>${athlete.name}</strong> already has a check-in today (${existing.at.slice(11, 16)}${existing.body && existing.body.mass_kg != null ? `, ${fmt(fromKg(existing.body.mass_kg, units), 1)} ${units}` : ''}). The first check-in of the day is the one the flags read.</p>
+      <button class="primary" type="button" data-testid="checkin-correct-existing" onClick=${correctExisting}>Correct today's check-in</button>
+      <button class="secondary" type="button" data-testid="checkin-save-second" onClick=${() => submit(null, true)}>Save a second check-in</button>
+    </div>` : html`<button class="primary" type="submit" data-testid="checkin-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save check-in'}</button>`}
+    <${SaveLine} state=${state && !state.twice ? state : null} />
   </form>`;
+}
+
+// massInLb words a refused mass for a coach who types pounds.
+function massInLb(bad, typed) {
+  const f = fieldOf('checkin', 'body.mass_kg');
+  return `must be between ${fmt(fromKg(f.min, 'lb'), 1)} and ${fmt(fromKg(f.max, 'lb'), 1)} lb; got ${typed}`;
 }
 
 // ---------------- session RPE ----------------
@@ -194,7 +227,7 @@ export function Session() {
     e.preventDefault();
     if (!athlete) return setState({ error: 'Choose the athlete first.' });
     if (f.rpe === undefined) return setState({ error: 'Pick how hard the session was (0–10).' });
-    if (!(minutes >= 1 && minutes <= 300)) return setState({ error: 'Duration must be between 1 and 300 min.' });
+    if (!Number.isFinite(minutes)) return setState({ error: 'Duration: type the session\'s length in minutes.' });
     const body = { type: f.type, minutes, rpe: f.rpe };
     if (f.focus) body.focus = f.focus;
     if (f.note && f.note.trim()) body.note = f.note.trim();
