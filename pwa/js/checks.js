@@ -41,6 +41,19 @@ function values(body, path) {
   return cur;
 }
 
+// textTrouble says, in the hub's words (records.CheckText), why a text
+// would break a screen: a bidirectional override or isolate, or nothing
+// visible at all. Control characters cannot be typed into the fields.
+const BIDI = /[\u202A-\u202E\u2066-\u2069]/u;
+const BLANK = /[\u115F\u1160\u3164\uFFA0\u2800]/gu;
+const VISIBLE = /[\p{L}\p{Mc}\p{N}\p{P}\p{S}]/u;
+export function textTrouble(v) {
+  const m = v.match(BIDI);
+  if (m) return `contains a character that reverses or reorders the text on screen (U+${m[0].codePointAt(0).toString(16).toUpperCase().padStart(4, '0')}); type the text without it`;
+  if (v.trim() !== '' && !VISIBLE.test(v.replace(BLANK, ''))) return VOCAB.invisible_words;
+  return '';
+}
+
 function checkField(f, body, year) {
   for (const [path, v] of values(body, f.path)) {
     const bad = (reason) => ({ field: path, reason, label: f.label });
@@ -53,8 +66,10 @@ function checkField(f, body, year) {
     if (f.enum && typeof v === 'string' && v !== '' && !f.enum.includes(v)) {
       return bad(`must be one of ${f.enum.join(', ')}; got ${JSON.stringify(v)}`);
     }
-    if (f.max_len && typeof v === 'string' && [...v].length > f.max_len) {
-      return bad(`must be at most ${f.max_len} characters; got ${[...v].length}`);
+    if (f.max_len && typeof v === 'string') {
+      if ([...v].length > f.max_len) return bad(`must be at most ${f.max_len} characters; got ${[...v].length}`);
+      const why = textTrouble(v);
+      if (why) return bad(why);
     }
   }
   return null;

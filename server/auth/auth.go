@@ -51,8 +51,9 @@ const (
 	// SeenEvery: Authenticate writes "last seen" at most this often, so a
 	// busy device does not cost a disk sync per request.
 	SeenEvery = time.Minute
-	// LaptopName names the coach device Login creates.
-	LaptopName = "coach laptop"
+	// LaptopName names the coach device Login creates when the sign-in
+	// gives no name: never a name of the hub laptop itself.
+	LaptopName = "coach device (passphrase)"
 )
 
 // Errors. Each has a message a coach can read; callers match them with

@@ -244,7 +244,7 @@ func TestLogin(t *testing.T) {
 	dev, tok, err := f.s.Login(goodPass)
 	require.NoError(t, err)
 	assert.Equal(t, RoleCoach, dev.Role)
-	assert.Equal(t, "coach laptop", dev.Name)
+	assert.Equal(t, LaptopName, dev.Name)
 	assert.Empty(t, dev.Athlete)
 	got, err := f.s.Authenticate(tok, t0)
 	require.NoError(t, err)

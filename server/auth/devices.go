@@ -11,8 +11,8 @@ import (
 	"strings"
 	"time"
 	"unicode"
-	"unicode/utf8"
 
+	"cornerbook/server/records"
 	devsync "cornerbook/sync"
 
 	"github.com/google/uuid"
@@ -44,16 +44,36 @@ func validDeviceName(name string) (string, error) {
 	if name == "" {
 		return "", devsync.Invalid("name", "give this device a name the coach will recognise, e.g. \"Sam's phone\"")
 	}
-	if !utf8.ValidString(name) {
-		return "", devsync.Invalid("name", "is not valid text")
+	if why := records.CheckText(name, MaxDeviceName, false); why != "" {
+		return "", devsync.Invalid("name", "%s", why)
 	}
-	if n := utf8.RuneCountInString(name); n > MaxDeviceName {
-		return "", devsync.Invalid("name", "must be at most %d characters (it has %d)", MaxDeviceName, n)
-	}
-	if strings.IndexFunc(name, unicode.IsControl) >= 0 {
-		return "", devsync.Invalid("name", "cannot contain control characters")
+	if passesForTheHub(name) {
+		return "", devsync.Invalid("name", "%q would pass for the hub laptop itself; name the device after its owner, e.g. \"Sam's phone\"", name)
 	}
 	return name, nil
+}
+
+// laptopNames are what the hub laptop is called on screens; no paired
+// device may take one of them (compared without case, spacing,
+// punctuation or invisible characters).
+var laptopNames = []string{"coach laptop", "coachs laptop", "the coachs laptop", "laptop", "hub", "hub laptop", "the hub", "cornerbook hub", "cornerbook laptop", "this laptop"}
+
+func passesForTheHub(name string) bool {
+	var b strings.Builder
+	space := false
+	for _, r := range strings.ToLower(name) {
+		switch {
+		case unicode.IsLetter(r) || unicode.IsDigit(r):
+			if space && b.Len() > 0 {
+				b.WriteByte(' ')
+			}
+			space = false
+			b.WriteRune(r)
+		case unicode.IsSpace(r) || r == '-' || r == '_' || r == '.':
+			space = true
+		}
+	}
+	return slices.Contains(laptopNames, b.String())
 }
 
 // addDevice stores a new device and its token hash; the token itself is

@@ -222,7 +222,7 @@ func (s *Store) CheckPassphraseFrom(p, from string) error {
 }
 
 // Login checks the passphrase and, if right, pairs a new coach device
-// named "coach laptop", returning it and its token. Use it for a coach
+// named LaptopName, returning it and its token. Use it for a coach
 // signing in on a browser that is not the hub's own screen.
 func (s *Store) Login(passphrase string) (Device, string, error) {
 	return s.LoginFrom(passphrase, "")

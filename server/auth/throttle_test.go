@@ -1,6 +1,7 @@
 package auth
 
 import (
+	devsync "cornerbook/sync"
 	"fmt"
 	"testing"
 
@@ -40,4 +41,25 @@ func TestPassphraseThrottledPerSource(t *testing.T) {
 	}
 	_, _, err = f.s.LoginFrom(goodPass, SourceLaptop)
 	assert.NoError(t, err)
+}
+
+// TestDeviceNamesCannotPassForTheLaptop: a joining device cannot name
+// itself as the hub laptop (in any case, spacing or apostrophe), nor
+// with a right-to-left override or only invisible characters; the join
+// code is not used up by a refused name.
+func TestDeviceNamesCannotPassForTheLaptop(t *testing.T) {
+	f := open(t)
+	j, err := f.s.NewJoin(RoleAthlete, "ath-0002", "", t0)
+	require.NoError(t, err)
+	for _, name := range []string{"coach laptop", "Coach  Laptop", "COACH’S LAPTOP", "the hub", "Hub-laptop", "laptop.",
+		"Sam\u202E's phone", "\u200b\u200b", "\u3164"} {
+		_, _, err := f.s.Redeem(j.Code, name, "10.42.0.12", t0)
+		var fe *devsync.FieldError
+		require.ErrorAs(t, err, &fe, "%q", name)
+		assert.Equal(t, "name", fe.Field)
+	}
+	dev, _, err := f.s.Redeem(j.Code, "Sam's laptop bag phone", "10.42.0.12", t0)
+	require.NoError(t, err)
+	require.Error(t, f.s.Rename(dev.ID, "coach laptop"))
+	require.NoError(t, f.s.Rename(dev.ID, "Sam's phone"))
 }

@@ -6,7 +6,6 @@ import (
 	"strings"
 	"time"
 	_ "time/tzdata" // time zones resolve on a camp laptop without a zoneinfo database
-	"unicode"
 	"unicode/utf8"
 
 	devsync "cornerbook/sync"
@@ -231,27 +230,18 @@ func oneOf(field, v string, allowed []string) error {
 	return fe(field, "must be one of %s; got %q", strings.Join(allowed, ", "), v)
 }
 
-// text checks length in characters and control characters; multi-line
-// text may hold line breaks and tabs.
+// text checks a text field (CheckText): length in characters, control
+// characters, bidirectional overrides; multi-line text may hold line
+// breaks and tabs.
 func text(field, s string, max int, multiline bool) error {
-	if !utf8.ValidString(s) {
-		return fe(field, "is not valid UTF-8 text")
-	}
-	if n := utf8.RuneCountInString(s); n > max {
-		return fe(field, "must be at most %d characters; got %d", max, n)
-	}
-	for _, r := range s {
-		if unicode.IsControl(r) && !(multiline && (r == '\n' || r == '\r' || r == '\t')) {
-			if multiline {
-				return fe(field, "contains a control character (U+%04X); only text, line breaks and tabs are allowed", r)
-			}
-			return fe(field, "must be a single line of text; it contains a control character (U+%04X)", r)
-		}
+	if why := CheckText(s, max, multiline); why != "" {
+		return fe(field, "%s", why)
 	}
 	return nil
 }
 
-// name checks a required single-line name of 1 to MaxNameLen characters.
+// name checks a required single-line name of 1 to MaxNameLen characters,
+// at least one of them visible.
 func name(field, s, what string) error {
 	if strings.TrimSpace(s) == "" {
 		return fe(field, "is required: %s, 1 to %d characters", what, MaxNameLen)

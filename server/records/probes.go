@@ -67,6 +67,10 @@ func Probes(now time.Time) ([]Probe, error) {
 				long := strings.Repeat("a", f.MaxLen+1)
 				add(f.Path+" too long", with(base, f.Path, long), index0(f.Path), f.LengthRefusal(f.MaxLen+1))
 				add(f.Path+" at its longest", with(base, f.Path, strings.Repeat("a", f.MaxLen)), "", "")
+				rlo := "Ana \u202Eodevni"
+				add(f.Path+" with a right-to-left override", with(base, f.Path, rlo), index0(f.Path), CheckText(rlo, f.MaxLen, true))
+				add(f.Path+" of invisible characters", with(base, f.Path, "\u200b\u3164"), index0(f.Path), InvisibleWords)
+				add(f.Path+" in several scripts", with(base, f.Path, "Jose\u0301 \u0633\u0627\u0631\u0627\u200F \U0001F469\u200D\U0001F52C"), "", "")
 			}
 		}
 		for _, c := range k.Cases {

@@ -411,12 +411,14 @@ type Vocabulary struct {
 	Kinds      map[string]VocabKind `json:"kinds"`
 	Order      []string             `json:"order"`
 	RangeWords string               `json:"range_words"`
-	MinYear    int                  `json:"min_year"`
-	MaxNameLen int                  `json:"max_name_len"`
-	MaxNoteLen int                  `json:"max_note_len"`
-	Protocols  []Protocol           `json:"protocols"`
-	Modalities []Option             `json:"modalities"`
-	Levels     []string             `json:"levels"`
+	// InvisibleWords refuses a text of only invisible characters.
+	InvisibleWords string     `json:"invisible_words"`
+	MinYear        int        `json:"min_year"`
+	MaxNameLen     int        `json:"max_name_len"`
+	MaxNoteLen     int        `json:"max_note_len"`
+	Protocols      []Protocol `json:"protocols"`
+	Modalities     []Option   `json:"modalities"`
+	Levels         []string   `json:"levels"`
 	// Emphases are the training emphases a plan week and a session's
 	// focus name, in the product's words.
 	Emphases []EmphasisDef     `json:"emphases"`
@@ -440,7 +442,7 @@ type VocabKind struct {
 
 // Vocab builds the app's vocabulary from the registry.
 func Vocab() Vocabulary {
-	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, MinYear: MinYear,
+	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, InvisibleWords: InvisibleWords, MinYear: MinYear,
 		MaxNameLen: MaxNameLen, MaxNoteLen: MaxNoteLen, Protocols: Protocols, Modalities: ModalityOptions,
 		Levels: Levels, Emphases: Emphases, CR10: CR10, Cases: map[string][]Case{},
 		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
