@@ -146,6 +146,7 @@ func newEngine(in *Input) (*engine, bool) {
 	e.loads = make([]float64, int(today-e.first)+1)
 	// Pass 2: index each record under its day, decoding only the bodies a
 	// rule will read.
+	var oldRounds []int
 	for i := range in.Records {
 		r := &in.Records[i]
 		if r.Deleted || (athlete != "" && r.Athlete != athlete) {
@@ -174,11 +175,15 @@ func newEngine(in *Input) (*engine, bool) {
 				}
 			}
 		case kindRound:
+			if age >= recentDays {
+				// Older rounds matter only inside a stand-down: decoded
+				// below once the incidents are known.
+				oldRounds = append(oldRounds, i)
+				continue
+			}
 			var b RoundBody
 			if json.Unmarshal(r.Body, &b) == nil {
-				if age < recentDays {
-					e.recent[age].rounds = append(e.recent[age].rounds, round{r.ID, r.At, b})
-				}
+				e.recent[age].rounds = append(e.recent[age].rounds, round{r.ID, r.At, b})
 				if b.Activity == "spar" {
 					e.sparLog = append(e.sparLog, sparRound{r.ID, r.At, d})
 				}
@@ -224,6 +229,16 @@ func newEngine(in *Input) (*engine, bool) {
 	}
 	sort.Slice(e.sessions, func(i, j int) bool { return e.sessions[i].day < e.sessions[j].day })
 	sort.Slice(e.incidents, func(i, j int) bool { return e.incidents[i].day < e.incidents[j].day })
+	if len(e.incidents) > 0 {
+		for _, i := range oldRounds {
+			r := &in.Records[i]
+			d, _ := dayOf(r.Day)
+			var b RoundBody
+			if d >= e.incidents[0].day && json.Unmarshal(r.Body, &b) == nil && b.Activity == "spar" {
+				e.sparLog = append(e.sparLog, sparRound{r.ID, r.At, d})
+			}
+		}
+	}
 	sort.Slice(e.sparLog, func(i, j int) bool {
 		a, b := &e.sparLog[i], &e.sparLog[j]
 		if a.day != b.day {
