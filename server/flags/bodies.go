@@ -90,6 +90,7 @@ type weekBody struct {
 type boutBody struct {
 	CampStart       string     `json:"camp_start"`
 	WeighIn         string     `json:"weigh_in"`
+	WeighInZone     string     `json:"weigh_in_zone"`
 	WeighInType     string     `json:"weigh_in_type"`
 	BoutDay         string     `json:"bout_day"`
 	LimitKg         float64    `json:"limit_kg"`

@@ -40,13 +40,7 @@ func parsePlan(r *devsync.Record) *plan {
 	b := &p.body
 	p.campStart, p.hasCamp = dayOf(b.CampStart)
 	p.boutDay, p.hasBoutDay = dayOf(b.BoutDay)
-	// The weigh-in carries the venue's offset; its wall-clock date is the
-	// venue's day (no zone database is read here).
-	if t, err := time.Parse(time.RFC3339, b.WeighIn); err == nil {
-		p.weighIn, p.hasWeighIn = day.Of(t), true
-	} else if d, ok := dayOf(b.WeighIn); ok {
-		p.weighIn, p.hasWeighIn = d, true
-	}
+	p.weighIn, p.hasWeighIn = WeighInDay(b.WeighIn, b.WeighInZone)
 	p.sameDay = b.WeighInType == "same_day"
 	for _, k := range b.Path {
 		if d, ok := dayOf(k.Day); ok && k.MassKg > 0 {
@@ -60,6 +54,23 @@ func parsePlan(r *devsync.Record) *plan {
 		p.weekByIndex[w.Week] = w
 	}
 	return p
+}
+
+// WeighInDay is the calendar day of a weigh-in at its venue: the date in
+// the venue's zone when one is named (as entry validation reads it),
+// otherwise the wall-clock date of its RFC 3339 time (its own offset); a
+// bare date is taken as written.
+func WeighInDay(weighIn, zone string) (day.Number, bool) {
+	t, err := time.Parse(time.RFC3339, weighIn)
+	if err != nil {
+		return dayOf(weighIn)
+	}
+	if zone != "" {
+		if loc, err := time.LoadLocation(zone); err == nil {
+			t = t.In(loc)
+		}
+	}
+	return day.Of(t), true
 }
 
 // massReady reports whether the plan has what the mass rules need.

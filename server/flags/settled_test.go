@@ -430,3 +430,16 @@ func TestSettledFirstRecordOfAnyKind(t *testing.T) {
 		t.Errorf("load days before the records given: %s", f.Reason)
 	}
 }
+
+// Reading "mass_loss_fast": the weigh-in's calendar day is the venue's.
+// A weigh-in at 2026-04-28T02:00Z in a venue at UTC−5 (America/New_York
+// in April, IANA tz database) is on 27 April there.
+func TestSettledWeighInDayAtTheVenue(t *testing.T) {
+	got, ok := WeighInDay("2026-04-28T02:00:00Z", "America/New_York")
+	if want := day.MustParse("2026-04-27"); !ok || got != want {
+		t.Fatalf("venue day %s, want %s", got, want)
+	}
+	if got, _ := WeighInDay("2026-04-28T02:00:00Z", ""); got != day.MustParse("2026-04-28") {
+		t.Fatalf("without a zone the written date counts: %s", got)
+	}
+}

@@ -133,11 +133,7 @@ func newBuilder(in *flags.Input, from, to day.Number) *builder {
 		if json.Unmarshal(in.Bout.Body, &bt) == nil {
 			b.bout = &bt
 			b.campStart, b.hasCamp = dayOf(bt.CampStart)
-			if t, err := time.Parse(time.RFC3339, bt.WeighIn); err == nil {
-				b.weighIn, b.hasWeighIn = day.Of(t), true // the venue's wall-clock day
-			} else {
-				b.weighIn, b.hasWeighIn = dayOf(bt.WeighIn)
-			}
+			b.weighIn, b.hasWeighIn = flags.WeighInDay(bt.WeighIn, bt.WeighInZone) // the venue's day
 			b.weeks = map[int]records.Week{}
 			for _, w := range bt.Weeks {
 				b.weeks[w.Week] = w
