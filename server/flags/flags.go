@@ -201,6 +201,17 @@ func Compute(in Input) []Flag {
 	if !ok {
 		return nil
 	}
+	if !e.active {
+		// Nothing of the athlete's on record yet on or before the day: no
+		// load, sparring or check-in series exists, so only the plan speaks.
+		e.massAbovePath()
+		e.cutAtRisk()
+		e.offPlan()
+		e.attachDecisions()
+		uniqueTitles(e.out)
+		sortFlags(e.out)
+		return e.out
+	}
 	e.jumpDrop()
 	e.wellnessDrop()
 	e.massAbovePath()

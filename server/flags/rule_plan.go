@@ -54,7 +54,11 @@ func (e *engine) offPlan() {
 					which, cut, ref, taperFrac*ref, minCut, maxCut, lo, hi)})
 		}
 	}
-	// This week's load against its planned level.
+	// This week's load against its planned level, once the athlete has a
+	// record.
+	if !e.active {
+		return
+	}
 	k, start, ok := p.week(e.today)
 	if !ok {
 		return

@@ -443,3 +443,34 @@ func TestSettledWeighInDayAtTheVenue(t *testing.T) {
 		t.Fatalf("without a zone the written date counts: %s", got)
 	}
 }
+
+// Reading "First record": before the athlete's first record (a note does
+// not count) there is no load, sparring or check-in series, so no flag
+// speaks of one; the plan's own checks still do.
+func TestSettledNothingBeforeTheFirstRecord(t *testing.T) {
+	c := &camp{}
+	weeks := []map[string]any{{"week": 1, "level": "heavy"}, {"week": 8, "level": "taper"}}
+	c.standardBout(map[string]any{"weeks": weeks, "reference_load_au": 3000})
+	c.add(kindNote, d(0), map[string]any{"text": "arrives on Thursday"})
+	c.session(d(10), 60, 5, "")
+	in := c.input(d(4))
+	in.Now = nowAfterHour
+	in.Settings = map[string]map[string]float64{RuleOffPlan: {"level_taper": 0.8}} // a 20 % taper cut
+	for _, f := range Compute(in) {
+		switch f.Rule {
+		case RuleMassAbovePath, RuleCutAtRisk:
+			if f.Status != StatusForming {
+				t.Errorf("mass flag without a mass: %s", f.Reason)
+			}
+		case RuleOffPlan:
+			if !strings.Contains(f.Title, "Taper") {
+				t.Errorf("week load judged before the first record: %s", f.Reason)
+			}
+		default:
+			t.Errorf("%s before the first record: %s", f.Title, f.Reason)
+		}
+	}
+	if len(rule(Compute(in), RuleOffPlan)) != 1 {
+		t.Errorf("the taper-cut info on the plan is missing")
+	}
+}
