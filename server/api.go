@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"net/http"
+	"sort"
 	"strconv"
 	"strings"
 	"time"
@@ -87,8 +88,11 @@ func (s *Server) handlePush(w http.ResponseWriter, r *http.Request) error {
 		// of what others logged.
 		res.MaxSeq, _ = s.hub.view(a)
 	}
+	for i := range res.Overtaken {
+		res.Overtaken[i].Name = s.deviceName(res.Overtaken[i].Device)
+	}
 	writeJSON(w, http.StatusOK, devsync.PushResponse{
-		AckedThrough: res.AckedThrough, Rejected: res.Rejected,
+		AckedThrough: res.AckedThrough, Rejected: res.Rejected, Overtaken: res.Overtaken,
 		Applied: res.Applied, Superseded: res.Superseded, Duplicates: res.Duplicates,
 		ServerTime: s.now().UnixMilli(), ServerHLC: hlc, MaxSeq: res.MaxSeq, Epoch: epoch,
 	})
@@ -205,8 +209,40 @@ func (s *Server) handleHistory(w http.ResponseWriter, r *http.Request) error {
 	if !who.canRead(&versions[len(versions)-1]) {
 		return userError(CodeNotFound, "id", "no record with this id")
 	}
-	writeJSON(w, http.StatusOK, map[string]any{"id": id, "versions": versions})
+	// Every version the hub received: the winners in order, and those
+	// another version overtook, each with its device's name and time.
+	lost, err := s.store.Overtaken(id)
+	if err != nil {
+		return err
+	}
+	type entry struct {
+		devsync.Record
+		DeviceName string `json:"device_name,omitempty"`
+		Kept       bool   `json:"kept"`
+	}
+	all := make([]entry, 0, len(versions)+len(lost))
+	for _, v := range versions {
+		all = append(all, entry{Record: v, DeviceName: s.deviceName(v.Device), Kept: true})
+	}
+	for _, v := range lost {
+		all = append(all, entry{Record: v, DeviceName: s.deviceName(v.Device)})
+	}
+	sort.SliceStable(all, func(i, j int) bool { return all[i].Stamp.Compare(all[j].Stamp) < 0 })
+	writeJSON(w, http.StatusOK, map[string]any{"id": id, "versions": versions, "received": all})
 	return nil
+}
+
+// deviceName is a device's name as the coach gave it, or "" when the hub
+// keeps no device list or does not know the device.
+func (s *Server) deviceName(id string) string {
+	if s.cfg.Auth == nil || id == "" {
+		return ""
+	}
+	d, err := s.cfg.Auth.Device(id)
+	if err != nil {
+		return ""
+	}
+	return d.Name
 }
 
 // decodeStrict reads a JSON body of at most limit bytes that must be valid

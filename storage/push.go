@@ -19,8 +19,10 @@ type PushResult struct {
 	Rejected     []devsync.Rejection // mutations refused, with field and reason
 	Applied      int                 // mutations whose version won and was written
 	Superseded   int                 // valid, but an equal or greater version was already stored
-	Duplicates   int                 // n at or below the device's counter: skipped
-	MaxSeq       uint64              // latest change sequence after the push
+	// Overtaken are superseded versions whose winner another device wrote.
+	Overtaken  []devsync.Overtaken
+	Duplicates int    // n at or below the device's counter: skipped
+	MaxSeq     uint64 // latest change sequence after the push
 	// Changed holds the winning versions written, one per record id (the
 	// last one when a batch changes a record twice), in the order the
 	// records were first written: for flag recomputation and pokes.
@@ -300,6 +302,10 @@ func (p *pusher) apply(m *devsync.Mutation, pre *prepared, allow Allow, res *Pus
 		if devsync.Compare(&rec, stored) < 0 {
 			if err := p.keepLoser(&rec, enc); err != nil {
 				return 0, devsync.Rejection{}, err
+			}
+			if stored.Device != rec.Device {
+				res.Overtaken = append(res.Overtaken, devsync.Overtaken{N: m.N, ID: rec.ID, Device: stored.Device,
+					Stamp: stored.Stamp, At: stored.At, Deleted: stored.Deleted})
 			}
 		}
 		return superseded, devsync.Rejection{}, nil

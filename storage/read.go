@@ -61,6 +61,25 @@ func (db *DB) History(id string) ([]devsync.Record, error) {
 	return out, err
 }
 
+// Overtaken returns the versions of a record that lost to a stored
+// winner (the conflicts audit), in the order they arrived.
+func (db *DB) Overtaken(id string) ([]devsync.Record, error) {
+	var out []devsync.Record
+	err := db.bolt.View(func(tx *bolt.Tx) error {
+		prefix := append([]byte(id), '|')
+		c := tx.Bucket(BucketConflicts).Cursor()
+		for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+			r, err := decode(v)
+			if err != nil {
+				return fmt.Errorf("overtaken version %x: %w", k, err)
+			}
+			out = append(out, r)
+		}
+		return nil
+	})
+	return out, err
+}
+
 // Pull returns the records whose latest change sequence is above since,
 // in sequence order: at most limit of them (≤ 0 means
 // devsync.DefaultPullLimit; capped at devsync.MaxPullLimit). visible

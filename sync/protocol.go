@@ -68,13 +68,29 @@ type Rejection struct {
 type PushResponse struct {
 	AckedThrough uint64      `json:"ackedThrough"`
 	Rejected     []Rejection `json:"rejected"`
-	Applied      int         `json:"applied"`    // mutations whose version won
-	Superseded   int         `json:"superseded"` // valid, but an equal or later version was already stored
-	Duplicates   int         `json:"duplicates"` // n at or below the device's counter
-	ServerTime   int64       `json:"serverTime"` // Unix ms
-	ServerHLC    HLC         `json:"serverHLC"`
-	MaxSeq       uint64      `json:"maxSeq"`
-	Epoch        string      `json:"epoch"`
+	// Overtaken are this push's versions that lost to another device's
+	// later version of the same record: kept in the hub's history, and
+	// the device is told, so its user can apply them again.
+	Overtaken  []Overtaken `json:"overtaken,omitempty"`
+	Applied    int         `json:"applied"`    // mutations whose version won
+	Superseded int         `json:"superseded"` // valid, but an equal or later version was already stored
+	Duplicates int         `json:"duplicates"` // n at or below the device's counter
+	ServerTime int64       `json:"serverTime"` // Unix ms
+	ServerHLC  HLC         `json:"serverHLC"`
+	MaxSeq     uint64      `json:"maxSeq"`
+	Epoch      string      `json:"epoch"`
+}
+
+// Overtaken names a pushed version that lost to another device's version.
+type Overtaken struct {
+	N      uint64 `json:"n"`
+	ID     string `json:"id"`
+	Device string `json:"device"`         // the winner's device
+	Name   string `json:"name,omitempty"` // its name, when the hub knows it
+	Stamp  HLC    `json:"stamp"`          // the winner's stamp
+	At     string `json:"at"`             // the winner's at
+	// Deleted is true when the winner deletes the record.
+	Deleted bool `json:"deleted,omitempty"`
 }
 
 // PullResponse is one page of GET /api/pull?since=N.

@@ -200,6 +200,18 @@ export function restore(id) {
   }, 'restore');
 }
 
+// observeStamp moves this device's clock past a stamp it has seen (the
+// receive rule), so its next version sorts after it.
+export async function observeStamp(stamp) {
+  if (!stamp || typeof stamp.l !== 'number') return;
+  const db = await openStore();
+  const tx = db.transaction('meta', 'readwrite', STRICT);
+  const clock = new Clock(await tx.store.get('hlc'));
+  clock.update(stamp, Date.now() + ((await tx.store.get('offset')) || 0));
+  await tx.store.put(clock.last, 'hlc');
+  await tx.done;
+}
+
 // ---- reads ----
 
 export async function getRecord(id) {
@@ -245,11 +257,12 @@ export async function rejectedList() {
 // counts reads what the status line shows in one transaction.
 export async function counts() {
   const tx = (await openStore()).transaction(['outbox', 'rejected', 'meta']);
-  const [waiting, rejected, lastSync, offset] = await Promise.all([
-    tx.objectStore('outbox').count(), tx.objectStore('rejected').count(),
+  const [waiting, filed, lastSync, offset] = await Promise.all([
+    tx.objectStore('outbox').count(), tx.objectStore('rejected').getAll(),
     tx.objectStore('meta').get('lastSync'), tx.objectStore('meta').get('offset'),
   ]);
-  return { waiting, rejected, lastSync: lastSync || 0, offset: offset || 0 };
+  const overtaken = filed.filter((r) => r.code === 'OVERTAKEN').length;
+  return { waiting, rejected: filed.length - overtaken, overtaken, lastSync: lastSync || 0, offset: offset || 0 };
 }
 
 // ---- sync steps (each one transaction) ----
@@ -276,11 +289,12 @@ async function clockIn(meta, serverHLC, serverTime, sentAt, gotAt) {
 export async function ack(res, sentAt, gotAt) {
   const db = await openStore();
   // With rejections the commit must be durable: the hub will not send them again.
-  const durable = res.rejected && res.rejected.length ? STRICT : RELAXED;
+  const durable = (res.rejected && res.rejected.length) || (res.overtaken && res.overtaken.length) ? STRICT : RELAXED;
   const tx = db.transaction(['outbox', 'rejected', 'meta'], 'readwrite', durable);
   const outbox = tx.objectStore('outbox');
   const rej = tx.objectStore('rejected');
   const byN = new Map((res.rejected || []).map((r) => [r.n, r]));
+  const lost = new Map((res.overtaken || []).map((o) => [o.n, o]));
   const through = res.ackedThrough || 0;
   let removed = 0;
   let cur = await outbox.openCursor(IDBKeyRange.upperBound(through));
@@ -290,6 +304,13 @@ export async function ack(res, sentAt, gotAt) {
     if (r) {
       await rej.put({ n: row.n, id: row.record.id, code: r.code, field: r.field || '', reason: r.reason, op: row.op, record: row.record, when: Date.now() });
     }
+    const o = lost.get(row.n);
+    if (o) {
+      // This device's version lost to another device's later one: kept
+      // for its user to see and apply again, not dropped in silence.
+      await rej.put({ n: row.n, id: row.record.id, code: 'OVERTAKEN', field: '', reason: '', op: row.op, record: row.record, when: Date.now(),
+        by: { device: o.device, name: o.name || '', at: o.at || '', stamp: o.stamp, deleted: !!o.deleted } });
+    }
     await cur.delete();
     removed++;
     cur = await cur.continue();
@@ -298,7 +319,7 @@ export async function ack(res, sentAt, gotAt) {
   await clockIn(meta, res.serverHLC, res.serverTime, sentAt, gotAt);
   await meta.put(Date.now(), 'lastPush');
   await tx.done;
-  if (removed) notify({ type: 'changed', acked: removed, rejected: byN.size });
+  if (removed) notify({ type: 'changed', acked: removed, rejected: byN.size + lost.size });
   return removed;
 }
 

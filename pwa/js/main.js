@@ -105,6 +105,7 @@ function StatusBar() {
     ${s.reachable === true && s.error && html`<span class="pill warn" data-testid="status-error">Sync stopped: ${s.error}</span>`}
     ${Math.abs(s.offset || 0) > 120000 && html`<span class="pill warn" data-testid="status-clock">This phone's clock is ${clockWords(s.offset)} — entries use the hub's time; please correct the phone's date and time</span>`}
     ${s.rejected > 0 && html`<button class="pill warn" type="button" data-testid="status-rejected" onClick=${() => navigate('/settings#rejected')}>${plural(s.rejected, 'entry', 'entries')} rejected — tap to see why</button>`}
+    ${s.overtaken > 0 && html`<button class="pill warn" type="button" data-testid="status-overtaken" onClick=${() => navigate('/settings#rejected')}>${plural(s.overtaken, 'correction', 'corrections')} overtaken — tap to see</button>`}
   </div>`;
 }
 

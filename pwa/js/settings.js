@@ -1,6 +1,6 @@
 // Settings: this device, the hub, storage, rejected entries, app version.
 import { html, useState, useEffect, useAsync, useVersion, useAthletes, navigate } from './ui.js';
-import { allMeta, setMeta, rejectedList, discard } from './db.js';
+import { allMeta, setMeta, rejectedList, discard, save, observeStamp } from './db.js';
 import { requestSync } from './sync.js';
 import { VOCAB } from './vocab.js';
 import { fieldWords, kindLabel } from './checks.js';
@@ -8,6 +8,19 @@ import { fieldWords, kindLabel } from './checks.js';
 // The screen that corrects each kind, from the hub's registry.
 const EDIT_ROUTE = Object.fromEntries(Object.entries(VOCAB.kinds).filter(([, v]) => v.screen && v.dated).map(([k, v]) => [k, v.screen]));
 const WHY = { VALIDATION: 'refused by the hub', FORBIDDEN: 'not allowed from this device', BAD_REQUEST: 'refused by the hub', TOO_LARGE: 'too large for the hub' };
+
+// hhmm is a stamp's local time of day.
+function hhmm(ms) {
+  const d = new Date(ms);
+  return `${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}`;
+}
+
+// reapply saves this device's overtaken version again, as a new correction.
+async function reapply(r) {
+  const rec = r.record;
+  await observeStamp(r.by && r.by.stamp); // sort after the version that overtook it
+  await save({ id: rec.id, kind: rec.kind, athlete: rec.athlete, day: rec.day, body: rec.body });
+}
 
 // entryWords names a rejected entry: "Check-in of Ana Pereira, 2026-12-03".
 function entryWords(rec, names) {
@@ -80,12 +93,16 @@ export function Settings({ build }) {
     <div class="card" id="rejected" data-testid="rejected-list">
       <h2>Rejected entries</h2>
       ${rejected.length === 0 && html`<p class="muted">None. Every entry the hub received was accepted.</p>`}
-      ${rejected.map((r) => html`<div class="entry" data-testid=${`rejected-${r.n}`}>
+      ${rejected.map((r) => (r.code === 'OVERTAKEN' ? html`<div class="entry" data-testid=${`rejected-${r.n}`} data-code="OVERTAKEN">
+        <div class="what">Your correction of <strong>${entryWords(r.record, names).replace(/^./, (c) => c.toLowerCase())}</strong> was overtaken by ${r.by.name ? html`<strong>${r.by.name}</strong>'s` : 'another device\'s'} ${r.by.deleted ? 'delete' : 'correction'} at <span class="num">${hhmm(r.by.stamp && r.by.stamp.l)}</span>. Both are in the entry's history.</div>
+        ${!r.by.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-reapply-${r.n}`} onClick=${() => reapply(r)}>Apply mine again</button>`}
+        <button class="secondary" type="button" data-testid=${`rejected-discard-${r.n}`} onClick=${() => discard(r.n)}>Keep theirs</button>
+      </div>` : html`<div class="entry" data-testid=${`rejected-${r.n}`}>
         <div class="what" data-field=${r.field} data-code=${r.code}><strong>${entryWords(r.record, names)}</strong>${r.field ? html` — <strong data-testid=${`rejected-field-${r.n}`}>${fieldWords(r.record.kind, r.field)}</strong>` : ''}: ${r.reason}
           <span class="tag warn">${WHY[r.code] || 'refused by the hub'}</span></div>
         ${EDIT_ROUTE[r.record.kind] && !r.record.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-edit-${r.n}`} onClick=${() => navigate(`${EDIT_ROUTE[r.record.kind]}?edit=${r.id}`)}>Correct</button>`}
         <button class="secondary danger" type="button" data-testid=${`rejected-discard-${r.n}`} onClick=${() => discard(r.n)}>Discard</button>
-      </div>`)}
+      </div>`))}
       <p class="muted small">A rejected entry stays here until you correct it (a new version is sent) or discard it.</p>
     </div>
     <div class="card"><h2>App</h2><p class="muted small">Build <span class="num" data-testid="settings-build">${build || 'not installed yet'}</span></p></div>

@@ -193,6 +193,7 @@ export function syncOnce(reason) {
 export const status = {
   waiting: 0,
   rejected: 0,
+  overtaken: 0,
   lastSync: 0,
   reachable: null, // null = not tried yet
   syncing: false,
