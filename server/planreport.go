@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
+	"time"
 
 	"github.com/gorilla/mux"
 
@@ -16,12 +17,25 @@ import (
 // done up to day (the camp's day; "" for today), with the plan's checks.
 // No bout: a user error naming the athlete.
 func (s *Server) PlanReport(athlete, day string) (plan.Report, error) {
+	return s.PlanReportOf(athlete, "", day)
+}
+
+// PlanReportOf is PlanReport for one bout of the athlete's (its record
+// id; "" for the current bout).
+func (s *Server) PlanReportOf(athlete, boutID, day string) (plan.Report, error) {
 	if day == "" {
 		day = s.flags.Today()
 	}
 	in, err := s.flags.input(athlete, day)
 	if err != nil {
 		return plan.Report{}, err
+	}
+	if boutID != "" {
+		r, err := s.store.Get(boutID)
+		if err != nil || r.Deleted || r.Kind != records.KindBout || r.Athlete != athlete {
+			return plan.Report{}, userError(CodeNotFound, "bout", fmt.Sprintf("this athlete has no bout with id %q", boutID))
+		}
+		in.Bout = &r
 	}
 	if in.Bout == nil {
 		return plan.Report{}, userError(CodeNotFound, "athlete", "this athlete has no bout yet: plan a bout and its camp first")
@@ -57,7 +71,13 @@ func (s *Server) handlePlanReport(w http.ResponseWriter, r *http.Request) error 
 	if who.Role == "athlete" && id != who.Athlete {
 		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's plan")
 	}
-	rep, err := s.PlanReport(id, r.URL.Query().Get("day"))
+	q := r.URL.Query()
+	if d := q.Get("day"); d != "" {
+		if _, err := time.Parse(time.DateOnly, d); err != nil {
+			return userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day YYYY-MM-DD; got %q", d))
+		}
+	}
+	rep, err := s.PlanReportOf(id, q.Get("bout"), q.Get("day"))
 	if err != nil {
 		return err
 	}

@@ -175,11 +175,17 @@ export function Plan() {
   const [check, setCheck] = useState(null);
   const [state, setState] = useState(null);
   const [gen, setGen] = useState(null);
+  // touched: the coach has typed into the form shown; a bout that arrives
+  // by sync afterwards never replaces what was typed.
+  const [touched, setTouched] = useState(false);
 
   useEffect(() => { history.replaceState(null, '', query('/plan', { athlete: aid, bout: boutId })); }, [aid, boutId]);
   // Open the fighter's current bout (or the one asked for) once it is known.
   useEffect(() => {
-    if (!bouts || !a || loadedFor === aid + '|' + boutId) return;
+    if (!bouts || !a) return;
+    // The fighter's bout arrived (by sync) after a blank form nobody typed in: open it.
+    const arrived = boutId === '' && bouts.length > 0 && !touched;
+    if (loadedFor === aid + '|' + boutId && !arrived) return;
     const r = boutId === 'new' ? null : (bouts.find((x) => x.id === boutId) || bouts[0]);
     setF(r ? formFromBout(r.body, units) : blank());
     if (r && boutId !== r.id) setBoutId(r.id);
@@ -187,11 +193,12 @@ export function Plan() {
     setState(null);
   }, [bouts, a, aid, boutId]);
 
-  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
+  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); setTouched(true); };
   // A new bout starts blank at once, so what is typed next stays even if
   // the fighter's bouts finish loading afterwards.
   const pickBout = (id) => {
     setBoutId(id);
+    setTouched(false);
     if (id === 'new') { setF(blank()); setLoadedFor(aid + '|new'); setState(null); } else setLoadedFor('');
   };
   const { body, errs } = bodyFromForm(f, units);
@@ -212,6 +219,7 @@ export function Plan() {
     try {
       const d = await hubGet(query('/api/plan/default', { camp_start: f.camp_start, bout_day: f.bout_day, athlete: aid }));
       setF((o) => ({ ...o, weeks: d.weeks.map(weekForm) }));
+      setTouched(true);
       setGen({ done: true });
     } catch (e) { setGen({ error: e.message }); }
   };
@@ -241,7 +249,7 @@ export function Plan() {
     <h1>Camp plan</h1>
     <div class="filters">
       <div class="field"><label for="plan-athlete">Fighter</label>
-        <select id="plan-athlete" data-testid="plan-athlete" value=${aid} onChange=${(e) => { setAid(e.target.value); setBoutId(''); setLoadedFor(''); }}>
+        <select id="plan-athlete" data-testid="plan-athlete" value=${aid} onChange=${(e) => { setAid(e.target.value); setBoutId(''); setLoadedFor(''); setTouched(false); }}>
           <option value="">Choose…</option>${(list || []).map((x) => html`<option value=${x.id}>${x.name}</option>`)}
         </select></div>
       ${a && html`<div class="field"><label for="plan-bout">Bout</label>
@@ -251,8 +259,9 @@ export function Plan() {
         </select></div>`}
     </div>
     ${!a && html`<p class="muted">Choose the fighter whose camp you are planning.</p>`}
-    ${a && html`
-    <h2>The bout</h2>
+    ${a && boutId && boutId !== 'new' && html`<${Glance} aid=${aid} boutId=${boutId} name=${a.name} units=${units} />`}
+    ${a && html`<div class="plan-edit">
+    <h2>${boutId && boutId !== 'new' ? 'Edit the plan' : 'The bout'}</h2>
     <div class="plan-grid">
       <div><label for="plan-name">Name (optional)</label><input id="plan-name" data-testid="plan-name" value=${f.name} placeholder="e.g. Town hall card, 6 rounds" onInput=${(e) => set('name', e.target.value)} /></div>
       <div><label for="plan-camp-start">Camp start</label><input id="plan-camp-start" type="date" data-testid="plan-camp-start" value=${f.camp_start} onInput=${(e) => set('camp_start', e.target.value)} /></div>
@@ -301,9 +310,8 @@ export function Plan() {
 
     <button class="primary" type="submit" data-testid="plan-save" disabled=${state && state.saving}>${boutId && boutId !== 'new' ? 'Save the changes' : 'Save the plan'}</button>
     <${SaveLine} state=${state} />
-    <p class="links no-print"><${Link} to=${query('/athlete', { id: aid })} class="secondary linkbtn" data-testid="plan-to-charts">Charts of ${a.name}</${Link}>
-      <button type="button" class="secondary" data-testid="plan-print" onClick=${() => window.print()}>Print the plan on one page</button></p>
-    ${boutId && boutId !== 'new' && html`<h2>Planned against done</h2><${PlanDone} aid=${aid} tables=${tables} />`}`}
+    <p class="links"><${Link} to=${query('/athlete', { id: aid })} class="secondary linkbtn" data-testid="plan-to-charts">Charts of ${a.name}</${Link}></p>
+    </div>`}
   </form>`;
 }
 
@@ -398,8 +406,8 @@ function WeekRow({ w, i, start, tables, fraction, refAU, onEdit, current }) {
       <select id=${`w${k}-${group}`} data-testid=${`plan-week-${k}-${group}`} value=${main}
         onChange=${(ev) => ed({ [group]: { ...e, ids: ev.target.value ? [ev.target.value, ...rest.filter((x) => x !== ev.target.value && ev.target.value !== 'none')] : rest } })}>
         <option value="">—</option>${EMPH_GROUP[group].map((id) => html`<option value=${id}>${emphWords(tables, id)}</option>`)}</select>
-      ${group === 'strength' && main !== 'plyometric' && main !== 'none' && html`<label class="small"><input type="checkbox" data-testid=${`plan-week-${k}-plyo`} checked=${rest.includes('plyometric')}
-        onChange=${(ev) => ed({ strength: { ...e, ids: [main, ...(ev.target.checked ? ['plyometric'] : [])].filter(Boolean) } })} /> with ${emphWords(tables, 'plyometric').toLowerCase()}</label>`}
+      ${group === 'strength' && main !== 'plyometric' && main !== 'none' && html`<button type="button" class="secondary toggle" data-testid=${`plan-week-${k}-plyo`} aria-pressed=${rest.includes('plyometric') ? 'true' : 'false'}
+        onClick=${() => ed({ strength: { ...e, ids: [main, ...(rest.includes('plyometric') ? [] : ['plyometric'])].filter(Boolean) } })}>${rest.includes('plyometric') ? '✓ ' : '+ '}${emphWords(tables, 'plyometric').toLowerCase()}</button>`}
       <input aria-label=${`Week ${k} ${group}, in your words`} data-testid=${`plan-week-${k}-${group}-label`} placeholder="in your words (optional)" value=${e.label || ''}
         onInput=${(ev) => ed({ [group]: { ...e, label: ev.target.value } })} /></div>`;
   };
@@ -458,23 +466,55 @@ function PathChart({ check, units }) {
     </svg><figcaption class="small muted">Planned morning mass, ${units}, from camp start to the weigh-in.</figcaption></figure>`;
 }
 
-// PlanDone shows the saved plan week by week against what was logged,
-// refreshed whenever the device's store changes (a session syncs).
-function PlanDone({ aid, tables }) {
+// Glance is the saved camp on one page: each week's load, emphases,
+// sparring and travel against what was logged, the current week marked,
+// a week running hot or cold in words, the mass path and the checks. It
+// is read again whenever the device's store changes (a session syncs),
+// and it is what the printed page holds.
+function Glance({ aid, boutId, name, units }) {
   const v = useVersion();
-  const rep = useAsync(() => hubGet(`/api/athletes/${encodeURIComponent(aid)}/plan`).catch((e) => ({ error: e.message })), [aid, v], null);
-  if (!rep) return html`<p class="muted small">Reading what was done from the hub…</p>`;
-  if (rep.error) return html`<p class="muted small" data-testid="plan-done-error">Planned against done needs the hub: ${rep.error}</p>`;
-  return html`<div class="done-table" data-testid="plan-done" role="table" aria-label="Planned against done">
-    <div class="drow dhead" role="row"><span role="columnheader">Week</span><span role="columnheader">Load, AU</span><span role="columnheader">Sessions</span><span role="columnheader">Sparring, rounds (hard)</span></div>
-    ${rep.weeks.map((w) => html`<div class=${`drow${w.current ? ' current' : ''}${w.verdict ? ' ' + w.verdict : ''}`} role="row" data-testid=${`plan-done-${w.week}`}
-      data-load=${w.done.load_au} data-sessions=${w.done.sessions} data-rounds=${w.done.rounds} data-hard=${w.done.hard_rounds} aria-current=${w.current ? 'date' : undefined}>
-      <span role="cell"><strong>${w.week}</strong> <span class="small muted">${LEVEL_WORDS[w.level] || w.level}${w.current ? ' · this week' : ''}</span></span>
-      <span role="cell" class="num">${w.done.days ? fmtN(w.done.load_au, 0) : '—'} / ${w.planned_load_au != null ? fmtN(w.planned_load_au, 0) : '—'}</span>
-      <span role="cell">${w.done.days ? `${w.done.sessions}` : '—'}${w.done.sessions ? html` <span class="small muted">${Object.entries(w.done.by_emphasis).map(([id, n]) => `${n} ${id ? emphWords(tables, id).toLowerCase() : 'no focus'}`).join(', ')}</span>` : ''}
-        <span class="small muted" style="display:block">Plan: ${[emphText(tables, w.strength), emphText(tables, w.conditioning)].filter(Boolean).join('; ') || '—'}</span></span>
-      <span role="cell" class="num">${w.done.days ? `${w.done.rounds} (${w.done.hard_rounds})` : '—'} / ${w.spar_rounds ?? '—'} (${w.hard_rounds ?? '—'})</span>
-      ${w.words && html`<span role="cell" class="words" data-testid=${`plan-done-${w.week}-words`}>${w.words}</span>`}
-    </div>`)}
-  </div>`;
+  const rep = useAsync(() => hubGet(query(`/api/athletes/${encodeURIComponent(aid)}/plan`, { bout: boutId })).catch((e) => ({ error: e.message })), [aid, boutId, v], null);
+  if (!rep) return html`<section class="glance" data-testid="plan-glance" aria-busy="true"><h2>The camp at a glance</h2><p class="muted small">Reading the plan and what was done from the hub…</p></section>`;
+  if (rep.error) return html`<section class="glance" data-testid="plan-glance"><h2>The camp at a glance</h2><p class="muted small" data-testid="plan-done-error">Planned against done needs the hub: ${rep.error}</p></section>`;
+  const b = rep.bout;
+  const maxAU = Math.max(1, ...rep.weeks.map((w) => Math.max(w.planned_load_au || 0, w.done.load_au || 0)));
+  return html`<section class="glance" data-testid="plan-glance">
+    <div class="glance-head"><h2>The camp at a glance</h2>
+      <button type="button" class="secondary" data-testid="plan-print" onClick=${() => window.print()}>Print on one page</button></div>
+    <p class="print-only"><strong>${name}</strong> — ${b.name || 'bout'} on ${longDay(b.bout_day)}; camp from ${longDay(b.camp_start)}. Done up to ${longDay(rep.today)}.</p>
+    <div class="done-table" data-testid="plan-done" role="table" aria-label="Planned against done, week by week">
+      <div class="drow dhead" role="row"><span role="columnheader">Week</span><span role="columnheader">Load: done / planned</span><span role="columnheader">Strength · conditioning</span><span role="columnheader">Sparring: done / planned (hard)</span></div>
+      ${rep.weeks.map((w) => html`<div class=${`drow${w.current ? ' current' : ''}${w.verdict ? ' ' + w.verdict : ''}`} role="row" data-testid=${`plan-done-${w.week}`}
+        data-load=${w.done.load_au} data-sessions=${w.done.sessions} data-rounds=${w.done.rounds} data-hard=${w.done.hard_rounds} data-verdict=${w.verdict || ''} aria-current=${w.current ? 'date' : undefined}>
+        <span role="cell"><strong>Week ${w.week}</strong> <span class="small muted">${dayMonth(w.start)}</span><br /><span class=${`lvl lvl-${w.level}`}>${LEVEL_WORDS[w.level] || w.level}</span>${w.current ? html` <span class="now">this week</span>` : ''}</span>
+        <span role="cell" class="num">
+          <span class="bars" aria-hidden="true"><span class="bar plan" style=${`width:${((w.planned_load_au || 0) / maxAU) * 100}%`}></span><span class="bar done" style=${`width:${(w.done.load_au / maxAU) * 100}%`}></span></span>
+          ${w.done.days ? fmtN(w.done.load_au, 0) : '—'} / ${w.planned_load_au != null ? fmtN(w.planned_load_au, 0) : '—'} AU
+          ${w.done.sessions ? html`<span class="small muted" style="display:block">${w.done.sessions} session${w.done.sessions === 1 ? '' : 's'}<span class="by-emph">: ${Object.entries(w.done.by_emphasis).sort((x, y) => y[1] - x[1]).map(([id, n]) => `${n} ${id ? emphWords(null, id).toLowerCase() : 'no focus'}`).join(', ')}</span></span>` : ''}</span>
+        <span role="cell">${[emphText(null, w.strength), emphText(null, w.conditioning)].filter(Boolean).join(' · ') || '—'}
+          ${w.travel && html`<span class="travel-line" data-testid=${`plan-done-${w.week}-travel`}>Travel: ${w.travel.from_zone} → ${w.travel.to_zone}, lands ${wallClock(w.travel.arrive_at, w.travel.to_zone).date} ${wallClock(w.travel.arrive_at, w.travel.to_zone).time} (${shiftWords(w.travel)})</span>`}
+          ${w.note && html`<span class="small muted" style="display:block">${w.note}</span>`}</span>
+        <span role="cell" class="num">${w.done.days ? `${w.done.rounds} (${w.done.hard_rounds})` : '—'} / ${w.spar_rounds ?? '—'} (${w.hard_rounds ?? '—'})</span>
+        ${w.words && html`<span role="cell" class="words" data-testid=${`plan-done-${w.week}-words`}>${w.words}</span>`}
+      </div>`)}
+    </div>
+    <div class="print-only"><${PathChart} check=${{ path: rep.path }} units=${units} /></div>
+    ${rep.checks.length > 0 && html`<ul class="issues glance-checks" data-testid="plan-glance-checks">${rep.checks.map((i) => html`<li class=${i.level} data-check=${i.check}>
+      <span class="field">${i.level === 'watch' ? 'Look at this' : 'Worth knowing'} · ${placeWords(i.field)}</span>${i.message}</li>`)}</ul>`}
+    <p class="small muted print-only">${MASS_CAUTION}</p>
+  </section>`;
+}
+
+// shiftWords is a journey's clock shift from the browser's zone data at
+// the landing instant: "+9 h" or "−5 h".
+function shiftWords(t) {
+  try {
+    const arr = Date.parse(t.arrive_at);
+    const at = new Date(arr).toISOString();
+    const off = (z) => zoneOffset(z, wallClock(at, z).date, wallClock(at, z).time);
+    let h = (off(t.to_zone) - off(t.from_zone)) / 60;
+    if (h > 12) h -= 24;
+    if (h < -12) h += 24;
+    return h === 0 ? 'no clock change' : `clock ${h > 0 ? '+' : '−'}${Math.abs(h)} h`;
+  } catch (_) { return 'clock change unknown'; }
 }
