@@ -112,8 +112,11 @@ const cross = {
         return { field: 'body.minutes', label: 'Duration', reason: `adds up to ${fmtNum(Math.round(min * 10) / 10)} min (sets × reps × (work + rest) + rests between sets); a session is at most ${VOCAB.limits.max_session_min} min — check reps and sets` };
       }
     }
-    return null;
+    return prescription(b);
   },
+  fitness_test: (b) => fitnessTest(b),
+  strength: (b) => strength(b),
+  jump: (b) => dropJump(b),
   bout(b) {
     const start = dayNum(b.camp_start);
     const bout = dayNum(b.bout_day);
@@ -203,6 +206,140 @@ function checkWeek(f, w, start) {
     const last = new Date(start + 6 * DAY).toISOString().slice(0, 10);
     if (d < first || d > last) return { field: `${tf}.depart_at`, label, reason: `is on ${d} (${t.from_zone}), outside this week (${first} to ${last}); plan the journey in the week it leaves` };
   }
+  return null;
+}
+
+// ---- tests and prescriptions (the hub's records/tests.go, word for word) ----
+
+const L = () => VOCAB.limits;
+const has = (b, k) => b[k] !== undefined && b[k] !== null;
+const between = (field, label, v, lo, hi, unit) => (Number.isNaN(v) || v < lo || v > hi
+  ? { field, label, reason: `must be between ${fmtNum(lo)} and ${fmtNum(hi)}${unit ? ' ' + unit : ''}; got ${fmtNum(v)}` } : null);
+
+// stageWords is the refusal of a 30-15 IFT stage the table from a start
+// speed does not have.
+export const iftStages = (start) => Math.round((L().ift_top_kmh - start) / L().ift_step_kmh) + 1;
+const stageWords = (start, stage) => `must be between 1 and ${iftStages(start)} (the stages of the test from ${start} km/h, ${start} to ${L().ift_top_kmh} km/h); got ${stage}`;
+const TEST_WORDS = { ift_30_15: 'a 30-15 IFT', repeated_sprint: 'a repeated-sprint test', hr_max: 'a measured maximal heart rate' };
+const BELONGS = [['start_kmh', 'ift_30_15'], ['stage', 'ift_30_15'], ['vift_kmh', 'ift_30_15'], ['sprint_s', 'repeated_sprint'], ['distance_m', 'repeated_sprint'],
+  ['best_s', 'repeated_sprint'], ['sdec_pct', 'repeated_sprint'], ['fatigue_pct', 'repeated_sprint'], ['hr_max_bpm', 'hr_max']];
+
+function fitnessTest(b) {
+  const l = L();
+  const protocols = Object.keys(TEST_WORDS);
+  if (!b.protocol) return { field: 'body.protocol', label: 'Test', reason: `is required: one of ${protocols.join(', ')}` };
+  for (const [k, p] of BELONGS) {
+    if (has(b, k) && p !== b.protocol) return { field: `body.${k}`, label: 'Test', reason: `belongs to ${TEST_WORDS[p]}, not ${TEST_WORDS[b.protocol]}` };
+  }
+  if (b.protocol === 'ift_30_15') {
+    const start = has(b, 'start_kmh') ? b.start_kmh : l.ift_start_kmh;
+    if (start !== l.ift_start_kmh && start !== l.ift_alt_start_kmh) {
+      return { field: 'body.start_kmh', label: 'First stage', reason: `must be ${l.ift_start_kmh} or ${l.ift_alt_start_kmh} km/h (the first stage's speed); got ${fmtNum(start)}` };
+    }
+    if (has(b, 'stage')) {
+      if (b.stage < 1 || b.stage > iftStages(start)) return { field: 'body.stage', label: 'Last stage completed', reason: stageWords(start, b.stage) };
+    } else if (has(b, 'vift_kmh')) {
+      const k = (b.vift_kmh - start) / l.ift_step_kmh;
+      const r = Math.round(k);
+      if (Math.abs(k - r) > 1e-9 || r < 0 || b.vift_kmh > l.ift_top_kmh + 1e-9) {
+        return { field: 'body.vift_kmh', label: 'V_IFT', reason: `the test has no stage at ${fmtNum(b.vift_kmh)} km/h: stages run from ${start} to ${l.ift_top_kmh} km/h in steps of 0.5` };
+      }
+    } else {
+      return { field: 'body.stage', label: 'Last stage completed', reason: `is required: the last stage completed, 1 to ${iftStages(start)} (${start} to ${l.ift_top_kmh} km/h)` };
+    }
+  }
+  if (b.protocol === 'repeated_sprint') {
+    const t = Array.isArray(b.sprint_s) ? b.sprint_s : [];
+    if (t.length < l.min_sprints || t.length > l.max_sprints) {
+      return { field: 'body.sprint_s', label: 'Sprint times', reason: `must hold ${l.min_sprints} to ${l.max_sprints} sprint times in s; got ${t.length}` };
+    }
+    for (const [i, x] of t.entries()) {
+      const bad = between(`body.sprint_s[${i}]`, 'Sprint time', x, l.min_sprint_s, l.max_sprint_s, 's');
+      if (bad) return bad;
+    }
+    if (has(b, 'distance_m')) {
+      const bad = between('body.distance_m', 'Sprint length', b.distance_m, l.min_sprint_m, l.max_sprint_m, 'm');
+      if (bad) return bad;
+    }
+  }
+  if (b.protocol === 'hr_max') {
+    if (!has(b, 'hr_max_bpm')) return { field: 'body.hr_max_bpm', label: 'Maximal heart rate', reason: `is required: the highest heart rate measured, ${l.min_hr_max} to ${l.max_hr_max} bpm` };
+    const bad = between('body.hr_max_bpm', 'Maximal heart rate', b.hr_max_bpm, l.min_hr_max, l.max_hr_max, 'bpm');
+    if (bad) return bad;
+    if (has(b, 'hr_peak')) return { field: 'body.hr_peak', label: 'Peak heart rate', reason: 'belongs to a 30-15 IFT or repeated-sprint test; a measured maximum goes in hr_max_bpm' };
+  }
+  return null;
+}
+
+// risingVelocity finds the first set faster than a set at a lighter load.
+function risingVelocity(pts) {
+  for (let i = 0; i < pts.length; i++) {
+    for (let j = 0; j < i; j++) {
+      const a = pts[i], c = pts[j];
+      if ((a.load > c.load && a.v > c.v) || (a.load < c.load && a.v < c.v)) return [i, j];
+    }
+  }
+  return null;
+}
+
+function strength(b) {
+  const l = L();
+  if (typeof b.exercise !== 'string' || b.exercise.trim() === '') {
+    return { field: 'body.exercise', label: 'Exercise', reason: `is required: the exercise tested, e.g. ${VOCAB.exercises.slice(0, 3).join(', ')}` };
+  }
+  const sets = Array.isArray(b.sets) ? b.sets : [];
+  if (sets.length < 1 || sets.length > l.max_strength_sets) return { field: 'body.sets', label: 'Sets', reason: `must hold 1 to ${l.max_strength_sets} sets; got ${sets.length}` };
+  const pts = [];
+  sets.forEach((s, i) => { if (s && has(s, 'mpv_ms')) pts.push({ load: s.load_kg, v: s.mpv_ms, set: i }); });
+  const r = risingVelocity(pts);
+  if (r) {
+    let [hi, lo] = r;
+    if (pts[hi].load < pts[lo].load) [hi, lo] = [lo, hi];
+    return {
+      field: `body.sets[${pts[hi].set}].mpv_ms`, label: 'Bar speed',
+      reason: `is ${fmtNum(pts[hi].v)} m/s at ${fmtNum(pts[hi].load)} kg, faster than ${fmtNum(pts[lo].v)} m/s at the lighter ${fmtNum(pts[lo].load)} kg (set ${pts[lo].set + 1}): bar speed falls as the load rises — check both entries`,
+    };
+  }
+  return null;
+}
+
+function dropJump(b) {
+  const l = L();
+  const test = b.test || 'cmj';
+  if (test !== 'dj') {
+    for (const k of ['drop_cm', 'contact_ms', 'rsi', 'rsi_attempts']) {
+      if (has(b, k)) return { field: `body.${k}`, label: 'Drop jump', reason: `belongs to a drop jump (test dj), not a ${test}` };
+    }
+    return null;
+  }
+  if (!has(b, 'drop_cm')) return { field: 'body.drop_cm', label: 'Drop height', reason: `is required: the height dropped from, ${l.min_drop_cm} to ${l.max_drop_cm} cm` };
+  let bad = between('body.drop_cm', 'Drop height', b.drop_cm, l.min_drop_cm, l.max_drop_cm, 'cm');
+  if (bad) return bad;
+  const attempts = (Array.isArray(b.flight_ms) && b.flight_ms.length ? b.flight_ms : (b.heights_cm || [])).length;
+  const contact = Array.isArray(b.contact_ms) ? b.contact_ms : [];
+  if (contact.length !== attempts) {
+    return { field: 'body.contact_ms', label: 'Ground contact', reason: `needs one ground contact time per attempt: ${attempts} attempts, ${contact.length} contact times` };
+  }
+  for (const [i, x] of contact.entries()) {
+    bad = between(`body.contact_ms[${i}]`, 'Ground contact', x, l.min_contact_ms, l.max_contact_ms, 'ms');
+    if (bad) return bad;
+  }
+  return null;
+}
+
+function prescription(b) {
+  const l = L();
+  if (has(b, 'pct_vift') && !has(b, 'vift_kmh')) return { field: 'body.vift_kmh', label: 'V_IFT', reason: "is required with pct_vift: the fighter's V_IFT from a 30-15 IFT, in km/h" };
+  if (!has(b, 'pct_vift') && has(b, 'vift_kmh')) return { field: 'body.pct_vift', label: 'Share of V_IFT', reason: `is required with vift_kmh: the share of V_IFT to run at, ${l.min_pct_vift} to ${l.max_pct_vift} %` };
+  const band = has(b, 'hr_lo_pct') || has(b, 'hr_hi_pct') || has(b, 'hr_max_bpm');
+  if (!band) {
+    if (b.hr_max_from) return { field: 'body.hr_max_from', label: 'HRmax from', reason: 'belongs to a heart-rate band (hr_lo_pct, hr_hi_pct, hr_max_bpm)' };
+    return null;
+  }
+  if (!has(b, 'hr_lo_pct')) return { field: 'body.hr_lo_pct', label: 'Heart-rate band', reason: `is required for a heart-rate band: its lower end, ${l.min_pct_hrmax} to ${l.max_pct_hrmax} % of HRmax` };
+  if (!has(b, 'hr_hi_pct')) return { field: 'body.hr_hi_pct', label: 'Heart-rate band', reason: `is required for a heart-rate band: its upper end, ${l.min_pct_hrmax} to ${l.max_pct_hrmax} % of HRmax` };
+  if (b.hr_hi_pct < b.hr_lo_pct) return { field: 'body.hr_hi_pct', label: 'Heart-rate band', reason: `is ${fmtNum(b.hr_hi_pct)} %, below the band's lower end of ${fmtNum(b.hr_lo_pct)} %` };
+  if (!has(b, 'hr_max_bpm')) return { field: 'body.hr_max_bpm', label: 'HRmax', reason: `is required with a heart-rate band: the HRmax the band is drawn from, ${l.min_hr_max} to ${l.max_hr_max} bpm` };
   return null;
 }
 

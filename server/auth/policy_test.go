@@ -15,18 +15,20 @@ import (
 // athlete) and a staff device may write it. Written out by hand from the
 // decisions in policy.go, not derived from its lists.
 var writeRule = map[string]struct{ athlete, staff bool }{
-	records.KindAthlete:   {false, false},
-	records.KindSettings:  {false, false},
-	records.KindBout:      {false, false},
-	records.KindCheckin:   {true, true},
-	records.KindJump:      {false, true},
-	records.KindRound:     {false, true},
-	records.KindIntervals: {false, true},
-	records.KindSession:   {true, true},
-	records.KindIncident:  {false, true},
-	records.KindClearance: {false, false},
-	records.KindDecision:  {false, false},
-	records.KindNote:      {true, true},
+	records.KindAthlete:     {false, false},
+	records.KindSettings:    {false, false},
+	records.KindBout:        {false, false},
+	records.KindCheckin:     {true, true},
+	records.KindJump:        {false, true},
+	records.KindRound:       {false, true},
+	records.KindIntervals:   {false, true},
+	records.KindSession:     {true, true},
+	records.KindIncident:    {false, true},
+	records.KindClearance:   {false, false},
+	records.KindDecision:    {false, false},
+	records.KindNote:        {true, true},
+	records.KindFitnessTest: {false, true},
+	records.KindStrength:    {false, true},
 }
 
 var (

@@ -141,7 +141,7 @@ type Checkin struct {
 // Jump is one jump test: either heights or flight times per attempt.
 // BestCm and MeanCm are derived by the hub.
 type Jump struct {
-	Test string `json:"test"` // "cmj"
+	Test string `json:"test"` // "cmj" or "dj" (drop jump)
 	// HeightsCm are the attempts in cm. When FlightMs is given the hub
 	// derives them from it (h = g·t²/8) and replaces any sent along.
 	HeightsCm []float64 `json:"heights_cm,omitempty"`
@@ -150,6 +150,14 @@ type Jump struct {
 	BestCm    float64   `json:"best_cm,omitempty"`
 	MeanCm    float64   `json:"mean_cm,omitempty"`
 	Session   string    `json:"session,omitempty"` // optional id grouping a jump grid
+	// A drop jump (test "dj") adds the drop height and each attempt's
+	// ground contact time; the hub derives each attempt's reactive strength
+	// index and the best (Healy et al. 2017). Drop jumps never enter the
+	// CMJ baseline.
+	DropCm    float64   `json:"drop_cm,omitempty"`
+	ContactMs []float64 `json:"contact_ms,omitempty"`
+	RSIs      []float64 `json:"rsi_attempts,omitempty"`
+	RSI       float64   `json:"rsi,omitempty"`
 }
 
 // Round is one finished round.
@@ -183,6 +191,22 @@ type Intervals struct {
 	// LoadAU is derived: rpe × minutes (Foster et al. 2001), when rpe is given.
 	LoadAU float64 `json:"load_au,omitempty"`
 	Note   string  `json:"note,omitempty"`
+	// A prescription from a test: a share of V_IFT (with the V_IFT it was
+	// drawn from) gives the distance per repetition, TargetRepM = V_IFT /
+	// 3.6 × pct / 100 × work_s (Buchheit 2008); a band of % HRmax (with the
+	// HRmax used and where it came from) gives the target heart rates. The
+	// hub derives the targets. What was done is DoneReps, DoneRepM (mean
+	// distance covered per repetition), HRPeak and HRMean.
+	PctVIFT    *float64 `json:"pct_vift,omitempty"`
+	VIFTKmh    float64  `json:"vift_kmh,omitempty"`
+	TargetRepM float64  `json:"target_rep_m,omitempty"`
+	HRLoPct    *float64 `json:"hr_lo_pct,omitempty"`
+	HRHiPct    *float64 `json:"hr_hi_pct,omitempty"`
+	HRMaxBpm   float64  `json:"hr_max_bpm,omitempty"`
+	HRMaxFrom  string   `json:"hr_max_from,omitempty"` // "measured" or "age" (Tanaka 2001)
+	TargetHRLo float64  `json:"target_hr_lo,omitempty"`
+	TargetHRHi float64  `json:"target_hr_hi,omitempty"`
+	DoneRepM   *float64 `json:"done_rep_m,omitempty"`
 }
 
 // Session is a training session with its session RPE; Load is derived

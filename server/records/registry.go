@@ -214,7 +214,14 @@ var Registry = []Kind{
 				Words: "must be between {min} and {max} ms (a jump of 4.9 to 122.6 cm); got {got}"},
 			textField("body.session", "Test session", MaxShortLen),
 		},
-		Example:  `{"test":"cmj","heights_cm":[40,41,42]}`,
+		Example: `{"test":"cmj","heights_cm":[40,41,42]}`,
+		Cases: []Case{
+			{"a drop jump without its drop height", `{"test":"dj","contact_ms":[200,210,205]}`, "body.drop_cm"},
+			{"a drop height out of range", `{"test":"dj","drop_cm":5,"contact_ms":[200,210,205]}`, "body.drop_cm"},
+			{"a drop jump without contact times", `{"test":"dj","drop_cm":40}`, "body.contact_ms"},
+			{"a ground contact out of range", `{"test":"dj","drop_cm":40,"contact_ms":[50,210,205]}`, "body.contact_ms[0]"},
+			{"contact times on a CMJ", `{"contact_ms":[200,210,205]}`, "body.contact_ms"},
+		},
 		validate: validateJump,
 	},
 	{
@@ -246,6 +253,13 @@ var Registry = []Kind{
 			wholeRng("body.hr_peak", "Peak heart rate", "bpm", MinHR, MaxHR),
 			wholeRng("body.hr_mean", "Mean heart rate", "bpm", MinHR, MaxHR),
 			rpeField("body.rpe"),
+			rng("body.pct_vift", "Share of V_IFT", "% of V_IFT", MinPctVIFT, MaxPctVIFT),
+			rng("body.vift_kmh", "V_IFT", "km/h", IFTStartKmh, IFTTopKmh),
+			rng("body.hr_lo_pct", "Heart-rate band, lower end", "% of HRmax", MinPctHRMax, MaxPctHRMax),
+			rng("body.hr_hi_pct", "Heart-rate band, upper end", "% of HRmax", MinPctHRMax, MaxPctHRMax),
+			rng("body.hr_max_bpm", "HRmax", "bpm", MinHRMax, MaxHRMax),
+			enum("body.hr_max_from", "HRmax from", HRMaxSources),
+			rng("body.done_rep_m", "Distance covered per rep", "m per repetition", 0, MaxRepM),
 			textField("body.note", "Note", MaxNoteLen),
 		},
 		Example: `{"modality":"bike","work_s":30,"rest_s":30,"reps":10,"sets":2}`,
@@ -253,6 +267,12 @@ var Registry = []Kind{
 			{"more reps done than planned", `{"done_reps":21}`, "body.done_reps"},
 			{"mean heart rate above the peak", `{"hr_peak":170,"hr_mean":180}`, "body.hr_mean"},
 			{"longer than a session", `{"work_s":600,"rest_s":0,"reps":20,"sets":2}`, "body.minutes"},
+			{"a share of V_IFT without the V_IFT", `{"pct_vift":90}`, "body.vift_kmh"},
+			{"a V_IFT without its share", `{"vift_kmh":19}`, "body.pct_vift"},
+			{"a heart-rate band upside down", `{"hr_lo_pct":95,"hr_hi_pct":90,"hr_max_bpm":190}`, "body.hr_hi_pct"},
+			{"a heart-rate band without HRmax", `{"hr_lo_pct":90,"hr_hi_pct":95}`, "body.hr_max_bpm"},
+			{"half a heart-rate band", `{"hr_lo_pct":90,"hr_max_bpm":190}`, "body.hr_hi_pct"},
+			{"an HRmax source without a band", `{"hr_max_from":"age"}`, "body.hr_max_from"},
 		},
 		validate: validateIntervals,
 	},
@@ -308,6 +328,53 @@ var Registry = []Kind{
 		},
 		Example:  `{"text":"Left hand sore after pads."}`,
 		validate: validateNote,
+	},
+	{
+		Name: KindFitnessTest, Screen: "/tests", Label: "fitness test", Plural: "fitness tests", Body: FitnessTest{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff},
+		Fields: []Field{
+			enum("body.protocol", "Test", FitnessProtocols),
+			{Path: "body.stage", Label: "Last stage completed", Min: f64(1), Max: f64(float64(maxStage)), Whole: true,
+				Words: "must be between {min} and {max} (the stages of the test); got {got}"},
+			wholeRng("body.hr_peak", "Peak heart rate", "bpm", MinHR, MaxHR),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example: `{"protocol":"ift_30_15","stage":23}`,
+		Cases: []Case{
+			{"a stage the table from 10 km/h does not have", `{"start_kmh":10,"stage":32}`, "body.stage"},
+			{"a first stage at neither 8 nor 10 km/h", `{"start_kmh":9}`, "body.start_kmh"},
+			{"a speed between stages", `{"stage":null,"vift_kmh":19.3}`, "body.vift_kmh"},
+			{"no stage", `{"stage":null}`, "body.stage"},
+			{"sprint times on a 30-15 IFT", `{"sprint_s":[4,4.1]}`, "body.sprint_s"},
+			{"one sprint", `{"protocol":"repeated_sprint","stage":null,"sprint_s":[4]}`, "body.sprint_s"},
+			{"a sprint time out of range", `{"protocol":"repeated_sprint","stage":null,"sprint_s":[4,0]}`, "body.sprint_s[1]"},
+			{"a sprint length out of range", `{"protocol":"repeated_sprint","stage":null,"sprint_s":[4,4.1],"distance_m":300}`, "body.distance_m"},
+			{"no maximal heart rate", `{"protocol":"hr_max","stage":null}`, "body.hr_max_bpm"},
+			{"a maximal heart rate out of range", `{"protocol":"hr_max","stage":null,"hr_max_bpm":250}`, "body.hr_max_bpm"},
+			{"a peak heart rate on a maximal heart rate", `{"protocol":"hr_max","stage":null,"hr_max_bpm":190,"hr_peak":188}`, "body.hr_peak"},
+		},
+		validate: validateFitnessTest,
+	},
+	{
+		Name: KindStrength, Screen: "/tests", Label: "strength test", Plural: "strength tests", Body: Strength{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff},
+		Fields: []Field{
+			textField("body.exercise", "Exercise", MaxShortLen),
+			{Path: "body.sets[].load_kg", Label: "Load", Unit: "kg", Min: f64(0), MinAbove: true, Max: f64(MaxLoadKg),
+				Words: "must be more than {min} and at most {max} kg; got {got}"},
+			wholeRng("body.sets[].reps", "Reps", "repetitions", 1, MaxStrengthReps),
+			wholeRng("body.sets[].rir", "Reps in reserve", "repetitions in reserve", 0, MaxRIR),
+			rng("body.sets[].mpv_ms", "Bar speed", "m/s", MinMPV, MaxMPV),
+			rng("body.min_velocity_ms", "Bar speed at a 1RM", "m/s (the bar speed at a 1RM)", MinVelocityLo, MinVelocityHi),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example: `{"exercise":"back squat","sets":[{"load_kg":100,"reps":5}]}`,
+		Cases: []Case{
+			{"no exercise", `{"exercise":""}`, "body.exercise"},
+			{"no sets", `{"sets":[]}`, "body.sets"},
+			{"a bar speed that rises with the load", `{"sets":[{"load_kg":40,"reps":5,"mpv_ms":1},{"load_kg":60,"reps":4,"mpv_ms":0.75},{"load_kg":80,"reps":3,"mpv_ms":0.8}]}`, "body.sets[2].mpv_ms"},
+		},
+		validate: validateStrength,
 	},
 }
 
@@ -417,6 +484,7 @@ type Vocabulary struct {
 	MaxNameLen     int        `json:"max_name_len"`
 	MaxNoteLen     int        `json:"max_note_len"`
 	Protocols      []Protocol `json:"protocols"`
+	Exercises      []string   `json:"exercises"`
 	Modalities     []Option   `json:"modalities"`
 	Levels         []string   `json:"levels"`
 	// Emphases are the training emphases a plan week and a session's
@@ -447,6 +515,10 @@ func Vocab() Vocabulary {
 		Levels: Levels, Emphases: Emphases, CR10: CR10, Cases: map[string][]Case{},
 		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
 			"max_emphasis_ids": MaxEmphasisIDs, "max_travel_hours": MaxTravelHours}}
+	for k, x := range testLimits {
+		v.Limits[k] = x
+	}
+	v.Exercises = Exercises
 	for _, k := range Registry {
 		w := k.Writers
 		if w == nil {

@@ -43,6 +43,12 @@ type Protocol struct {
 	Sets     int     `json:"sets"`
 	SetRestS float64 `json:"set_rest_s"`
 	Note     string  `json:"note,omitempty"`
+	// A template prescribed from a test carries either a share of V_IFT
+	// (each fighter's distance per repetition comes from their latest
+	// 30-15 IFT) or a band of HRmax (each fighter's target heart rates).
+	PctVIFT float64 `json:"pct_vift,omitempty"`
+	HRLoPct float64 `json:"hr_lo_pct,omitempty"`
+	HRHiPct float64 `json:"hr_hi_pct,omitempty"`
 }
 
 // Minutes is the template's planned length (IntervalsSeconds / 60).
@@ -66,10 +72,17 @@ var Protocols = []Protocol{
 	{ID: "rounds_10x2", Label: "Rounds 10 × 2 min / 1 min", Modality: "bag", WorkS: 120, RestS: 60, Reps: 10, Sets: 1,
 		Note: "2-minute rounds"},
 	{ID: "shuttle_30_15", Label: "Shuttle 30 s on / 15 s off", Modality: "shuttle", WorkS: 30, RestS: 15, Reps: 8, Sets: 2, SetRestS: 180},
-	{ID: "short_15_15", Label: "Short intervals 15 s / 15 s", Modality: "run", WorkS: 15, RestS: 15, Reps: 12, Sets: 3, SetRestS: 180},
+	// Short supramaximal runs at 90 % of V_IFT and longer ones at 80 %
+	// (Buchheit 2008's use of V_IFT; the shares as a coaching source gives
+	// them, REFERENCES §9 — from memory for Buchheit's own table).
+	{ID: "short_15_15", Label: "Short intervals 15 s / 15 s", Modality: "run", WorkS: 15, RestS: 15, Reps: 12, Sets: 3, SetRestS: 180,
+		PctVIFT: 90},
+	{ID: "long_3min_80", Label: "Long runs 4 × 3 min / 2 min", Modality: "run", WorkS: 180, RestS: 120, Reps: 4, Sets: 1,
+		PctVIFT: 80},
 	{ID: "on20_off10_x8", Label: "20 s on / 10 s off × 8", Modality: "bike", WorkS: 20, RestS: 10, Reps: 8, Sets: 1},
+	// 4 × 4 min at 90–95 % of HRmax (Helgerud et al. 2007; band from memory).
 	{ID: "long_4x4", Label: "Long intervals 4 × 4 min / 3 min", Modality: "run", WorkS: 240, RestS: 180, Reps: 4, Sets: 1,
-		Note: "active recovery between efforts"},
+		Note: "active recovery between efforts", HRLoPct: 90, HRHiPct: 95},
 	{ID: "bag_30_30", Label: "Bag sprints 30 s / 30 s", Modality: "bag", WorkS: 30, RestS: 30, Reps: 10, Sets: 2, SetRestS: 120},
 }
 

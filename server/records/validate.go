@@ -14,7 +14,7 @@ var (
 	Sexes        = []string{"f", "m"}
 	WeighInTypes = []string{"day_before", "same_day"}
 	Levels       = []string{"rest", "low", "medium", "medium_heavy", "heavy", "taper"}
-	JumpTests    = []string{"cmj"}
+	JumpTests    = []string{JumpCMJ, JumpDrop}
 	JumpMethods  = []string{"mat", "force_plate", "other"}
 	Activities   = []string{"spar", "pads", "bag", "drill", "other"}
 	SessionTypes = []string{"boxing", "spar", "conditioning", "strength", "other"}
@@ -359,11 +359,12 @@ func validateCheckin(c *check, raw json.RawMessage) (any, error) {
 
 func validateJump(c *check, raw json.RawMessage) (any, error) {
 	var b Jump
-	if _, err := decodeBody(raw, &b, KindJump); err != nil {
+	present, err := decodeBody(raw, &b, KindJump)
+	if err != nil {
 		return nil, err
 	}
 	if b.Test == "" {
-		b.Test = "cmj"
+		b.Test = JumpCMJ
 	}
 	if err := oneOf("body.test", b.Test, JumpTests); err != nil {
 		return nil, err
@@ -413,6 +414,9 @@ func validateJump(c *check, raw json.RawMessage) (any, error) {
 		b.MeanCm += h
 	}
 	b.MeanCm = round4(b.MeanCm / float64(len(b.HeightsCm)))
+	if err := dropJump(&b, present); err != nil {
+		return nil, err
+	}
 	if err := text("body.session", b.Session, MaxShortLen, false); err != nil {
 		return nil, err
 	}
@@ -525,6 +529,9 @@ func validateIntervals(c *check, raw json.RawMessage) (any, error) {
 	b.LoadAU = 0
 	if b.RPE != nil {
 		b.LoadAU = SessionLoad(*b.RPE, b.Minutes)
+	}
+	if err := intervalTargets(&b, present); err != nil {
+		return nil, err
 	}
 	if err := note("body.note", b.Note); err != nil {
 		return nil, err
