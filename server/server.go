@@ -155,6 +155,7 @@ func (s *Server) Handler() http.Handler {
 	api.HandleFunc("/records/{id}/history", s.serve(s.handleHistory)).Methods(http.MethodGet)
 	s.routeAccounts(api)
 	s.routeAthletes(api)
+	s.routeTests(api)
 	api.PathPrefix("/").HandlerFunc(s.serve(func(w http.ResponseWriter, r *http.Request) error {
 		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
 	}))

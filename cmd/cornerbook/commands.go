@@ -181,6 +181,55 @@ func writeFlagsText(w io.Writer, fl []flags.Flag, names map[string]string) {
 	}
 }
 
+func runTests(args []string, stdout io.Writer) error {
+	fs := flag.NewFlagSet("tests", flag.ContinueOnError)
+	data := dataFlag(fs)
+	athlete := fs.String("athlete", "", "the athlete id (required)")
+	day := fs.String("day", "", "as of this day, YYYY-MM-DD (default today)")
+	asJSON := fs.Bool("json", false, "JSON instead of one line per test")
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 {
+		return errUsage
+	}
+	if *athlete == "" {
+		return errors.New("--athlete ID is required: the athlete whose tests to list")
+	}
+	if *day != "" {
+		if _, err := time.Parse("2006-01-02", *day); err != nil {
+			return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
+		}
+	}
+	db, err := openData(*data, time.Now)
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	srv, err := server.New(server.Config{Store: db})
+	if err != nil {
+		return err
+	}
+	rep, err := srv.Tests(*athlete, *day)
+	if err != nil {
+		return err
+	}
+	if *asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(rep)
+	}
+	fmt.Fprintf(stdout, "%s — tests up to %s\n", rep.Name, rep.Day)
+	for _, e := range rep.Tests {
+		line := fmt.Sprintf("%s  %-20s %s", e.Day, e.Label, e.Summary)
+		if c := e.Change; c != nil {
+			line += "; " + server.ChangeWords(e, *c)
+		}
+		fmt.Fprintln(stdout, line)
+	}
+	if len(rep.Tests) == 0 {
+		fmt.Fprintln(stdout, "no tests recorded")
+	}
+	return nil
+}
+
 func runBackup(args []string, stdout io.Writer) error {
 	fs := flag.NewFlagSet("backup", flag.ContinueOnError)
 	data := dataFlag(fs)

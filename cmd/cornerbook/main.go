@@ -37,6 +37,8 @@ func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = runFlags(args, stdout)
 	case "plan":
 		err = runPlan(args, stdout)
+	case "tests":
+		err = runTests(args, stdout)
 	case "backup":
 		err = runBackup(args, stdout)
 	case "restore":
@@ -65,6 +67,7 @@ const usage = `Usage:
   cornerbook export  --data DIR [--kind K] [--csv]
   cornerbook flags   --data DIR --day YYYY-MM-DD [--athlete ID] [--json]
   cornerbook plan    --data DIR --athlete ID [--day YYYY-MM-DD] [--json]
+  cornerbook tests   --data DIR --athlete ID [--day YYYY-MM-DD] [--json]
   cornerbook backup  --data DIR FILE        (also while the hub runs: it asks the hub)
   cornerbook restore --data DIR FILE        (with the hub stopped)
 

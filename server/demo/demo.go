@@ -17,6 +17,7 @@ import (
 	"math/rand/v2"
 	"time"
 
+	"cornerbook/server/fitness"
 	"cornerbook/server/plan"
 	"cornerbook/server/records"
 	"cornerbook/storage"
@@ -52,6 +53,7 @@ type fighter struct {
 	baseCMJ   float64
 	refLoad   float64
 	weeks     []records.Week
+	aid       string // the athlete record's id, once added
 }
 
 // levelLoad is the share of the reference week each planned level asks
@@ -221,12 +223,17 @@ func (g *gen) build() []devsync.Record {
 	for _, f := range fs {
 		g.fighter(f, start)
 	}
+	// The tests come last, so the camp's other draws stay as they were.
+	for _, f := range fs {
+		g.tests(f)
+	}
 	return g.out
 }
 
 func (g *gen) fighter(f *fighter, start int) {
 	phone := "demo-phone-" + f.key
 	aid := g.add(records.KindAthlete, "", start, 6, 0, coachTablet, records.Athlete{Name: f.name, Units: f.units, BirthYear: f.birthYear, Sex: f.sex})
+	f.aid = aid
 
 	campStart, boutDay := f.campStart, f.boutIn
 	weighDay := boutDay - 1
@@ -421,5 +428,64 @@ func (g *gen) story(f *fighter, aid, phone string) {
 		// An earlier knockdown, cleared by the doctor the next day.
 		inc := g.add(records.KindIncident, aid, -30, 16, 30, coachTablet, records.Incident{Type: "knockdown", Note: "Slipped and caught a jab; stood up at once."})
 		g.add(records.KindClearance, aid, -29, 10, 0, coachTablet, records.Clearance{Incident: inc, By: "Camp doctor", Note: "Examined; no signs of concussion."})
+	}
+}
+
+// demoTests are each fighter's invented test results: a 30-15 IFT at the
+// start of camp and again four weeks in (final stages), six 30 m sprints,
+// a strength test and drop jumps from 40 cm; Kofi's maximal heart rate was
+// measured, the others' is predicted from their age.
+var demoTests = map[string]struct {
+	stages        [2]int
+	sprints       []float64
+	hrMax         int
+	exercise      string
+	sets          []records.StrengthSet
+	flight, touch [2][]float64
+}{
+	"tomas": {stages: [2]int{22, 23}, sprints: []float64{4.31, 4.35, 4.38, 4.44, 4.47, 4.52},
+		exercise: "back squat", sets: []records.StrengthSet{{LoadKg: 60, Reps: 5, MPV: ptr(0.98)}, {LoadKg: 80, Reps: 4, MPV: ptr(0.77)}, {LoadKg: 100, Reps: 3, RIR: ptr(4), MPV: ptr(0.55)}},
+		flight: [2][]float64{{512, 520, 505}, {521, 530, 518}}, touch: [2][]float64{{215, 208, 222}, {205, 199, 210}}},
+	"ines": {stages: [2]int{18, 20}, sprints: []float64{4.92, 4.95, 5.03, 5.08, 5.11, 5.19},
+		exercise: "trap-bar deadlift", sets: []records.StrengthSet{{LoadKg: 70, Reps: 5, RIR: ptr(2)}, {LoadKg: 80, Reps: 5, RIR: ptr(1)}, {LoadKg: 85, Reps: 4, RIR: ptr(0)}},
+		flight: [2][]float64{{448, 455, 441}, {452, 460, 449}}, touch: [2][]float64{{238, 231, 245}, {230, 226, 236}}},
+	"kofi": {stages: [2]int{24, 25}, sprints: []float64{4.12, 4.15, 4.19, 4.26, 4.30, 4.37}, hrMax: 196,
+		exercise: "back squat", sets: []records.StrengthSet{{LoadKg: 70, Reps: 5, MPV: ptr(1.01)}, {LoadKg: 90, Reps: 4, MPV: ptr(0.80)}, {LoadKg: 110, Reps: 3, RIR: ptr(4), MPV: ptr(0.57)}},
+		flight: [2][]float64{{530, 538, 526}, {524, 531, 520}}, touch: [2][]float64{{198, 204, 201}, {210, 214, 207}}},
+	"mateo": {stages: [2]int{23, 23}, sprints: []float64{4.20, 4.22, 4.29, 4.33, 4.41, 4.45},
+		exercise: "bench press", sets: []records.StrengthSet{{LoadKg: 50, Reps: 5, MPV: ptr(0.92)}, {LoadKg: 65, Reps: 4, MPV: ptr(0.71)}, {LoadKg: 80, Reps: 3, RIR: ptr(4), MPV: ptr(0.49)}},
+		flight: [2][]float64{{540, 546, 535}, {544, 550, 541}}, touch: [2][]float64{{220, 214, 226}, {212, 209, 218}}},
+}
+
+// tests adds one fighter's tests: the first week of camp and four weeks
+// later, on the laptop in the gym.
+func (g *gen) tests(f *fighter) {
+	t, ok := demoTests[f.key]
+	if !ok {
+		return
+	}
+	first, second := f.campStart+1, f.campStart+29
+	for i, d := range []int{first, second} {
+		g.add(records.KindFitnessTest, f.aid, d, 16, 0, coachTablet, records.FitnessTest{Protocol: records.ProtocolIFT, Stage: t.stages[i]})
+		g.add(records.KindJump, f.aid, d, 11, 0, coachTablet, records.Jump{Test: records.JumpDrop, Method: "mat", DropCm: 40, FlightMs: t.flight[i], ContactMs: t.touch[i]})
+	}
+	g.add(records.KindFitnessTest, f.aid, first+1, 10, 0, coachTablet, records.FitnessTest{Protocol: records.ProtocolSprint, SprintS: t.sprints, DistanceM: 30})
+	g.add(records.KindStrength, f.aid, first+2, 11, 0, coachTablet, records.Strength{Exercise: t.exercise, Sets: t.sets})
+	if t.hrMax > 0 {
+		g.add(records.KindFitnessTest, f.aid, first, 16, 30, coachTablet, records.FitnessTest{Protocol: records.ProtocolHRMax, HRMaxBpm: t.hrMax})
+	}
+	// Short intervals prescribed from each IFT (15 s at 90 % of V_IFT,
+	// 2 × 12), logged as done a few days later; today's is prescribed and
+	// not yet done.
+	for i, d := range []int{first + 3, second + 3, 0} {
+		vift := 8 + 0.5*float64(t.stages[min(i, 1)]-1)
+		iv := records.Intervals{Protocol: "short_15_15", Modality: "run", WorkS: 15, RestS: 15, Reps: 12, Sets: 2, SetRestS: 180,
+			PctVIFT: ptr(90.0), VIFTKmh: vift}
+		if d < 0 {
+			target := fitness.RepDistanceM(vift, 90, 15)
+			iv.DoneReps, iv.DoneRepM = ptr(24-i), ptr(math.Round(target*(0.97-0.02*float64(i))))
+			iv.HRPeak, iv.RPE = ptr(178+3*i), ptr(8.0)
+		}
+		g.add(records.KindIntervals, f.aid, d, 17, 0, coachTablet, iv)
 	}
 }
