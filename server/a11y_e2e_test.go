@@ -136,6 +136,20 @@ func appScreens(h *ringHub) []appScreen {
 				return nil
 			}},
 		{name: "intervals", path: "/intervals", ready: q("screen-intervals")},
+		{name: "intervals-targets", path: "/intervals?state=targets", ready: `document.querySelectorAll('[data-testid^="intervals-target-"]:not(:empty)').length === 2 && !document.querySelector('[data-testid="intervals-targets"]').textContent.includes('…')`,
+			setup: func(ctx context.Context) error {
+				for _, id := range []string{kofi, mateo} {
+					if err := pwatest.ClickUntil(ctx, "intervals-athlete-"+id, pwatest.Pressed("intervals-athlete-"+id), 3); err != nil {
+						return err
+					}
+				}
+				return nil
+			}},
+		{name: "tests", path: "/tests?athlete=" + kofi, ready: q("screen-tests") + ` && document.querySelectorAll('[data-testid="test-entry"]').length >= 7`},
+		{name: "tests-strength", path: "/tests?athlete=" + kofi + "&state=strength", ready: q("st-sets"),
+			setup: func(ctx context.Context) error {
+				return pwatest.ClickUntil(ctx, "test-type-strength", pwatest.Pressed("test-type-strength"), 3)
+			}},
 		{name: "session", path: "/session", ready: q("screen-session")},
 		{name: "incident", path: "/incident", ready: q("screen-incident")},
 		{name: "clearance", path: "/clearance?athlete=" + mateo, ready: q("screen-clearance") + ` && document.querySelector('[data-testid^="clearance-incident-"]')`},

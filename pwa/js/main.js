@@ -5,7 +5,7 @@ import { onStatus, startSync } from './sync.js';
 import { deviceId, getMeta } from './db.js';
 import { setClockOffset } from './record.js';
 import { Home, Checkin, Session, Incident, Clearance } from './screens.js';
-import { Jumps, Rounds, Intervals } from './ring.js';
+import { Jumps, Rounds } from './ring.js';
 import { Today } from './today.js';
 import { Settings } from './settings.js';
 import { Join } from './join.js';
@@ -13,7 +13,7 @@ import { COACH_ROUTES } from './coach/routes.js';
 import { Camp } from './camp.js';
 
 const ROUTES = {
-  '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds, '/intervals': Intervals,
+  '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds,
   '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings, '/join': Join,
   ...COACH_ROUTES,
   '/camp': Camp,

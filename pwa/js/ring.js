@@ -1,4 +1,4 @@
-// Coach screens: jump grid, rounds ringside, conditioning intervals.
+// Coach screens: jump grid and rounds ringside (intervals: coach/intervals.js).
 import {
   html, useState, useEffect, useAthletes, useAthlete, AthleteSelect, NoAthletes, Choice, SaveLine, savedState,
   useAsync, useVersion, fmt, plural,
@@ -6,7 +6,6 @@ import {
 import { save, remove, getRecord, byDay } from './db.js';
 import { localDay, parseNum, attemptStats, heightFromFlightMs } from './record.js';
 import { uuidv7 } from './uuid.js';
-import { VOCAB } from './vocab.js';
 import { fieldOf } from './checks.js';
 import { openIncidents } from './screens.js';
 import { useStanding, RoundClock, AthleteChips, useSparGate, RingsideIncident, JumpRef } from './ringside/index.js';
@@ -206,79 +205,4 @@ export function Rounds() {
     <${SaveLine} state=${state} />
     ${!editing && html`<${RingsideIncident} list=${list} chosen=${chosen} />`}
   </section>`;
-}
-
-// ---------------- conditioning intervals ----------------
-// Templates, modalities, labels, units and limits come from the hub's
-// registry (/js/vocab.js); the hub's checks run on save.
-export const PROTOCOLS = VOCAB.protocols;
-const MODALITIES = VOCAB.modalities.map((m) => [m.id, m.label]);
-const labelled = (k, fallback) => { const x = fieldOf('intervals', `body.${k}`); return [k, x ? x.label : fallback, x && x.unit && !x.unit.includes(' ') ? x.unit : '']; };
-const NUM_FIELDS = [labelled('work_s'), labelled('rest_s'), labelled('reps'), labelled('sets'), labelled('set_rest_s')];
-const OPT_FIELDS = [labelled('done_reps', 'Reps completed'), labelled('hr_peak'), labelled('hr_mean'), ['rpe', 'RPE (0–10)', '']];
-
-export function Intervals() {
-  const list = useAthletes();
-  const editing = useEdit('intervals');
-  const [athlete, pick] = useAthlete(list, editing && editing.athlete);
-  const [f, setF] = useState({ modality: 'bike', sets: '1', set_rest_s: '0' });
-  const [state, setState] = useState(null);
-  const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); };
-  useEffect(() => {
-    if (!editing) return;
-    const b = editing.body || {};
-    const g = {};
-    for (const [k] of NUM_FIELDS.concat(OPT_FIELDS)) if (b[k] != null) g[k] = String(b[k]);
-    setF({ ...g, modality: b.modality || 'other', protocol: b.protocol });
-  }, [editing]);
-  if (list && !list.length) return html`<${NoAthletes} />`;
-  const usePreset = (p) => setF((o) => ({ ...o, protocol: p.id, modality: p.modality || o.modality, work_s: String(p.work_s), rest_s: String(p.rest_s), reps: String(p.reps), sets: String(p.sets), set_rest_s: String(p.set_rest_s) }));
-  const n = (k) => parseNum(f[k]);
-  const total = n('reps') * n('sets');
-  const minutes = (n('work_s') + n('rest_s')) * total / 60 + (n('sets') - 1) * (n('set_rest_s') || 0) / 60;
-
-  const submit = async (e) => {
-    e.preventDefault();
-    if (!athlete) return setState({ error: 'Choose the athlete first.' });
-    const body = { modality: f.modality };
-    if (f.protocol) body.protocol = f.protocol;
-    for (const [k, l] of NUM_FIELDS) {
-      const x = n(k);
-      if (!Number.isFinite(x)) return setState({ error: `${l}: type a number.` });
-      body[k] = k === 'reps' || k === 'sets' ? Math.round(x) : x;
-    }
-    for (const [k, l] of OPT_FIELDS) {
-      if (!f[k] || !f[k].trim()) continue;
-      const x = n(k);
-      if (!Number.isFinite(x)) return setState({ error: `${l}: type a number.` });
-      body[k] = k === 'rpe' ? x : Math.round(x);
-    }
-    setState({ saving: true });
-    try {
-      await save({ id: editing && editing.id, kind: 'intervals', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState(savedState(DONE));
-    } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
-  };
-  const field = ([k, l, u]) => html`<label for=${`intervals-${k}`}>${l}</label>
-    <div class="unit-input"><input id=${`intervals-${k}`} data-testid=${`intervals-${k}`} inputmode="decimal" value=${f[k] || ''}
-      onInput=${(e) => set(k, e.target.value)} />${u && html`<span class="unit">${u}</span>`}</div>`;
-
-  return html`<form onSubmit=${submit} data-testid="screen-intervals" novalidate>
-    <h1>Conditioning intervals</h1>
-    ${!editing && html`<${AthleteSelect} list=${list} value=${athlete ? athlete.id : ''} onChange=${pick} />`}
-    <label>Protocol</label>
-    <div class="row" role="group" aria-label="Protocol">
-      ${PROTOCOLS.map((p) => html`<${Choice} value=${p.id} current=${f.protocol} onPick=${() => usePreset(p)} testid=${`intervals-protocol-${p.id}`}>${p.label}</${Choice}>`)}
-    </div>
-    <label>Modality</label>
-    <div class="row" role="group" aria-label="Modality">
-      ${MODALITIES.map(([x, l]) => html`<${Choice} value=${x} current=${f.modality} onPick=${(v) => set('modality', v)} testid=${`intervals-modality-${x}`}>${l}</${Choice}>`)}
-    </div>
-    ${NUM_FIELDS.map(field)}
-    <p class="num muted" data-testid="intervals-summary">${Number.isFinite(minutes) && total > 0 ? `${total} reps, about ${fmt(minutes, 0)} min in all` : ''}</p>
-    <h2>After the session</h2>
-    ${OPT_FIELDS.map(field)}
-    <button class="primary" type="submit" data-testid="intervals-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save intervals'}</button>
-    <${SaveLine} state=${state} />
-  </form>`;
 }

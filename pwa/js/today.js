@@ -3,12 +3,16 @@ import { html, useState, useAsync, useVersion, useAthletes, usePending, navigate
 import { byDay, remove, restore } from './db.js';
 import { localDay, fromKg } from './record.js';
 import { INCIDENTS, CR10 } from './screens.js';
+import { testLine, targetWords, doneWords } from './testwords.js';
 
 import { VOCAB } from './vocab.js';
 
 // Each kind's words and the screen that corrects it come from the hub's
 // registry of record kinds.
 const EDIT_ROUTE = Object.fromEntries(Object.entries(VOCAB.kinds).filter(([k, v]) => v.screen && v.dated).map(([k, v]) => [k, v.screen]));
+// editRoute: the screen that corrects a record (drop jumps are entered
+// with the tests, not on the CMJ grid).
+const editRoute = (r) => (r.kind === 'jump' && r.body && r.body.test === 'dj' ? '/tests' : EDIT_ROUTE[r.kind]);
 const KIND_NAME = Object.fromEntries(Object.entries(VOCAB.kinds).map(([k, v]) => [k, v.label[0].toUpperCase() + v.label.slice(1)]));
 const ACT = { spar: 'sparring', pads: 'pads', bag: 'bag', drill: 'drill', other: 'other' };
 const INT = { 1: 'easy', 2: 'moderate', 3: 'hard' };
@@ -32,12 +36,18 @@ export function summary(r, units) {
       if (b.usg != null) parts.push(`USG ${b.usg.toFixed(3)}`);
       return parts.join(', ');
     }
+    case 'fitness_test': case 'strength': return testLine(r);
     case 'jump': {
+      if (b.test === 'dj') return testLine(r);
       const v = b.heights_cm && b.heights_cm.length ? b.heights_cm.map((x) => `${x} cm`) : (b.flight_ms || []).map((x) => `${x} ms`);
       return `CMJ ${v.join(', ')}${b.best_cm ? ` — best ${fmt(b.best_cm, 1)} cm, mean ${fmt(b.mean_cm, 1)} cm` : ''}`;
     }
     case 'round': return `${ACT[b.activity] || b.activity}, ${INT[b.intensity] || ''}, ${fmt(b.seconds / 60, 0)} min`;
-    case 'intervals': return `${b.modality}: ${b.work_s} s / ${b.rest_s} s × ${b.reps}${b.sets > 1 ? ` × ${b.sets} sets` : ''}${b.rpe != null ? `, RPE ${b.rpe}` : ''}`;
+    case 'intervals': {
+      const t = targetWords(b);
+      const d = doneWords(b);
+      return `${b.modality}: ${b.work_s} s / ${b.rest_s} s × ${b.reps}${b.sets > 1 ? ` × ${b.sets} sets` : ''}${t ? ` — prescribed ${t}` : ''}${d ? ` — done ${d}` : (b.rpe != null ? `, RPE ${b.rpe}` : '')}`;
+    }
     case 'session': return `${b.type}, ${b.minutes} min, RPE ${b.rpe}${CR10[b.rpe] ? ` (${CR10[b.rpe]})` : ''} = ${fmt(b.rpe * b.minutes, 0)} AU`;
     case 'incident': return (INCIDENTS.find(([v]) => v === b.type) || [b.type, b.type])[1] + (b.note ? ` — ${b.note}` : '');
     case 'clearance': return `cleared by ${b.by}`;
@@ -102,7 +112,7 @@ export function Today() {
               ${r.deleted && html`<span class="tag">deleted</span>`}</div>
             ${r.deleted
               ? html`<button class="secondary" type="button" data-testid=${`restore-${r.id}`} onClick=${() => undel(r.id)}>Restore</button>`
-              : html`${EDIT_ROUTE[r.kind] && html`<button class="secondary" type="button" data-testid=${`edit-${r.id}`} onClick=${() => navigate(`${EDIT_ROUTE[r.kind]}?edit=${r.id}`)}>Edit</button>`}
+              : html`${editRoute(r) && html`<button class="secondary" type="button" data-testid=${`edit-${r.id}`} onClick=${() => navigate(`${editRoute(r)}?edit=${r.id}`)}>Edit</button>`}
                 <button class="secondary danger" type="button" data-testid=${`delete-${r.id}`} onClick=${() => del(r.id)}>Delete</button>`}
           </div>`;
         })}

@@ -6,6 +6,7 @@ import { html, useState, useEffect, useRef, useAthletes, Link } from '../ui.js';
 import { hubGet, remember, recall } from './api.js';
 import { draw, dayTs, countPoints, cssVar } from './charts.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
+import { TestCharts } from './testcharts.js';
 
 const SPAN_DAYS = 42;
 
@@ -86,6 +87,7 @@ export function AthletePage() {
       <${SparChart} s=${st.s} />
       <${WellnessChart} s=${st.s} />
     </div>`}
+    ${id && html`<h2 key=${'t' + scheme}>Tests and prescriptions</h2><${TestCharts} key=${'c' + scheme} id=${id} day=${day} />`}
   </section>`;
 }
 

@@ -1,6 +1,7 @@
 // Words, units and small helpers shared by the coach's screens.
 import { html } from '../ui.js';
 import { KG_PER_LB, localDay } from '../record.js';
+import { testLine } from '../testwords.js';
 
 // Plain-words names of the hub's flag rules (rule ids are fixed).
 export const RULE_NAMES = {
@@ -113,7 +114,8 @@ export function recordSummary(r, units) {
       if (b.usg != null) parts.push(`USG ${Number(b.usg).toFixed(3)}`);
       return 'Check-in: ' + (parts.join('; ') || 'note only');
     }
-    case 'jump': return `CMJ: ${b.heights_cm ? list(b.heights_cm, 'cm') : list(b.flight_ms, 'ms flight')}${b.best_cm ? `; best ${fmtN(b.best_cm)} cm, mean ${fmtN(b.mean_cm)} cm` : ''}`;
+    case 'fitness_test': case 'strength': return testLine(r);
+    case 'jump': if (b.test === 'dj') return testLine(r); return `CMJ: ${b.heights_cm ? list(b.heights_cm, 'cm') : list(b.flight_ms, 'ms flight')}${b.best_cm ? `; best ${fmtN(b.best_cm)} cm, mean ${fmtN(b.mean_cm)} cm` : ''}`;
     case 'round': return `Round: ${b.activity || ''}, intensity ${b.intensity || '–'} of 3, ${Math.round((b.seconds || 0) / 60)} min${b.partner ? `, with ${b.partner}` : ''}`;
     case 'session': return `Session: ${b.type || ''}${b.focus ? ` (${b.focus.replace('_', ' ')})` : ''}, ${b.minutes} min at RPE ${b.rpe}${b.load_au != null ? ` = ${fmtN(b.load_au, 0)} AU` : ''}`;
     case 'intervals': return `Intervals: ${b.modality || ''} ${b.reps || ''}×${b.work_s || ''} s / ${b.rest_s || ''} s${b.rpe != null ? `, RPE ${b.rpe}` : ''}`;

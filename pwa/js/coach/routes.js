@@ -22,4 +22,6 @@ export const COACH_ROUTES = {
   '/athlete': lazy(() => import('./athlete.js'), 'AthletePage'),
   '/plan': lazy(() => import('./plan.js'), 'Plan'),
   '/sheet': lazy(() => import('./sheet.js'), 'Sheet'),
+  '/tests': lazy(() => import('./tests.js'), 'Tests'),
+  '/intervals': lazy(() => import('./intervals.js'), 'Intervals'),
 };
