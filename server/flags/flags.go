@@ -233,10 +233,13 @@ func Compute(in Input) []Flag {
 }
 
 // Rank orders flags for every list a coach reads: a stand-down in force
-// first (a restriction, not a prompt), then alert, watch, info, and
-// "forming" last. Lower ranks come first.
+// first (a restriction, not a prompt), then sparring logged during one,
+// then alert, watch, info, and "forming" last. Lower ranks come first.
 func Rank(f *Flag) int {
-	if f.Restriction != nil {
+	switch {
+	case f.Restriction != nil:
+		return -2
+	case f.Rule == RuleSparOnHold && f.Level == LevelAlert && f.Status == StatusFlag:
 		return -1
 	}
 	return rank(f)

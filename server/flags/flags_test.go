@@ -20,7 +20,7 @@ func TestComputeSortsMostSeriousFirst(t *testing.T) {
 	if len(fs) < 4 {
 		t.Fatalf("too few flags: %s", describe(fs))
 	}
-	last := -2
+	last := -3
 	for i := range fs {
 		r := Rank(&fs[i])
 		if r < last {

@@ -102,6 +102,14 @@ func TestSparOnHoldRoundsBeforeTheKnockAreNotDuring(t *testing.T) {
 	c.add(kindRound, d(10), map[string]any{"activity": "spar", "seconds": 180, "intensity": 2})
 	c.last().At = d(10) + "T15:20:00+01:00"
 	after := c.last().ID
+	// Sparring in a stand-down ranks right after the stand-down, before
+	// every other alert (urine specific gravity above 1.030 here, an
+	// alert: Casa et al. 2000).
+	c.add(kindCheckin, d(10), map[string]any{"usg": 1.035})
+	all := c.run(d(10))
+	if all[0].Restriction == nil || all[1].Rule != RuleSparOnHold || all[1].Level != LevelAlert || all[2].Rule != RuleHydration {
+		t.Fatalf("order: %s", describe(all))
+	}
 	fs := rule(c.run(d(10)), RuleSparOnHold)
 	if len(fs) != 2 || fs[1].Level != LevelAlert || *fs[1].Value != 1 || fs[1].Inputs[0] != after {
 		t.Fatalf("round after the knock: %s", describe(fs))
