@@ -377,6 +377,19 @@ func TestCoachAthletePageDrawsAllFiveCharts(t *testing.T) {
 		require.NoError(t, err)
 		assert.NotEmpty(t, sum, "%s has a text summary", c)
 	}
+	// Below them, each test's trend and the interval sessions done against
+	// prescribed, as the hub computed them: Tomas ran stage 22 then 23.
+	require.NoError(t, pwatest.Poll(ctx, `(() => { const e = document.querySelector('[data-testid="test-chart-ift_30_15"]');
+		return !!e && Number(e.dataset.points) === 2 && !!e.querySelector('canvas') })()`, 15*time.Second))
+	ift, err := pwatest.Text(ctx, "test-chart-ift_30_15-summary")
+	require.NoError(t, err)
+	assert.Contains(t, ift, "V_IFT 19.0 km/h (stage 23 from 8 km/h)")
+	assert.Contains(t, ift, "+0.5 km/h since 18.5 — within the test's noise (±1.08 km/h at 90 %, Thomas et al. 2016)")
+	require.NoError(t, pwatest.Poll(ctx, `(() => { const e = document.querySelector('[data-testid="test-chart-sessions"]'); return !!e && Number(e.dataset.points) >= 4 })()`, 15*time.Second))
+	done, err := pwatest.Text(ctx, "test-chart-sessions-summary")
+	require.NoError(t, err)
+	assert.Contains(t, done, "1 prescribed, not logged yet")
+
 	// uPlot is loaded on this page only: the app shell does not carry it.
 	var scripts []string
 	require.NoError(t, pwatest.Eval(ctx, `performance.getEntriesByType('resource').map((e) => new URL(e.name).pathname).filter((p) => p.includes('uplot'))`, &scripts))
@@ -580,7 +593,7 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 	require.NoError(t, pwatest.Eval(ctx, "(() => { "+axeSource(t)+"\n; return typeof axe === 'object' })()", nil))
 	screens := []struct{ name, path, ready, more string }{
 		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`, `[data-testid^="review-athlete-"]`},
-		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart')].length === 5 && [...document.querySelectorAll('figure.chart')].every((e) => Number(e.dataset.points) > 0)`, `[data-testid="chart-load"]`},
+		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart:not(.test-chart)')].length === 5 && [...document.querySelectorAll('figure.chart:not(.test-chart)')].every((e) => Number(e.dataset.points) > 0) && document.querySelector('[data-testid="test-charts"]')`, `[data-testid="chart-load"]`},
 		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`, `[data-testid="plan-weeks"]`},
 		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 4 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`, ""},
 	}

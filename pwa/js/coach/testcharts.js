@@ -38,7 +38,7 @@ function Plot({ testid, title, summary, x, ys, spec }) {
     }, () => {});
     return () => { alive = false; if (plot) plot.destroy(); };
   }, [JSON.stringify([x, ys])]);
-  return html`<figure class="chart card" data-testid=${testid} data-points=${pts} aria-labelledby=${`${testid}-t`}>
+  return html`<figure class="chart card test-chart" data-testid=${testid} data-points=${pts} aria-labelledby=${`${testid}-t`}>
     <h2 id=${`${testid}-t`}>${title}</h2>
     <div class="plot" ref=${el} role="img" aria-label=${summary}></div>
     <figcaption class="summary" data-testid=${`${testid}-summary`}>${summary}</figcaption>
@@ -66,7 +66,7 @@ export function TestCharts({ id, day }) {
       const unit = last.unit;
       const summary = `${last.label}: ${last.summary} on ${shortDay(last.day)}; ${changeWords(last)}.${last.better === 'down' ? ' Lower is better.' : ''}`;
       if (g.length < 2) {
-        return html`<figure class="chart card" data-testid=${`test-chart-${last.series}`} data-points="1"><h2>${last.label} (${unit})</h2>
+        return html`<figure class="chart card test-chart" data-testid=${`test-chart-${last.series}`} data-points="1"><h2>${last.label} (${unit})</h2>
           <figcaption class="summary">${summary} A trend appears from the second test.</figcaption></figure>`;
       }
       return html`<${Plot} testid=${`test-chart-${last.series}`} title=${`${last.label} (${unit})`} summary=${summary}
