@@ -66,25 +66,6 @@ func (s *appServer) down() {
 	}
 }
 
-func (s *appServer) up(t *testing.T) {
-	var ln net.Listener
-	var err error
-	for i := 0; i < 50; i++ {
-		if ln, err = net.Listen("tcp", s.addr); err == nil {
-			break
-		}
-		time.Sleep(20 * time.Millisecond)
-	}
-	require.NoError(t, err)
-	s.serve(ln)
-}
-
-func (s *appServer) requests() int {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	return s.hits
-}
-
 type logBuf struct {
 	mu sync.Mutex
 	b  bytes.Buffer

@@ -252,7 +252,8 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 // lastWithPrefix returns the last version key/value of prefix (id "|").
 func lastWithPrefix(c *bolt.Cursor, prefix []byte) ([]byte, []byte) {
 	// A version key is prefix + 8 bytes, so prefix + 9×0xff is above all.
-	k, v := c.Seek(append(bytes.Clone(prefix), bytes.Repeat([]byte{0xff}, 9)...))
+	var v []byte
+	k, _ := c.Seek(append(bytes.Clone(prefix), bytes.Repeat([]byte{0xff}, 9)...))
 	if k == nil {
 		k, v = c.Last()
 	} else {

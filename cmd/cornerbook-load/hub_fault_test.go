@@ -9,7 +9,6 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"runtime"
 	"strconv"
 	"sync"
 	"syscall"
@@ -43,7 +42,8 @@ func cornerbookBin(t testing.TB) string {
 	binOnce.Do(func() {
 		goTool, err := exec.LookPath("go")
 		if err != nil {
-			goTool = filepath.Join(runtime.GOROOT(), "bin", "go")
+			binErr = fmt.Errorf("the go command is not on PATH: %w", err)
+			return
 		}
 		binDir, binErr = os.MkdirTemp("", "cornerbook-bin-")
 		if binErr != nil {

@@ -422,16 +422,6 @@ func WrittenBy(role string) []string {
 	return out
 }
 
-// Field finds a field by path ("body.mass_kg", or "body.heights_cm[]").
-func (k *Kind) Field(path string) (Field, bool) {
-	for _, f := range k.Fields {
-		if f.Path == path {
-			return f, true
-		}
-	}
-	return Field{}, false
-}
-
 // Range is the field's lowest and highest value, given the current year
 // for fields bounded by an age.
 func (f Field) Range(year int) (lo, hi float64, ok bool) {

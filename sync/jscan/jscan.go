@@ -48,15 +48,6 @@ func (s *Scanner) Byte(c byte) bool {
 	return false
 }
 
-// Peek returns the next byte after white space, 0 at the end.
-func (s *Scanner) Peek() byte {
-	s.Space()
-	if s.Pos < len(s.Buf) {
-		return s.Buf[s.Pos]
-	}
-	return 0
-}
-
 // End: nothing but white space is left.
 func (s *Scanner) End() bool {
 	s.Space()
