@@ -87,6 +87,9 @@ func CanRead(d Device, rec *devsync.Record) bool {
 		if rec.Athlete == "" {
 			return rec.Kind == records.KindSettings
 		}
+		if rec.Kind == records.KindNote && rec.Device != d.ID && !records.NoteShared(rec.Body) {
+			return false // a staff-only note never reaches an athlete's device
+		}
 		return rec.Athlete == d.Athlete
 	}
 	return false
@@ -120,7 +123,15 @@ func CanOverwrite(d Device, stored, incoming *devsync.Record) error {
 	if stored == nil {
 		return nil
 	}
-	return canWriteContent(d, stored, "the stored version of this record: ")
+	if err := canWriteContent(d, stored, "the stored version of this record: "); err != nil {
+		return err
+	}
+	// An athlete's device edits, deletes and restores only what it wrote
+	// (the version it would replace is its own).
+	if d.Role == RoleAthlete && stored.Device != d.ID {
+		return forbid("id", "this %s was last written by another device; an athlete's device changes only its own entries — ask the coach", kindWords(stored.Kind))
+	}
+	return nil
 }
 
 func canWriteContent(d Device, rec *devsync.Record, prefix string) error {
@@ -149,6 +160,14 @@ func canWriteContent(d Device, rec *devsync.Record, prefix string) error {
 		return nil
 	}
 	return forbid("", "this device has no role")
+}
+
+// kindWords is a kind's words for one entry.
+func kindWords(k string) string {
+	if kind, ok := records.KindOf(k); ok {
+		return kind.Label
+	}
+	return "entry"
 }
 
 func kindName(k string) string {

@@ -172,8 +172,15 @@ func TestCanOverwrite(t *testing.T) {
 	// Nor turn a jump staff recorded into a check-in.
 	jump := rec(staff, records.KindJump, "own")
 	assert.Equal(t, "kind", forbiddenField(t, CanOverwrite(athA, jump, stolen)))
-	// Editing its own check-in, written by staff, is fine.
-	assert.NoError(t, CanOverwrite(athA, rec(staff, records.KindCheckin, "own"), stolen))
+	// Its own athlete's check-in, written by staff: an athlete's device
+	// edits, deletes and restores only what it wrote.
+	err = CanOverwrite(athA, rec(staff, records.KindCheckin, "own"), stolen)
+	assert.Equal(t, "id", forbiddenField(t, err))
+	assert.Contains(t, err.Error(), "only its own entries")
+	assert.NoError(t, CanOverwrite(athA, rec(athA, records.KindCheckin, "own"), stolen), "what it wrote, it may correct")
+	tomb := rec(staff, records.KindNote, "own")
+	tomb.Deleted = true
+	assert.Equal(t, "id", forbiddenField(t, CanOverwrite(athA, tomb, rec(athA, records.KindNote, "own"))), "nor revive what another device deleted")
 	assert.NoError(t, CanOverwrite(athA, nil, stolen))
 
 	// Staff may not turn a coach's decision into a note.
@@ -185,6 +192,26 @@ func TestCanOverwrite(t *testing.T) {
 	// The incoming version is checked first.
 	bad := rec(athA, records.KindBout, "own")
 	assert.Equal(t, "kind", forbiddenField(t, CanOverwrite(athA, nil, bad)))
+}
+
+// A staff-only note never reaches an athlete's device; a note shared with
+// the athlete does, and so does every note the athlete's device wrote.
+func TestPolicyNotesCarryAnAudience(t *testing.T) {
+	staffOnly := rec(staff, records.KindNote, "own")
+	staffOnly.Body = []byte(`{"text":"Watch the left knee; do not tell him yet.","audience":"staff"}`)
+	noAudience := rec(staff, records.KindNote, "own")
+	noAudience.Body = []byte(`{"text":"Older note."}`)
+	shared := rec(staff, records.KindNote, "own")
+	shared.Body = []byte(`{"text":"Great pads today.","audience":"athlete"}`)
+	own := rec(athA, records.KindNote, "own")
+	own.Body = []byte(`{"text":"Left hand sore."}`)
+	assert.False(t, CanRead(athA, staffOnly))
+	assert.False(t, CanRead(athA, noAudience), "no audience: staff only")
+	assert.True(t, CanRead(athA, shared))
+	assert.True(t, CanRead(athA, own))
+	for _, d := range []Device{coach, staff} {
+		assert.True(t, CanRead(d, staffOnly))
+	}
 }
 
 func TestRequireCoach(t *testing.T) {

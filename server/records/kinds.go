@@ -18,6 +18,8 @@
 //   - CR10 (session-RPE anchors), Protocols (interval templates).
 package records
 
+import "encoding/json"
+
 // Kind names, fixed by the record format.
 const (
 	KindAthlete   = "athlete"
@@ -249,8 +251,28 @@ type Decision struct {
 	By   string `json:"by,omitempty"`
 }
 
-// Note is a free note from staff.
+// Note is a free note. Audience says who reads it: "athlete" shares it
+// with the athlete's own device; "staff" (or none) keeps it to the coach
+// and staff. An athlete's device always reads the notes it wrote.
 type Note struct {
-	Text string `json:"text"`
-	By   string `json:"by,omitempty"`
+	Text     string `json:"text"`
+	By       string `json:"by,omitempty"`
+	Audience string `json:"audience,omitempty"`
+}
+
+// Note audiences.
+const (
+	AudienceAthlete = "athlete"
+	AudienceStaff   = "staff"
+)
+
+// Audiences lists the note audiences.
+var Audiences = []string{AudienceAthlete, AudienceStaff}
+
+// NoteShared reports whether a note's body shares it with the athlete.
+func NoteShared(body []byte) bool {
+	var b struct {
+		Audience string `json:"audience"`
+	}
+	return json.Unmarshal(body, &b) == nil && b.Audience == AudienceAthlete
 }

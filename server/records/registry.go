@@ -325,8 +325,9 @@ var Registry = []Kind{
 		Fields: []Field{
 			textField("body.text", "Note", MaxNoteLen),
 			textField("body.by", "By", MaxNameLen),
+			enum("body.audience", "Who reads it", Audiences),
 		},
-		Example:  `{"text":"Left hand sore after pads."}`,
+		Example:  `{"text":"Left hand sore after pads.","audience":"athlete"}`,
 		validate: validateNote,
 	},
 	{

@@ -640,6 +640,11 @@ func validateNote(c *check, raw json.RawMessage) (any, error) {
 	if err := note("body.text", b.Text); err != nil {
 		return nil, err
 	}
+	if b.Audience != "" {
+		if err := oneOf("body.audience", b.Audience, Audiences); err != nil {
+			return nil, err
+		}
+	}
 	if err := text("body.by", b.By, MaxNameLen, false); err != nil {
 		return nil, err
 	}
