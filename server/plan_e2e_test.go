@@ -173,8 +173,18 @@ func TestCoachPlanDoneFollowsASyncedSession(t *testing.T) {
 	require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`(() => { const r = document.querySelector('[data-testid=%q]');
 		return Number(r.dataset.sessions) === %d && Math.abs(Number(r.dataset.load) - %f) < 0.01 })()`, before.Week, before.Sessions+1, before.Load+300), 20*time.Second))
 
+	// The fighter's charts carry the plan against what was done, week by week.
+	require.NoError(t, pwatest.Route(ctx, "/athlete?id="+tomas))
+	require.NoError(t, pwatest.Poll(ctx, `(() => { const e = document.querySelector('[data-testid="chart-plan"]'); return !!e && Number(e.dataset.points) > 0 && Number(e.dataset.series) === 4 })()`, 15*time.Second))
+	sum, err := pwatest.Text(ctx, "chart-plan-summary")
+	require.NoError(t, err)
+	assert.Contains(t, sum, "(this week)")
+	assert.Contains(t, sum, "AU done of")
+	require.NoError(t, pwatest.Route(ctx, "/plan?athlete="+tomas))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="plan-done"] [aria-current="date"]')`, 15*time.Second))
+
 	// One printed page: the camp at a glance, the path and the checks.
-	_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"})
+	_, err = chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"})
 	require.NoError(t, err)
 	var editHidden bool
 	require.NoError(t, pwatest.Eval(ctx, `getComputedStyle(document.querySelector('.plan-edit')).display === 'none'`, &editHidden))

@@ -86,6 +86,7 @@ export function AthletePage() {
       <${LoadChart} s=${st.s} />
       <${SparChart} s=${st.s} />
       <${WellnessChart} s=${st.s} />
+      <${PlanChart} id=${id} day=${day} />
     </div>`}
     ${id && html`<h2 key=${'t' + scheme}>Tests and prescriptions</h2><${TestCharts} key=${'c' + scheme} id=${id} day=${day} />`}
   </section>`;
@@ -210,7 +211,7 @@ function LoadChart({ s }) {
   if (i >= 0 && l.acute_au[i] != null) summary += ` Acute ${fmtN(l.acute_au[i], 0)} AU a day, chronic ${fmtN(l.chronic_au[i], 0)} AU a day.`;
   if (r >= 0) summary += ` Acute:chronic ratio ${fmtN(l.ratio[r], 2)} (watch above ${fmtN(l.watch_ratio, 2)}, low under ${fmtN(l.low_ratio, 2)}).`;
   else summary += ` Ratio not shown yet: it needs ${l.ratio_min_days} days on record (not enough data yet).`;
-  if (i >= 0 && l.week_level[i]) summary += ` Planned this week: ${l.week_level[i].replace('_', '-')}${l.planned_week_au[i] != null ? `, ${fmtN(l.planned_week_au[i], 0)} AU` : ''}.`;
+  if (i >= 0 && l.week_level[i]) summary += ` Planned this week: ${(LEVEL_WORDS[l.week_level[i]] || l.week_level[i]).toLowerCase()}${l.planned_week_au[i] != null ? `, ${fmtN(l.planned_week_au[i], 0)} AU` : ''}.`;
   summary += ` ${l.caution}`;
   return html`<${Chart} testid="chart-load" title="Daily session load and the acute:chronic ratio" summary=${summary}
     legend=${[['daily load (AU)', c.accent, 'bar'], ['acute:chronic ratio', c.ink], [`watch line ${fmtN(l.watch_ratio, 1)}`, c.warm, 'dash']]}
@@ -234,7 +235,7 @@ function SparChart({ s }) {
   const sp = s.sparring;
   const c = colors();
   const n = s.days.length - 1;
-  let summary = `7 days to ${shortDay(s.days[n])}: ${sp.rolling_rounds[n]} sparring rounds against a cap of ${sp.cap_rounds[n]}; ${sp.rolling_hard_rounds[n]} hard against a hard cap of ${sp.hard_cap_rounds}.`;
+  let summary = `7 days to ${shortDay(s.days[n])}: ${sp.rolling_rounds[n]} sparring rounds against a cap of ${sp.cap_rounds[n]}; ${sp.rolling_hard_rounds[n]} hard against a hard cap of ${sp.hard_caps ? sp.hard_caps[n] : sp.hard_cap_rounds}.`;
   summary += ` Today ${sp.rounds[n]} rounds (${sp.hard_rounds[n]} hard).`;
   return html`<${Chart} testid="chart-spar" title="Sparring rounds per day and the 7-day total against the cap" summary=${summary}
     legend=${[['rounds that day', c.accent, 'bar'], ['hard rounds that day', c.warm, 'bar'], ['7-day total', c.ink], ['weekly cap', c.warm, 'dash']]}
@@ -286,4 +287,45 @@ function hexA(hex, a) {
   if (!m) return hex;
   const n = parseInt(m[1], 16);
   return `rgba(${(n >> 16) & 255},${(n >> 8) & 255},${n & 255},${a})`;
+}
+
+const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium–heavy', heavy: 'Heavy', taper: 'Taper' };
+
+// PlanChart is the camp plan against what was done, week by week: planned
+// and done session load, planned and done sparring rounds, from the hub's
+// plan report up to the chart's day.
+function PlanChart({ id, day }) {
+  const [rep, setRep] = useState(null);
+  useEffect(() => {
+    let alive = true;
+    hubGet(query(`/api/athletes/${encodeURIComponent(id)}/plan`, { day })).then((r) => alive && setRep(r), () => alive && setRep({ none: true }));
+    return () => { alive = false; };
+  }, [id, day]);
+  if (!rep || rep.none || !rep.weeks || !rep.weeks.length) return null;
+  const c = colors();
+  const ws = rep.weeks;
+  const cur = ws.find((w) => w.current) || [...ws].reverse().find((w) => w.done.days > 0);
+  let summary = cur ? `Week ${cur.week}${cur.current ? ' (this week)' : ''}, ${(LEVEL_WORDS[cur.level] || cur.level).toLowerCase()}: ${fmtN(cur.done.load_au, 0)} AU done of ${cur.planned_load_au != null ? fmtN(cur.planned_load_au, 0) + ' AU' : 'no load'} planned; ${cur.done.rounds} sparring rounds of ${cur.spar_rounds ?? '—'} planned (${cur.done.hard_rounds} hard${cur.hard_rounds != null ? ` of ${cur.hard_rounds}` : ''}).` : 'The camp has not started.';
+  if (cur && cur.words) summary += ` ${cur.words}`;
+  const hot = ws.filter((w) => w.verdict === 'hot').length;
+  const cold = ws.filter((w) => w.verdict === 'cold').length;
+  if (hot || cold) summary += ` Over the camp so far: ${hot} week${hot === 1 ? '' : 's'} ran hot, ${cold} cold.`;
+  const done = (f) => ws.map((w) => (w.done.days ? f(w) : null));
+  return html`<${Chart} testid="chart-plan" title="The camp plan against what was done, week by week" summary=${summary}
+    legend=${[['load done (AU)', c.accent, 'bar'], ['load planned (AU)', c.ink, 'dash'], ['sparring rounds done', c.warm], ['sparring rounds planned', c.warm, 'dash']]}
+    deps=${[rep]} build=${() => ({
+      x: ws.map((w) => dayTs(w.start)),
+      ys: [done((w) => w.done.load_au), ws.map((w) => w.planned_load_au), done((w) => w.done.rounds), ws.map((w) => w.spar_rounds)],
+      spec: {
+        yLabel: 'AU a week',
+        scales: { rounds: { range: (u, lo, hi) => [0, Math.max(10, hi || 0) * 1.1] }, y: { range: (u, lo, hi) => [0, Math.max(100, hi || 0) * 1.1] } },
+        y2: { scale: 'rounds', label: 'rounds a week' },
+        series: [
+          { label: 'load done', stroke: c.accent, kind: 'bars', fill: hexA(c.accent, 0.55) },
+          { label: 'load planned', stroke: c.ink, kind: 'dash', width: 2 },
+          { label: 'rounds done', stroke: c.warm, kind: 'linepoints', width: 2, scale: 'rounds' },
+          { label: 'rounds planned', stroke: c.warm, kind: 'dash', width: 1.5, scale: 'rounds' },
+        ],
+      },
+    })} />`;
 }

@@ -494,7 +494,7 @@ function Glance({ aid, boutId, name, units }) {
         <span role="cell">${[emphText(null, w.strength), emphText(null, w.conditioning)].filter(Boolean).join(' · ') || '—'}
           ${w.travel && html`<span class="travel-line" data-testid=${`plan-done-${w.week}-travel`}>Travel: ${w.travel.from_zone} → ${w.travel.to_zone}, lands ${wallClock(w.travel.arrive_at, w.travel.to_zone).date} ${wallClock(w.travel.arrive_at, w.travel.to_zone).time} (${shiftWords(w.travel)})</span>`}
           ${w.note && html`<span class="small muted" style="display:block">${w.note}</span>`}</span>
-        <span role="cell" class="num">${w.done.days ? `${w.done.rounds} (${w.done.hard_rounds})` : '—'} / ${w.spar_rounds ?? '—'} (${w.hard_rounds ?? '—'})</span>
+        <span role="cell" class="num">${w.done.days ? `${w.done.rounds} (${w.done.hard_rounds})` : '—'} / ${w.spar_rounds ?? '—'}${w.hard_rounds != null ? ` (${w.hard_rounds})` : ''}</span>
         ${w.words && html`<span role="cell" class="words" data-testid=${`plan-done-${w.week}-words`}>${w.words}</span>`}
       </div>`)}
     </div>
