@@ -11,9 +11,11 @@ import (
 	"embed"
 	"encoding/hex"
 	"encoding/json"
+	"fmt"
 	"io/fs"
 	"net/http"
 	"path"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -218,12 +220,72 @@ func build(fsys fs.FS, tmpl string) (*bundle, error) {
 	if err != nil {
 		return nil, err
 	}
+	if idx, err := fs.ReadFile(fsys, "index.html"); err == nil {
+		if withPreload, err := preloadModules(fsys, idx); err != nil {
+			return nil, err
+		} else {
+			b.assets["/index.html"] = newAsset(withPreload, mimeOf("index.html"))
+		}
+	}
 	sw, err := renderSW(tmpl, hash, b.files, b.lazy)
 	if err != nil {
 		return nil, err
 	}
 	b.sw = newAsset(sw, "text/javascript; charset=utf-8")
 	return b, nil
+}
+
+// entryScript is the page's module script; the modules it imports are
+// preloaded beside it.
+const entryScript = `<script type="module" src="/js/main.js"></script>`
+
+// staticImport matches an import or re-export with a module path (not a
+// dynamic import(), which is lazy on screen and stays lazy on the wire).
+var staticImport = regexp.MustCompile(`(?m)^\s*(?:import|export)\s*(?:[\w*{}\s,$]*?\s*from\s*)?['"]([^'"]+)['"]`)
+
+// preloadModules adds a <link rel="modulepreload"> for every module the
+// entry script imports, directly or through others, to index.html. A
+// browser then asks for the whole graph as soon as it reads the page,
+// instead of one round trip per level of imports: on a 150 ms Wi-Fi the
+// first screen comes up several round trips sooner.
+func preloadModules(fsys fs.FS, index []byte) ([]byte, error) {
+	if !bytes.Contains(index, []byte(entryScript)) {
+		return index, nil
+	}
+	seen := map[string]bool{}
+	var order []string
+	var walk func(p, from string) error
+	walk = func(p, from string) error {
+		if seen[p] {
+			return nil
+		}
+		seen[p] = true
+		src, err := fs.ReadFile(fsys, strings.TrimPrefix(p, "/"))
+		if err != nil {
+			return fmt.Errorf("%s imports %s, which is not in the app", from, p)
+		}
+		for _, m := range staticImport.FindAllSubmatch(src, -1) {
+			dep := string(m[1])
+			if !strings.HasPrefix(dep, "/") {
+				dep = path.Join(path.Dir(p), dep)
+			}
+			if err := walk(dep, p); err != nil {
+				return err
+			}
+		}
+		order = append(order, p)
+		return nil
+	}
+	if err := walk("/js/main.js", "index.html"); err != nil {
+		return nil, err
+	}
+	var links strings.Builder
+	for _, p := range order {
+		if p != "/js/main.js" {
+			fmt.Fprintf(&links, "<link rel=\"modulepreload\" href=\"%s\">\n", p)
+		}
+	}
+	return bytes.Replace(index, []byte(entryScript), []byte(links.String()+entryScript), 1), nil
 }
 
 // newAsset precompresses a file once, when the bundle is built, with gzip

@@ -232,3 +232,26 @@ func TestGzipAndConditional(t *testing.T) {
 	assert.Equal(t, http.StatusNotModified, rec.Code)
 	assert.True(t, slices.Contains([]string{"no-cache"}, rec.Header().Get("Cache-Control")))
 }
+
+// The page preloads every module its entry script imports, however deep,
+// so a phone asks for the whole graph at once; the modules a screen
+// imports only when it opens (the coach's screens, the chart library) are
+// not preloaded.
+func TestIndexPreloadsTheEagerModules(t *testing.T) {
+	index := string(body(t, get(t, Handler(), "/")))
+	for _, p := range []string{"/js/db.js", "/js/sync.js", "/js/screens.js", "/js/ui.js", "/vendor/htm/standalone.module.js", "/vendor/idb/index.js", "/js/coach/routes.js"} {
+		assert.Contains(t, index, `<link rel="modulepreload" href="`+p+`">`, p)
+	}
+	for _, p := range []string{"/js/coach/review.js", "/js/coach/charts.js", "/vendor/uplot/uPlot.esm.js", "/js/main.js"} {
+		assert.NotContains(t, index, `href="`+p+`"`, p)
+	}
+	assert.Less(t, strings.Index(index, "modulepreload"), strings.Index(index, `<script type="module" src="/js/main.js">`))
+
+	// A module importing one that is not in the app fails the build.
+	_, err := preloadModules(fstest.MapFS{"js/main.js": {Data: []byte("import { x } from './gone.js';\n")}}, []byte(entryScript))
+	assert.ErrorContains(t, err, "/js/main.js imports /js/gone.js")
+	out, err := preloadModules(fstest.MapFS{"js/main.js": {Data: []byte("import {\n  a,\n  b,\n} from './a.js';\nconst lazy = () => import('./b.js');\n")}, "js/a.js": {Data: []byte("export const a = 1, b = 2;\n")}}, []byte(entryScript))
+	require.NoError(t, err)
+	assert.Contains(t, string(out), `href="/js/a.js"`)
+	assert.NotContains(t, string(out), `b.js`)
+}
