@@ -529,8 +529,9 @@ func BenchmarkE2ESaveToScreen(b *testing.B) {
 	b.ReportMetric(q(0.95), "p95-ms")
 }
 
-// A device joining a camp with a backlog pulls it page by page (500 per
-// page), each page with its cursor in one transaction.
+// A device joining a camp with a backlog pulls it page by page (pages
+// sized in bytes), each page with its cursor in one transaction, the next
+// page asked for while one is written.
 func TestE2EFirstSyncPullsABacklogInPages(t *testing.T) {
 	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
 	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})

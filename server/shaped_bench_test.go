@@ -6,6 +6,7 @@ import (
 	"crypto/tls"
 	"crypto/x509"
 	"encoding/json"
+	"fmt"
 	"io"
 	"net"
 	"net/http"
@@ -307,10 +308,21 @@ func BenchmarkShapedLinkSeasonInBrowser(b *testing.B) {
 			p := h.link(b)
 			ctx := shapedBrowser(b, h, p)
 			require.NoError(b, pwatest.Open(ctx, proxyURL(p, "/")))
-			require.NoError(b, pwatest.Poll(ctx, `import('/js/db.js').then((m) => m.getMeta('cursor')).then((c) => c === `+strconv.Itoa(h.records)+`)`, 2*time.Minute))
-			var tr struct{ First, Last, Origin float64 }
-			require.NoError(b, pwatest.Eval(ctx, `(() => { const t = globalThis.__cbTrace; const f = t.find(([w]) => w === 'pull-sent'); const l = t.filter(([w]) => w === 'page-applied').pop();
-				return { First: f[1], Last: l[1], Origin: performance.timeOrigin } })()`, &tr))
+			require.NoError(b, pwatest.Poll(ctx, `await import('/js/db.js').then((m) => m.getMeta('cursor')).then((c) => c === `+strconv.Itoa(h.records)+`)`, 2*time.Minute))
+			var tr struct {
+				First, Last, Origin float64
+				Trace               [][]any
+			}
+			require.NoError(b, pwatest.Eval(ctx, `(() => { const t = globalThis.__cbTrace || []; const f = t.find(([w]) => w === 'pull-sent'); const l = t.filter(([w]) => w === 'page-applied').pop();
+				return { First: f ? f[1] : 0, Last: l ? l[1] : 0, Origin: performance.timeOrigin, Trace: t } })()`, &tr))
+			require.NotZero(b, tr.Last, "the app's sync milestones: %v", tr.Trace)
+			if os.Getenv("SHAPED_TRACE") != "" {
+				var steps []string
+				for _, e := range tr.Trace {
+					steps = append(steps, fmt.Sprintf("%v +%.0f", e[0], e[1].(float64)-tr.Origin))
+				}
+				b.Logf("%s: %s", name, strings.Join(steps, ", "))
+			}
 			s := sums[name]
 			s[0] += (tr.Last - tr.Origin) / 1000
 			s[1] += (tr.Last - tr.First) / 1000

@@ -138,12 +138,16 @@ async function pullAll() {
   let [cursor, epoch, token] = await getMetas(['cursor', 'epoch', 'token']);
   cursor = cursor || 0;
   let bytes = PULL_BYTES.first;
-  for (;;) {
+  const ask = (since) => {
     const sentAt = Date.now();
     trace('pull-sent');
-    const page = await api('GET', `/api/pull?since=${cursor}&limit=${PULL_LIMIT}&bytes=${bytes}`, undefined, token || null);
-    trace('pull-answered');
-    const gotAt = Date.now();
+    return api('GET', `/api/pull?since=${since}&limit=${PULL_LIMIT}&bytes=${bytes}`, undefined, token || null)
+      .then((page) => { trace('pull-answered'); return { page, sentAt, gotAt: Date.now() }; });
+  };
+  let next = null; // the next page, asked for while this one is written
+  for (;;) {
+    const { page, sentAt, gotAt } = await (next || ask(cursor));
+    next = null;
     bytes = nextPullBytes(bytes, gotAt - sentAt);
     if (resets < 1 && ((epoch && page.epoch && page.epoch !== epoch) || (page.maxSeq < cursor))) {
       resets++;
@@ -153,6 +157,10 @@ async function pullAll() {
       [epoch, token] = await getMetas(['epoch', 'token']);
       continue;
     }
+    // The link fetches the next page while the database writes this one.
+    // (A failure shows when it is awaited; one never awaited, because
+    // writing this page failed, is dropped quietly.)
+    if (page.more) { next = ask(page.next); next.catch(() => {}); }
     await applyPage(page, sentAt, gotAt);
     trace('page-applied');
     cursor = page.next;
