@@ -134,6 +134,8 @@ func Lazy() []string { return append([]string(nil), load().lazy...) }
 // the chart library (a chart screen loads it), and icons larger than a
 // phone's home screen asks for (the browser fetches the 512 px icons
 // itself when it installs the app, and the worker keeps them then).
+// Besides these, every module the page loads only through import() (the
+// coach's screens) is lazy: see build.
 func lazyFile(p string) bool {
 	return strings.HasPrefix(p, "/vendor/uplot/") || strings.HasSuffix(p, "-512.png")
 }
@@ -180,7 +182,7 @@ func hashFS(fsys fs.FS, tmpl string) (string, []string, error) {
 }
 
 // renderSW fills the service-worker template.
-func renderSW(tmpl, hash string, files, lazy []string) ([]byte, error) {
+func renderSW(tmpl, hash string, files []string, lazy map[string]string) ([]byte, error) {
 	t, err := template.New("sw").Delims("{{", "}}").Parse(tmpl)
 	if err != nil {
 		return nil, err
@@ -199,8 +201,12 @@ func build(fsys fs.FS, tmpl string) (*bundle, error) {
 		return nil, err
 	}
 	b := &bundle{hash: hash, assets: map[string]*asset{}}
+	eager, err := moduleGraph(fsys, "/js/main.js")
+	if err != nil {
+		return nil, err
+	}
 	for _, p := range shell {
-		if lazyFile(p) {
+		if lazyFile(p) || (path.Ext(p) == ".js" && !eager[p]) {
 			b.lazy = append(b.lazy, p)
 		} else {
 			b.files = append(b.files, p)
@@ -227,7 +233,13 @@ func build(fsys fs.FS, tmpl string) (*bundle, error) {
 			b.assets["/index.html"] = newAsset(withPreload, mimeOf("index.html"))
 		}
 	}
-	sw, err := renderSW(tmpl, hash, b.files, b.lazy)
+	// The worker knows each lazy file's ETag, so it takes only this
+	// build's copy from the browser's HTTP cache.
+	lazyTags := map[string]string{}
+	for _, p := range b.lazy {
+		lazyTags[p] = b.assets[p].etag
+	}
+	sw, err := renderSW(tmpl, hash, b.files, lazyTags)
 	if err != nil {
 		return nil, err
 	}
@@ -252,6 +264,32 @@ func preloadModules(fsys fs.FS, index []byte) ([]byte, error) {
 	if !bytes.Contains(index, []byte(entryScript)) {
 		return index, nil
 	}
+	_, order, err := walkModules(fsys, "/js/main.js")
+	if err != nil {
+		return nil, err
+	}
+	var links strings.Builder
+	for _, p := range order {
+		if p != "/js/main.js" {
+			fmt.Fprintf(&links, "<link rel=\"modulepreload\" href=\"%s\">\n", p)
+		}
+	}
+	return bytes.Replace(index, []byte(entryScript), []byte(links.String()+entryScript), 1), nil
+}
+
+// moduleGraph is the set of modules entry imports statically, itself
+// included; an app without the entry has an empty graph.
+func moduleGraph(fsys fs.FS, entry string) (map[string]bool, error) {
+	if _, err := fs.Stat(fsys, strings.TrimPrefix(entry, "/")); err != nil {
+		return map[string]bool{}, nil
+	}
+	seen, _, err := walkModules(fsys, entry)
+	return seen, err
+}
+
+// walkModules follows the static imports from entry: every module found,
+// and the order in which each comes after the modules it imports.
+func walkModules(fsys fs.FS, entry string) (map[string]bool, []string, error) {
 	seen := map[string]bool{}
 	var order []string
 	var walk func(p, from string) error
@@ -276,16 +314,8 @@ func preloadModules(fsys fs.FS, index []byte) ([]byte, error) {
 		order = append(order, p)
 		return nil
 	}
-	if err := walk("/js/main.js", "index.html"); err != nil {
-		return nil, err
-	}
-	var links strings.Builder
-	for _, p := range order {
-		if p != "/js/main.js" {
-			fmt.Fprintf(&links, "<link rel=\"modulepreload\" href=\"%s\">\n", p)
-		}
-	}
-	return bytes.Replace(index, []byte(entryScript), []byte(links.String()+entryScript), 1), nil
+	err := walk(entry, "index.html")
+	return seen, order, err
 }
 
 // newAsset precompresses a file once, when the bundle is built, with gzip

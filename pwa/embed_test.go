@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"image/png"
 	"io"
+	"io/fs"
 	"net/http"
 	"net/http/httptest"
 	"slices"
@@ -92,15 +93,31 @@ func TestServiceWorkerListsShellAndNoAPI(t *testing.T) {
 	assert.Equal(t, Files(), list)
 
 	// The lazy list: what a screen loads only when it opens.
-	start = strings.Index(sw, "const LAZY = new Set(")
+	start = strings.Index(sw, "const LAZY = new Map(Object.entries(")
 	require.Positive(t, start)
-	rest = sw[start+len("const LAZY = new Set("):]
-	end = strings.Index(rest, "]);")
+	rest = sw[start+len("const LAZY = new Map(Object.entries("):]
+	end = strings.Index(rest, "}));")
+	var tags map[string]string
+	require.NoError(t, json.Unmarshal([]byte(rest[:end+1]), &tags))
 	var lazy []string
-	require.NoError(t, json.Unmarshal([]byte(rest[:end+1]), &lazy))
-	assert.Equal(t, Lazy(), lazy)
-	assert.ElementsMatch(t, []string{"/vendor/uplot/uPlot.esm.js", "/vendor/uplot/uPlot.min.css", "/icons/icon-512.png", "/icons/maskable-512.png"}, lazy,
-		"the chart library and the 512 px icons are fetched when asked for, not at install")
+	for p, tag := range tags {
+		lazy = append(lazy, p)
+		assert.Equal(t, load().assets[p].etag, tag, "%s: the worker checks this build's copy", p)
+	}
+	assert.ElementsMatch(t, Lazy(), lazy)
+	for _, p := range []string{"/vendor/uplot/uPlot.esm.js", "/vendor/uplot/uPlot.min.css", "/icons/icon-512.png", "/icons/maskable-512.png", "/js/coach/review.js", "/js/coach/plan.js"} {
+		assert.Contains(t, lazy, p, "fetched when a screen asks for it, not at install")
+	}
+	// Every module the page imports statically is installed; every other
+	// module (reached only through import()) is lazy.
+	eager, err := moduleGraph(withGeneratedApp(t), "/js/main.js")
+	require.NoError(t, err)
+	for p := range eager {
+		assert.Contains(t, list, p)
+	}
+	for _, p := range lazy {
+		assert.False(t, eager[p], "%s is imported by the page at start, so it cannot be lazy", p)
+	}
 
 	// Every embedded shell file is in one list or the other, never both;
 	// nothing under /api; no licence files.
@@ -254,4 +271,10 @@ func TestIndexPreloadsTheEagerModules(t *testing.T) {
 	require.NoError(t, err)
 	assert.Contains(t, string(out), `href="/js/a.js"`)
 	assert.NotContains(t, string(out), `b.js`)
+}
+
+func withGeneratedApp(t *testing.T) fs.FS {
+	fsys, err := withGenerated(app)
+	require.NoError(t, err)
+	return fsys
 }

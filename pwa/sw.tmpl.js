@@ -5,9 +5,12 @@ import { pushOnce } from '/js/sync.js';
 const BUILD = {{.Hash}};
 const CACHE = 'shell-' + BUILD;
 const SHELL = {{.Files}};
-// Files a screen asks for only when it opens (the chart library, the large
-// install icons): cached the first time they are fetched, never at install.
-const LAZY = new Set({{.Lazy}});
+// Files a screen asks for only when it opens (the coach's screens, the
+// chart library, the large install icons), with this build's ETag of
+// each: never downloaded at install; kept the first time they are
+// fetched, or taken from the browser's HTTP cache when the page loaded
+// them before this worker controlled it.
+const LAZY = new Map(Object.entries({{.Lazy}}));
 
 self.addEventListener('install', (event) => {
   // addAll is atomic: if one file fails, the install fails and the old
@@ -16,8 +19,21 @@ self.addEventListener('install', (event) => {
   // downloaded is revalidated (a 304 of a few bytes, on the page's own
   // connection) rather than downloaded a second time, and a file changed
   // since is fetched anew.
-  event.waitUntil(caches.open(CACHE).then((cache) => cache.addAll(SHELL)));
+  event.waitUntil(caches.open(CACHE).then((cache) => cache.addAll(SHELL)).then(adoptLazy));
 });
+
+// adoptLazy keeps the lazy files the browser already holds from this
+// build (only-if-cached never touches the network).
+async function adoptLazy() {
+  const cache = await caches.open(CACHE);
+  await Promise.all([...LAZY].map(async ([path, etag]) => {
+    if (await cache.match(path)) return;
+    try {
+      const res = await fetch(path, { cache: 'only-if-cached', mode: 'same-origin' });
+      if (res.ok && res.headers.get('ETag') === etag) await cache.put(path, res);
+    } catch (_) { /* not in the HTTP cache: kept when first fetched */ }
+  }));
+}
 
 self.addEventListener('activate', (event) => {
   event.waitUntil((async () => {
@@ -31,6 +47,7 @@ self.addEventListener('activate', (event) => {
 self.addEventListener('message', (event) => {
   const t = event.data && event.data.type;
   if (t === 'SKIP_WAITING') self.skipWaiting();
+  if (t === 'ADOPT_LAZY') event.waitUntil(adoptLazy());
   if (t === 'BUILD' && event.source) event.source.postMessage({ type: 'BUILD', build: BUILD });
 });
 

@@ -229,6 +229,9 @@ func TestE2EFirstLoadFitsTheBudgetAndOfflineReloadIsFree(t *testing.T) {
 	var cached int
 	require.NoError(t, pwatest.Eval(ctx, `caches.keys().then((k) => caches.open(k[0])).then((c) => c.keys()).then((r) => r.length)`, &cached))
 	assert.Greater(t, cached, 20, "the worker holds the shell")
+	var coachCached bool
+	require.NoError(t, pwatest.Eval(ctx, `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('/js/coach/review.js')).then((r) => !!r)`, &coachCached))
+	assert.False(t, coachCached, "a phone that never opens the coach's screens never downloads them")
 
 	// Offline: the hub is out of reach; the reload renders from the
 	// worker's cache and costs nothing.
@@ -244,5 +247,25 @@ func TestE2EFirstLoadFitsTheBudgetAndOfflineReloadIsFree(t *testing.T) {
 	t.Logf("offline reload: %d responses from the service worker, %d attempts at the network, %d bytes", offSW, offNet, offBytes)
 	if t.Failed() {
 		t.Log(log.String())
+	}
+}
+
+// The coach's screens are lazy on the wire as on screen: the first one a
+// coach's device opens, with the hub at hand, brings the others; then,
+// with the hub out of reach, every coach screen still opens from the
+// service worker.
+func TestE2ECoachScreensStayOfflineOnceOneOpens(t *testing.T) {
+	h := startCoachHub(t)
+	ctx := coachBrowser(t, h, "/review")
+	require.NoError(t, pwatest.WaitControlled(ctx))
+	for _, m := range []string{"review", "athlete", "plan", "sheet"} {
+		require.NoError(t, pwatest.Poll(ctx, `await caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('/js/coach/`+m+`.js')).then((r) => !!r)`, 15*time.Second), m)
+	}
+	h.srv.SetDown(true)
+	defer h.srv.SetDown(false)
+	require.NoError(t, pwatest.Reload(ctx))
+	for _, screen := range []string{"athlete", "plan"} {
+		require.NoError(t, pwatest.Route(ctx, "/"+screen))
+		require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="screen-`+screen+`"]')`, 10*time.Second), "the %s screen opens offline", screen)
 	}
 }

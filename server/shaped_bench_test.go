@@ -67,7 +67,6 @@ type shapedHub struct {
 	records  int
 }
 
-
 func newShapedHub(b *testing.B, season bool) *shapedHub {
 	b.Helper()
 	dir := b.TempDir()
@@ -135,7 +134,9 @@ func syncOver(b *testing.B, h *shapedHub, p *shapedlink.Proxy, accept string) (i
 	roots := x509.NewCertPool()
 	roots.AddCert(h.bundle.CA())
 	tr := &http.Transport{TLSClientConfig: &tls.Config{RootCAs: roots, ServerName: "camp.local"}, ForceAttemptHTTP2: true, DisableCompression: true,
-		DialContext: func(ctx context.Context, _, _ string) (net.Conn, error) { return (&net.Dialer{}).DialContext(ctx, "tcp", p.Addr()) }}
+		DialContext: func(ctx context.Context, _, _ string) (net.Conn, error) {
+			return (&net.Dialer{}).DialContext(ctx, "tcp", p.Addr())
+		}}
 	defer tr.CloseIdleConnections()
 	client := &http.Client{Transport: tr, Timeout: time.Minute}
 	since, size, recs, pages := uint64(0), 256<<10, 0, 0

@@ -51,9 +51,9 @@ func TestLinkPacesAndDelays(t *testing.T) {
 	elapsed := time.Since(t0)
 	assert.Equal(t, answer, got)
 
-	up := time.Duration(16<<10*8) * time.Second / 750_000    // ≈ 175 ms
+	up := time.Duration(16<<10*8) * time.Second / 750_000     // ≈ 175 ms
 	down := time.Duration(64<<10*8) * time.Second / 1_500_000 // ≈ 350 ms
-	least := TravelRouter.RTT + up + TravelRouter.RTT + down   // connect, request, answer
+	least := TravelRouter.RTT + up + TravelRouter.RTT + down  // connect, request, answer
 	assert.GreaterOrEqual(t, elapsed, least-10*time.Millisecond)
 	assert.Less(t, elapsed, least+600*time.Millisecond, "no more than scheduling slack on top")
 	assert.Equal(t, int64(len(answer)), p.BytesDown())

@@ -3,14 +3,33 @@
 import { html, useState, useEffect } from '../ui.js';
 
 const loaded = {};
+const loaders = [];
+
+// warmAll fetches every coach screen once one has opened: a phone that
+// never opens them never downloads them, and a coach's device, which
+// opens them with the hub at hand, has them all for when it is not.
+let warmed = false;
+function warmAll() {
+  if (warmed) return;
+  warmed = true;
+  // Loaded before the service worker controlled the page, they are in
+  // the browser's HTTP cache: the worker then takes them from there.
+  const go = () => Promise.allSettled(loaders.map((load) => load()))
+    .then(() => ('serviceWorker' in navigator ? navigator.serviceWorker.ready : null))
+    .then((reg) => reg && reg.active && reg.active.postMessage({ type: 'ADOPT_LAZY' }))
+    .catch(() => {});
+  if (typeof requestIdleCallback === 'function') requestIdleCallback(go, { timeout: 5000 });
+  else setTimeout(go, 1000);
+}
 
 function lazy(load, name) {
+  loaders.push(load);
   return function Lazy(props) {
     const [C, setC] = useState(() => loaded[name]);
     const [err, setErr] = useState('');
     useEffect(() => {
       if (C) return;
-      load().then((m) => { loaded[name] = m[name]; setC(() => m[name]); }, (e) => setErr(e.message || String(e)));
+      load().then((m) => { loaded[name] = m[name]; setC(() => m[name]); warmAll(); }, (e) => setErr(e.message || String(e)));
     }, []);
     if (err) return html`<p class="error" role="alert">This screen could not be opened: ${err}</p>`;
     return C ? html`<${C} ...${props} />` : html`<p class="muted" data-testid="coach-loading">Opening…</p>`;
