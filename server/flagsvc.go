@@ -232,6 +232,9 @@ func (f *flagService) Athletes() ([]devsync.Record, error) {
 	}
 	out := []devsync.Record{}
 	err := f.s.store.Kind(records.KindAthlete, func(r devsync.Record) error {
+		if archived(r) {
+			return nil // out of the day board and the sheet; entries kept
+		}
 		out = append(out, r)
 		return nil
 	})
@@ -243,6 +246,13 @@ func (f *flagService) Athletes() ([]devsync.Record, error) {
 	f.athletes = out
 	f.mu.Unlock()
 	return out, nil
+}
+
+// archived reports whether an athlete record was archived by the coach
+// (active: false).
+func archived(r devsync.Record) bool {
+	var a records.Athlete
+	return json.Unmarshal(r.Body, &a) == nil && a.Active != nil && !*a.Active
 }
 
 func athleteName(r devsync.Record) string {

@@ -3,8 +3,8 @@
 // QR), the device list with removal, and the backup download. Athletes are
 // records like any other (saved here first, synced); everything about
 // devices is the hub's and needs it reachable.
-import { html, useState, useEffect, useAthletes, SaveLine, savedState, plural } from './ui.js';
-import { save } from './db.js';
+import { html, useState, useEffect, useAthletes, useAsync, useVersion, SaveLine, savedState, plural } from './ui.js';
+import { save, byKind } from './db.js';
 import { uuidv7 } from './uuid.js';
 import { hubGet, hubPost, HubReadError } from './coach/api.js';
 import { getMeta } from './db.js';
@@ -68,15 +68,79 @@ function Passphrase({ me, onDone }) {
   </form>`;
 }
 
+// useRoster lists every athlete record on this device, archived ones too.
+function useRoster() {
+  const v = useVersion();
+  return useAsync(async () => (await byKind('athlete'))
+    .filter((r) => !r.deleted && r.body && r.body.name)
+    .sort((a, b) => a.body.name.localeCompare(b.body.name)), [v], []);
+}
+
+const sameName = (a, b) => a.trim().toLocaleLowerCase() === b.trim().toLocaleLowerCase();
+
+// Roster: the camp's athletes with rename and archive. An archived athlete
+// leaves the pickers, the day board and the sheet; every entry is kept and
+// the athlete can be brought back.
+function Roster() {
+  const roster = useRoster();
+  const [editing, setEditing] = useState(null); // {id, name, confirm}
+  const [state, setState] = useState(null);
+  const put = async (r, change, words) => {
+    try {
+      await save({ id: r.id, kind: 'athlete', athlete: r.id, body: { ...r.body, ...change } });
+      setState(savedState(words));
+      return true;
+    } catch (err) { setState({ error: `Not saved: ${why(err)}` }); return false; }
+  };
+  const rename = async (r) => {
+    const name = editing.name.trim();
+    if (!name) return setState({ error: 'Type the athlete\'s name.' });
+    const twin = roster.find((x) => x.id !== r.id && sameName(x.body.name, name));
+    if (twin && editing.confirm !== name) {
+      setEditing({ ...editing, confirm: name });
+      return setState({ error: `Another athlete is already called ${twin.body.name}${twin.body.active === false ? ' (archived)' : ''}. Save again to use the same name.` });
+    }
+    if (await put(r, { name }, `${r.body.name} is now ${name}.`)) setEditing(null);
+  };
+  const archive = (r) => {
+    const body = { ...r.body };
+    delete body.active;
+    return r.body.active === false
+      ? save({ id: r.id, kind: 'athlete', athlete: r.id, body }).then(() => setState(savedState(`${r.body.name} is back in the pickers and on the sheet.`)), (err) => setState({ error: `Not saved: ${why(err)}` }))
+      : put(r, { active: false }, `${r.body.name} is archived: out of the pickers and the sheet; every entry is kept.`);
+  };
+  return html`<section class="card" data-testid="camp-roster">
+    <h2>Athletes</h2>
+    ${!roster.length && html`<p class="muted">No athlete yet: add the first below.</p>`}
+    <ul class="devices">${roster.map((r) => html`<li data-testid=${'camp-roster-' + r.id} data-name=${r.body.name} data-archived=${r.body.active === false ? 'true' : 'false'}>
+      ${editing && editing.id === r.id ? html`<label for=${'rn-' + r.id}>New name</label>
+        <input id=${'rn-' + r.id} data-testid=${'camp-rename-input-' + r.id} value=${editing.name} onInput=${(e) => { setEditing({ ...editing, name: e.target.value }); setState(null); }} />
+        <button class="primary" type="button" data-testid=${'camp-rename-save-' + r.id} onClick=${() => rename(r)}>Save name</button>
+        <button class="secondary" type="button" onClick=${() => { setEditing(null); setState(null); }}>Cancel</button>`
+      : html`<p><strong>${r.body.name}</strong> · ${r.body.units || 'kg'}${r.body.active === false ? ' · archived' : ''}</p>
+        <button class="secondary" type="button" data-testid=${'camp-rename-' + r.id} onClick=${() => { setEditing({ id: r.id, name: r.body.name }); setState(null); }}>Rename</button>
+        <button class="secondary" type="button" data-testid=${'camp-archive-' + r.id} onClick=${() => archive(r)}>${r.body.active === false ? 'Bring back' : 'Archive'}</button>`}
+    </li>`)}</ul>
+    <${SaveLine} state=${state} />
+  </section>`;
+}
+
 function AddAthlete() {
+  const roster = useRoster();
   const [name, setName] = useState('');
   const [units, setUnits] = useState('kg');
   const [sex, setSex] = useState('');
   const [year, setYear] = useState('');
   const [state, setState] = useState(null);
+  const [twinOK, setTwinOK] = useState('');
   const submit = async (e) => {
     e.preventDefault();
     if (!name.trim()) return setState({ error: 'Type the athlete\'s name.' });
+    const twin = roster.find((r) => sameName(r.body.name, name));
+    if (twin && twinOK !== name.trim()) {
+      setTwinOK(name.trim());
+      return setState({ error: `${twin.body.name} is already on the list${twin.body.active === false ? ' (archived: bring them back from the list above)' : ''}. To add a second athlete with the same name, press Add athlete again.` });
+    }
     const id = uuidv7();
     const body = { name: name.trim(), units };
     if (sex) body.sex = sex;
@@ -84,13 +148,13 @@ function AddAthlete() {
     try {
       await save({ id, kind: 'athlete', athlete: id, body });
       setState(savedState(`${body.name} added on this device; the hub gets it at the next sync.`));
-      setName(''); setYear('');
+      setName(''); setYear(''); setTwinOK('');
     } catch (err) { setState({ error: `Not saved: ${why(err)}` }); }
   };
   return html`<form class="card" onSubmit=${submit} data-testid="camp-add-athlete" novalidate>
     <h2>Add an athlete</h2>
     <label for="an">Name</label>
-    <input id="an" data-testid="camp-athlete-name" value=${name} onInput=${(e) => setName(e.target.value)} />
+    <input id="an" data-testid="camp-athlete-name" value=${name} onInput=${(e) => { setName(e.target.value); setState(null); }} />
     <fieldset class="inline"><legend>Units on screen</legend>
       ${['kg', 'lb'].map((u) => html`<label class="opt"><input type="radio" name="units" value=${u} checked=${units === u} onChange=${() => setUnits(u)} data-testid=${'camp-units-' + u} /> ${u}</label>`)}
     </fieldset>
@@ -232,6 +296,7 @@ export function Camp() {
     ${me.laptop && html`<${Passphrase} me=${me} onDone=${bump} />`}
     <${JoinCode} athletes=${athletes} />
     <${Devices} athletes=${athletes} version=${version} onChange=${bump} />
+    <${Roster} />
     <${AddAthlete} />
     <${Backup} />
   </section>`;
