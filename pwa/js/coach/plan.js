@@ -228,7 +228,7 @@ export function Plan() {
     e.preventDefault();
     if (!a) return setState({ error: 'Choose the athlete first.' });
     if (errs.length) return setState({ error: errs.join(' ') });
-    if (check && check.invalid) return setState({ error: `The hub would refuse this bout: ${check.field ? check.field.replace('body.', '') + ' ' : ''}${check.invalid}` });
+    if (check && check.invalid) return setState({ error: `The hub would refuse this bout: ${check.field ? fieldWords('bout', check.field) + ' ' : ''}${check.invalid}` });
     setState({ saving: true });
     try {
       const rec = await save({ id: boutId && boutId !== 'new' ? boutId : undefined, kind: 'bout', athlete: a.id, body });
