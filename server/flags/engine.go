@@ -227,8 +227,30 @@ func newEngine(in *Input) (*engine, bool) {
 			}
 		}
 	}
-	sort.Slice(e.sessions, func(i, j int) bool { return e.sessions[i].day < e.sessions[j].day })
-	sort.Slice(e.incidents, func(i, j int) bool { return e.incidents[i].day < e.incidents[j].day })
+	// Everything in one canonical order (day, time, id), so the flags do not
+	// depend on the order the records were given in.
+	sort.Slice(e.sessions, func(i, j int) bool {
+		a, b := &e.sessions[i], &e.sessions[j]
+		return a.day < b.day || a.day == b.day && a.id < b.id
+	})
+	sort.Slice(e.incidents, func(i, j int) bool {
+		a, b := &e.incidents[i], &e.incidents[j]
+		return a.day < b.day || a.day == b.day && earlier(a.at, a.id, b.at, b.id)
+	})
+	for k := range e.recent {
+		r := &e.recent[k]
+		if len(r.checkins) > 1 {
+			sort.Slice(r.checkins, func(i, j int) bool {
+				return earlier(r.checkins[i].at, r.checkins[i].id, r.checkins[j].at, r.checkins[j].id)
+			})
+		}
+		if len(r.jumps) > 1 {
+			sort.Slice(r.jumps, func(i, j int) bool { return earlier(r.jumps[i].at, r.jumps[i].id, r.jumps[j].at, r.jumps[j].id) })
+		}
+		if len(r.rounds) > 1 {
+			sort.Slice(r.rounds, func(i, j int) bool { return earlier(r.rounds[i].at, r.rounds[i].id, r.rounds[j].at, r.rounds[j].id) })
+		}
+	}
 	if len(e.incidents) > 0 {
 		for _, i := range oldRounds {
 			r := &in.Records[i]
@@ -241,10 +263,7 @@ func newEngine(in *Input) (*engine, bool) {
 	}
 	sort.Slice(e.sparLog, func(i, j int) bool {
 		a, b := &e.sparLog[i], &e.sparLog[j]
-		if a.day != b.day {
-			return a.day < b.day
-		}
-		return before(a.at, b.at)
+		return a.day < b.day || a.day == b.day && earlier(a.at, a.id, b.at, b.id)
 	})
 	if in.Bout != nil && !in.Bout.Deleted {
 		e.bout = parsePlan(in.Bout)
@@ -367,18 +386,12 @@ func (e *engine) morningMass(d day.Number) (float64, string, bool) {
 	if r == nil {
 		return 0, "", false
 	}
-	best, id, found := 0.0, "", false
-	var bestAt time.Time
-	for _, c := range r.checkins {
-		if c.body.MassKg == nil || !(*c.body.MassKg > 0) {
-			continue
-		}
-		t, _ := time.Parse(time.RFC3339, c.at)
-		if !found || t.Before(bestAt) {
-			best, id, bestAt, found = *c.body.MassKg, c.id, t, true
+	for _, c := range r.checkins { // in time order (newEngine)
+		if c.body.MassKg != nil && *c.body.MassKg > 0 {
+			return *c.body.MassKg, c.id, true
 		}
 	}
-	return best, id, found
+	return 0, "", false
 }
 
 // massSeries lists morning masses from day from through today, oldest first.
@@ -488,6 +501,16 @@ func (e *engine) attachDecisions() {
 			f.Decision = whole.ref(ScopeDay)
 		}
 	}
+}
+
+// earlier orders two records of one day by their time, then by id: the
+// engine's canonical order (an unreadable time counts as the earliest).
+func earlier(aAt, aID, bAt, bID string) bool {
+	ta, tb := atOf(aAt), atOf(bAt)
+	if !ta.Equal(tb) {
+		return ta.Before(tb)
+	}
+	return aID < bID
 }
 
 // atOf is a record's at as a time; the zero time (earliest) if it does

@@ -398,3 +398,21 @@ func (o *oracleCamp) checkDay(t *testing.T, where string, i int, fs []Flag) {
 	}
 
 }
+
+// The flags do not depend on the order the records come in (a store reads
+// them by kind and day, an export by sequence, a test by creation).
+func TestComputeIgnoresRecordOrder(t *testing.T) {
+	o := inventCamp(7)
+	shuffled := append([]devsync.Record(nil), o.c.recs...)
+	rand.New(rand.NewSource(7)).Shuffle(len(shuffled), func(i, j int) { shuffled[i], shuffled[j] = shuffled[j], shuffled[i] })
+	for i := o.from; i <= o.to; i += 3 {
+		in := o.c.input(d(i))
+		in.Bouts, in.Now = o.bouts, nowAfterHour
+		a, _ := json.Marshal(Compute(in))
+		in.Records = shuffled
+		b, _ := json.Marshal(Compute(in))
+		if string(a) != string(b) {
+			t.Fatalf("%s: flags depend on the records' order:\n%s\n%s", d(i), a, b)
+		}
+	}
+}

@@ -3,7 +3,6 @@ package flags
 import (
 	"fmt"
 	"math"
-	"sort"
 	"time"
 
 	"cornerbook/server/flags/day"
@@ -25,12 +24,8 @@ func (e *engine) dayItems(d day.Number) (vals [5]*int, ids []string) {
 	if r == nil {
 		return
 	}
-	cs := make([]*checkin, len(r.checkins))
-	for i := range r.checkins {
-		cs[i] = &r.checkins[i]
-	}
-	sort.SliceStable(cs, func(i, j int) bool { return atOf(cs[i].at).Before(atOf(cs[j].at)) })
-	for _, c := range cs {
+	for i := range r.checkins { // in time order (newEngine)
+		c := &r.checkins[i]
 		used := false
 		for k, v := range items(&c.body) {
 			if v != nil && vals[k] == nil {

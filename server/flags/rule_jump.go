@@ -3,7 +3,6 @@ package flags
 import (
 	"fmt"
 	"math"
-	"sort"
 
 	"cornerbook/server/flags/day"
 	"cornerbook/server/flags/stats"
@@ -27,9 +26,7 @@ func (e *engine) dayTests(d day.Number) []jump {
 	if r == nil || len(r.jumps) == 0 {
 		return nil
 	}
-	tests := append([]jump(nil), r.jumps...)
-	sort.SliceStable(tests, func(i, j int) bool { return atOf(tests[i].at).Before(atOf(tests[j].at)) })
-	return tests
+	return r.jumps // kept in time order (newEngine)
 }
 
 func summarize(j jump) jumpDay {
