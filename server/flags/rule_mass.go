@@ -39,7 +39,7 @@ func (e *engine) campTrend(rule, what, title string) (trend, latest float64, lat
 	trend, latest, latestDay, ids, ok = e.trend()
 	if !ok {
 		e.add(Flag{Rule: rule, Level: LevelInfo, Status: StatusForming, Title: title, Caution: CautionMass, Inputs: []string{p.id},
-			Reason: what + " forming: no morning mass logged in this camp yet."})
+			Reason: fmt.Sprintf("%s forming: no morning mass logged in the last %d days.", what, recentDays)})
 	}
 	return trend, latest, latestDay, ids, ok
 }
