@@ -60,9 +60,30 @@ func (s *Server) appURLFor(r *http.Request) string {
 	if err != nil {
 		host = r.Host
 	}
-	_, port, err := net.SplitHostPort(strings.TrimPrefix(strings.TrimSuffix(s.cfg.AppURL, "/"), "https://"))
+	appHost, port, err := net.SplitHostPort(strings.TrimPrefix(strings.TrimSuffix(s.cfg.AppURL, "/"), "https://"))
 	if err != nil || host == "" {
 		return s.cfg.AppURL
+	}
+	if strings.HasSuffix(appHost, ".local") {
+		// The hub announces its name: the app lives at the name, which
+		// stays the same when the camp moves and the address changes.
+		return s.cfg.AppURL
+	}
+	return "https://" + net.JoinHostPort(host, port) + "/"
+}
+
+// appURLByAddress is the app at the address the visitor used, when the
+// app's own address is the announced name ("" otherwise): for a phone
+// that cannot resolve the name.
+func (s *Server) appURLByAddress(r *http.Request) string {
+	app := s.appURLFor(r)
+	host, _, err := net.SplitHostPort(r.Host)
+	if err != nil || !strings.HasSuffix(strings.TrimPrefix(strings.Split(app, ":")[1], "//"), ".local") || strings.HasSuffix(host, ".local") {
+		return ""
+	}
+	_, port, err := net.SplitHostPort(strings.TrimPrefix(strings.TrimSuffix(app, "/"), "https://"))
+	if err != nil {
+		return ""
 	}
 	return "https://" + net.JoinHostPort(host, port) + "/"
 }
@@ -79,6 +100,7 @@ var bootstrapTmpl = template.Must(template.New("b").Parse(`<!doctype html>
 <li>Trust it, following the steps for your phone below.</li>
 <li>Open the app: <a href="{{.AppURL}}">{{.AppURL}}</a></li>
 </ol>
+{{if .ByAddress}}<p class="note">The app opens by the camp's name, so it is found again when the camp moves to another network. If this phone cannot open that name, use <a href="{{.ByAddress}}">{{.ByAddress}}</a>; it will need this page again after a move.</p>{{end}}
 <img class="qr" src="/app-qr.png" width="256" height="256" alt="QR code of the app address {{.AppURL}}">
 {{range .Platforms}}<section><h2>{{.Name}}</h2><ol>{{range .Steps}}<li>{{.}}</li>{{end}}</ol>
 {{range .Notes}}<p class="note">{{.}}</p>{{end}}</section>{{end}}
@@ -91,7 +113,7 @@ func (s *Server) bootstrapPage(w http.ResponseWriter, r *http.Request) {
 	w.Header().Set("Content-Type", "text/html; charset=utf-8")
 	w.Header().Set("Cache-Control", "no-store")
 	bootstrapTmpl.Execute(w, map[string]any{
-		"AppURL": app, "Fingerprint": s.cfg.Certs.Fingerprint(),
+		"AppURL": app, "Fingerprint": s.cfg.Certs.Fingerprint(), "ByAddress": s.appURLByAddress(r),
 		"Platforms": certs.TrustSteps(ca, s.cfg.Certs.Fingerprint(), app),
 	})
 }

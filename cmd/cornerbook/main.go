@@ -62,7 +62,7 @@ func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 }
 
 const usage = `Usage:
-  cornerbook [serve] [--data DIR] [--addr ADDR] [--http-addr ADDR] [--demo]
+  cornerbook [serve] [--data DIR] [--addr ADDR] [--http-addr ADDR] [--demo] [--announce]
   cornerbook import  --data DIR FILE        (JSON Lines; - reads standard input)
   cornerbook export  --data DIR [--kind K] [--csv]
   cornerbook flags   --data DIR --day YYYY-MM-DD [--athlete ID] [--json]
@@ -77,4 +77,6 @@ serve:
   --http-addr ADDR  plain-HTTP address: the join page for phones and the coach's
                     screen on this laptop (default :8080)
   --demo            serve the invented demo camp from its own folder
+  --announce        answer for the camp's name (cornerbook-HOST.local) on the Wi-Fi
+                    with --demo too; always on otherwise, never on loopback
 `

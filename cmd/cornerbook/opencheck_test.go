@@ -173,3 +173,48 @@ func TestPhoneHost(t *testing.T) {
 		assert.Equal(t, c.want, got, "listening on %s", c.ip)
 	}
 }
+
+// TestShouldAnnounce: the camp's name goes on the Wi-Fi only when the
+// app listens where phones reach it, and not for the demo camp unless
+// asked — so no development or CI run sends multicast.
+func TestShouldAnnounce(t *testing.T) {
+	cases := []struct {
+		demo, announce bool
+		appHost        string
+		want           bool
+	}{
+		{false, false, "192.0.2.10", true},
+		{false, false, "", false}, // loopback only
+		{false, true, "", false},  // not even when asked
+		{true, false, "192.0.2.10", false},
+		{true, true, "192.0.2.10", true},
+	}
+	for _, c := range cases {
+		assert.Equal(t, c.want, shouldAnnounce(Config{Demo: c.demo, Announce: c.announce}, c.appHost), "%+v", c)
+	}
+	m := mustRunMain(t, false) // 127.0.0.1 only
+	assert.Empty(t, m.campName, "a hub on loopback announces nothing")
+}
+
+// TestMain_SaysWhenTheAddressChanged: started again with another LAN
+// address, the hub says so, names both addresses and what phones will
+// see; started again at the same address, it says nothing of it.
+func TestMain_SaysWhenTheAddressChanged(t *testing.T) {
+	dir := t.TempDir()
+	start := func(lan string) string {
+		m := NewMain()
+		m.Config.Addr, m.Config.HTTPAddr, m.Config.DataDir = "127.0.0.1:0", "127.0.0.1:0", dir
+		var out strings.Builder
+		m.Stdout = &out
+		m.Log = log.New(io.Discard, "", 0)
+		m.LANHost = func() string { return lan }
+		require.NoError(t, m.Run(context.Background()))
+		require.NoError(t, m.Close())
+		return out.String()
+	}
+	assert.NotContains(t, start("192.0.2.5"), "address changed")
+	assert.NotContains(t, start("192.0.2.5"), "address changed")
+	out := start("198.51.100.7")
+	assert.Contains(t, out, "address changed since the last start: it was 192.0.2.5, it is now 198.51.100.7")
+	assert.Contains(t, out, "Hub unreachable")
+}

@@ -18,6 +18,7 @@ import (
 	"cornerbook/server/auth"
 	"cornerbook/server/certs"
 	"cornerbook/server/demo"
+	"cornerbook/server/lan"
 	"cornerbook/storage"
 )
 
@@ -46,6 +47,10 @@ type Config struct {
 	Addr     string // HTTPS listen address of the app
 	HTTPAddr string // plain-HTTP listen address: join page, and the app for this laptop's own browser
 	Demo     bool   // serve the invented demo camp from DemoDataDir
+	// Announce answers for the camp's name on the Wi-Fi (multicast DNS)
+	// even with Demo; without Demo the hub announces whenever its app
+	// listens on a LAN address. Never on loopback.
+	Announce bool
 }
 
 // Main is a running hub: tests start it on ":0" with a temp folder.
@@ -62,6 +67,9 @@ type Main struct {
 	stop   context.CancelFunc
 
 	joinURL string // the join page as phones reach it; "" if they cannot
+	// LANHost is this laptop's LAN address (nil: primaryHost).
+	LANHost  func() string
+	campName string // the name announced on the Wi-Fi; "" when not announcing
 }
 
 // NewMain returns a Main with the defaults.
@@ -78,6 +86,7 @@ func (m *Main) flagSet(stderr io.Writer) (fs *flag.FlagSet, data *string) {
 	fs.StringVar(&m.Config.Addr, "addr", m.Config.Addr, "HTTPS listen address of the app on the camp Wi-Fi")
 	fs.StringVar(&m.Config.HTTPAddr, "http-addr", m.Config.HTTPAddr, "plain-HTTP address: the join page for phones and the coach's screen on this laptop")
 	fs.BoolVar(&m.Config.Demo, "demo", false, "serve the invented demo camp from its own folder, creating it on first use")
+	fs.BoolVar(&m.Config.Announce, "announce", false, "announce the hub's name on the camp Wi-Fi with --demo too (always on otherwise, never on loopback)")
 	return fs, data
 }
 
@@ -142,14 +151,26 @@ func (m *Main) Run(ctx context.Context) error {
 		httpsLn.Close()
 		return fmt.Errorf("listen on %s: %w", m.Config.HTTPAddr, err)
 	}
+	if m.LANHost == nil {
+		m.LANHost = primaryHost
+	}
 	_, httpsPort, _ := net.SplitHostPort(httpsLn.Addr().String())
-	appHost := phoneHost(httpsLn.Addr(), primaryHost)
+	appHost := phoneHost(httpsLn.Addr(), m.LANHost)
+	if shouldAnnounce(m.Config, appHost) {
+		m.campName = certs.CampName(certs.CurrentNames().Host)
+	}
 	if appHost == "" {
 		appHost = "localhost"
 	}
+	if m.campName != "" {
+		appHost = m.campName // the name phones keep when the camp moves
+	}
 	appURL := "https://" + net.JoinHostPort(appHost, httpsPort) + "/"
 	joinURL := ""
-	if h := phoneHost(httpLn.Addr(), primaryHost); h != "" {
+	if h := phoneHost(httpLn.Addr(), m.LANHost); h != "" {
+		if m.campName != "" {
+			h = m.campName
+		}
 		_, httpPort, _ := net.SplitHostPort(httpLn.Addr().String())
 		joinURL = "http://" + net.JoinHostPort(h, httpPort) + "/"
 	}
@@ -171,6 +192,15 @@ func (m *Main) Run(ctx context.Context) error {
 		}
 	})
 	go m.snapshots(ctx)
+	if m.campName != "" {
+		r := &lan.Responder{Name: m.campName, Addrs: func() []net.IP { return certs.CurrentNames().IPs }}
+		go func() {
+			if err := r.Serve(ctx, m.Log.Printf); err != nil {
+				m.Log.Printf("camp name %s not announced: %v (phones use the address instead)", m.campName, err)
+			}
+		}()
+	}
+	m.noteAddressChange()
 	m.writeHubAddress(httpLn.Addr())
 	m.printAddresses(appURL)
 	return nil
@@ -205,6 +235,42 @@ func (m *Main) snapshots(ctx context.Context) {
 		case <-ctx.Done():
 			return
 		case <-time.After(time.Hour):
+		}
+	}
+}
+
+// shouldAnnounce says whether the hub answers for its camp name on the
+// Wi-Fi: only when its app listens where phones reach it (appHost is
+// not "": never on loopback), and not for the demo camp unless asked
+// (--announce), so no development or test run sends multicast.
+func shouldAnnounce(c Config, appHost string) bool {
+	return appHost != "" && (!c.Demo || c.Announce)
+}
+
+// lastAddressFile keeps the LAN address of the last start.
+const lastAddressFile = "last-address"
+
+// noteAddressChange tells the coach when the laptop's LAN address is not
+// the one of the last start (a new venue, a new Wi-Fi), and what phones
+// will see.
+func (m *Main) noteAddressChange() {
+	now := m.LANHost()
+	path := filepath.Join(m.Config.DataDir, lastAddressFile)
+	raw, err := os.ReadFile(path)
+	before := strings.TrimSpace(string(raw))
+	if err == nil && before != "" && before != now {
+		w := m.Stdout
+		fmt.Fprintf(w, "This laptop's address changed since the last start: it was %s, it is now %s.\n", before, now)
+		if m.campName != "" {
+			fmt.Fprintf(w, "  Phones that opened the app by the camp's name (%s) find the hub again by themselves.\n", m.campName)
+			fmt.Fprintf(w, "  Phones that opened it by the old address show \"Hub unreachable\": open %s on them (their entries wait safely meanwhile).\n\n", m.joinURL)
+		} else {
+			fmt.Fprintf(w, "  Phones that opened the app at %s show \"Hub unreachable\" until they open the new join page (their entries wait safely meanwhile).\n\n", before)
+		}
+	}
+	if now != before {
+		if err := os.WriteFile(path, []byte(now+"\n"), 0o600); err != nil {
+			m.Log.Printf("could not note this laptop's address: %v", err)
 		}
 	}
 }

@@ -114,9 +114,13 @@ func (n Names) normalize() Names {
 	return out
 }
 
+// CampName is the name the hub announces on the camp network (package
+// lan) for a host label: cornerbook-<host>.local. It stays the same when
+// the camp moves to another network, and the certificate covers it.
+func CampName(host string) string { return "cornerbook-" + host + ".local" }
+
 // CurrentNames reads this machine's names: the host name (as
-// <host>.local, plus camp.local for a fixed name an mDNS responder may
-// answer), localhost, and the addresses of every interface that is up —
+// <host>.local, CampName, and camp.local), localhost, and the addresses of every interface that is up —
 // IPv4 except loopback, IPv6 except loopback, link-local and multicast.
 func CurrentNames() Names {
 	var n Names
@@ -126,7 +130,7 @@ func CurrentNames() Names {
 	if n.Host == "" {
 		n.Host = "hub"
 	}
-	n.DNS = []string{"localhost", n.Host + ".local", "camp.local"}
+	n.DNS = []string{"localhost", n.Host + ".local", CampName(n.Host), "camp.local"}
 	ifaces, err := net.Interfaces()
 	if err != nil {
 		return n
