@@ -35,6 +35,19 @@ async function adoptLazy() {
   }));
 }
 
+// warm fetches the lazy files this cache lacks, each on its own, so one
+// failure leaves the others kept.
+async function warm() {
+  const cache = await caches.open(CACHE);
+  await Promise.all([...LAZY.keys()].filter((p) => !p.endsWith('.png')).map(async (p) => {
+    if (await cache.match(p)) return;
+    try {
+      const res = await fetch(p);
+      if (res.ok) await cache.put(p, res);
+    } catch (_) { /* out of reach: kept when first opened */ }
+  }));
+}
+
 self.addEventListener('activate', (event) => {
   event.waitUntil((async () => {
     for (const name of await caches.keys()) {
@@ -49,6 +62,10 @@ self.addEventListener('message', (event) => {
   if (t === 'SKIP_WAITING') self.skipWaiting();
   if (t === 'ADOPT_LAZY') event.waitUntil(adoptLazy());
   if (t === 'BUILD' && event.source) event.source.postMessage({ type: 'BUILD', build: BUILD });
+  // A coach's or staff device keeps every screen for offline use: the
+  // lazy files it does not hold yet (the coach's screens, the chart
+  // library) are fetched once, now; the large icons are left to the browser.
+  if (t === 'WARM') event.waitUntil(warm());
 });
 
 self.addEventListener('fetch', (event) => {

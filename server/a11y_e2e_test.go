@@ -146,10 +146,6 @@ func appScreens(h *ringHub) []appScreen {
 				return nil
 			}},
 		{name: "tests", path: "/tests?athlete=" + kofi, ready: q("screen-tests") + ` && document.querySelectorAll('[data-testid="test-entry"]').length >= 7`},
-		{name: "tests-strength", path: "/tests?athlete=" + kofi + "&state=strength", ready: q("st-sets"),
-			setup: func(ctx context.Context) error {
-				return pwatest.ClickUntil(ctx, "test-type-strength", pwatest.Pressed("test-type-strength"), 3)
-			}},
 		{name: "session", path: "/session", ready: q("screen-session")},
 		{name: "incident", path: "/incident", ready: q("screen-incident")},
 		{name: "clearance", path: "/clearance?athlete=" + mateo, ready: q("screen-clearance") + ` && document.querySelector('[data-testid^="clearance-incident-"]')`},

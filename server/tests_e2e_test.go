@@ -82,6 +82,10 @@ func TestE2ETestsDrivePrescriptions(t *testing.T) {
 	require.NoError(t, pwatest.WaitControlled(tablet))
 	require.NoError(t, pwatest.WaitSynced(tablet))
 	require.NoError(t, pwatest.Poll(tablet, `import('/js/db.js').then((m) => m.byKind('intervals')).then((r) => r.length === 3 && r.every((x) => x.body.target_rep_m > 0))`, 10*time.Second))
+	// The coach looks at the day's sessions before walking out to the track
+	// (a paired coach's or staff device keeps the screen without that).
+	require.NoError(t, pwatest.Route(tablet, "/intervals"))
+	require.NoError(t, pwatest.WaitText(tablet, "intervals-today", "Ana Pereira"))
 	h.srv.SetDown(true)
 	require.NoError(t, pwatest.Reload(tablet))
 	require.NoError(t, pwatest.Route(tablet, "/intervals"))

@@ -51,6 +51,9 @@ async function setupSW() {
     setInterval(() => reg.update().catch(() => {}), 30 * 60 * 1000);
     const ready = await navigator.serviceWorker.ready;
     (navigator.serviceWorker.controller || ready.active)?.postMessage({ type: 'BUILD' });
+    // A coach's or staff device keeps the coach-only screens for offline use.
+    const role = await getMeta('role');
+    if (role === 'coach' || role === 'staff') ready.active?.postMessage({ type: 'WARM' });
   } catch (e) {
     console.warn('service worker not registered', e);
   }

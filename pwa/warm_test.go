@@ -1,0 +1,32 @@
+package pwa_test
+
+import (
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/require"
+
+	"cornerbook/pwa/pwatest"
+)
+
+// TestCoachScreensWarmOnAStaffDevice: the coach's screens an athlete's
+// phone never opens are left out of the install; a device paired as staff
+// (or coach) has the worker keep them all, so they open offline there.
+func TestCoachScreensWarmOnAStaffDevice(t *testing.T) {
+	s := newAppServer(t)
+	_, ctx, _ := start(t, "")
+	require.NoError(t, pwatest.Open(ctx, s.URL("/")))
+	require.NoError(t, pwatest.WaitControlled(ctx))
+	cached := func(p string) string {
+		return `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('` + p + `')).then((r) => !!r)`
+	}
+	var has bool
+	require.NoError(t, pwatest.Eval(ctx, cached("/js/coach/intervals.js"), &has))
+	require.False(t, has, "not fetched at install")
+
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((m) => m.setMeta('role', 'staff')).then(() => true)`, nil))
+	require.NoError(t, pwatest.Reload(ctx))
+	for _, p := range []string{"/js/coach/intervals.js", "/js/coach/tests.js", "/js/coach/plan.js", "/vendor/uplot/uPlot.esm.js"} {
+		require.NoError(t, pwatest.Poll(ctx, cached(p), 10*time.Second), p)
+	}
+}
