@@ -118,3 +118,27 @@ func TestE2EPhoneFollowsTheCampName(t *testing.T) {
 	require.NoError(t, err)
 	assert.Len(t, list, 1, "the phone did not join again")
 }
+
+// TestE2ELongUnreachableSaysTheHubMayHaveMoved: after ten minutes
+// without the hub, the status says the camp may have moved and what to
+// do, naming the address this app was opened at; once the hub answers,
+// the words go.
+func TestE2ELongUnreachableSaysTheHubMayHaveMoved(t *testing.T) {
+	h := startDemoHub(t, time.UTC)
+	_, ctx, _ := e2eBrowser(t, "")
+	require.NoError(t, pwatest.Open(ctx, h.url("/")))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	h.srv.SetDown(true)
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/sync.js').then((m) => { m.syncSoon(); return true })`, nil))
+	require.NoError(t, pwatest.WaitText(ctx, "status-unreachable", "Hub unreachable"))
+	assert.NoError(t, pwatest.Poll(ctx, `!document.querySelector('[data-testid="status-moved"]')`, time.Second), "not after a moment")
+	// Ten minutes and more pass without an answer.
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/sync.js').then((m) => { m.status.unreachableSince = Date.now() - 11 * 60000; m.syncSoon(); return true })`, nil))
+	require.NoError(t, pwatest.WaitText(ctx, "status-moved", "the hub may have a new address"))
+	require.NoError(t, pwatest.WaitText(ctx, "status-moved", "No answer from the hub for 11 min"))
+	require.NoError(t, pwatest.WaitText(ctx, "status-moved", "127.0.0.1"))
+	h.srv.SetDown(false)
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/sync.js').then((m) => { m.syncSoon(); return true })`, nil))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	require.NoError(t, pwatest.Poll(ctx, `!document.querySelector('[data-testid="status-moved"]')`, 10*time.Second))
+}

@@ -102,6 +102,7 @@ function StatusBar() {
     ${u.waiting && html`<button class="pill warn" type="button" data-testid="status-update" onClick=${applyUpdate}>Update ready — tap to reload</button>`}
     ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync${s.syncing && html`<span data-testid="status-syncing"> · syncing</span>`}</span>`}
     ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this phone</span>`}
+    ${s.reachable === false && s.unreachableSince > 0 && Date.now() - s.unreachableSince > MOVED_AFTER_MS && html`<span class="pill warn" data-testid="status-moved">${movedWords(s.unreachableSince)}</span>`}
     ${s.waiting === 0 && s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…${s.received ? ` ${s.received} received` : ''}</span>`}
     ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
     ${s.waiting === 0 && !s.lastSync && s.reachable === null && !s.syncing && html`<span class="pill" data-testid="status-never">Not synced yet</span>`}
@@ -110,6 +111,19 @@ function StatusBar() {
     ${s.rejected > 0 && html`<button class="pill warn" type="button" data-testid="status-rejected" onClick=${() => navigate('/settings#rejected')}>${plural(s.rejected, 'entry', 'entries')} rejected — tap to see why</button>`}
     ${s.overtaken > 0 && html`<button class="pill warn" type="button" data-testid="status-overtaken" onClick=${() => navigate('/settings#rejected')}>${plural(s.overtaken, 'correction', 'corrections')} overtaken — tap to see</button>`}
   </div>`;
+}
+
+// After this long without the hub, the camp may have moved to another
+// network: the status says what to do.
+const MOVED_AFTER_MS = 10 * 60000;
+
+function movedWords(since) {
+  const min = Math.round((Date.now() - since) / 60000);
+  const host = location.hostname;
+  if (host.endsWith('.local')) {
+    return `No answer from the hub for ${min} min. If the camp moved to another Wi-Fi, join the camp's Wi-Fi on this phone: the app finds the hub again by its name, ${host}. Your entries wait here meanwhile.`;
+  }
+  return `No answer from the hub for ${min} min. If the camp moved, the hub may have a new address: on the coach's laptop, scan the join page's code to open the app by the camp's name. Entries waiting here are sent once the hub answers at ${host} again.`;
 }
 
 function App() {

@@ -204,6 +204,7 @@ export const status = {
   overtaken: 0,
   lastSync: 0,
   reachable: null, // null = not tried yet
+  unreachableSince: 0, // when the hub stopped answering (0: it answers)
   syncing: false,
   error: '',
   clockFixed: false,
@@ -253,6 +254,7 @@ export async function requestSync(reason) {
     } while (again);
     failures = 0;
     status.reachable = true;
+    status.unreachableSince = 0;
     status.error = '';
     schedule(30000);
   } catch (e) {
@@ -261,6 +263,7 @@ export async function requestSync(reason) {
     // is not the hub's JSON (something else at this address).
     status.reachable = !(e instanceof TypeError || e.name === 'AbortError' ||
       (e instanceof HubError && (e.status >= 500 || !e.body || !e.body.code)));
+    if (status.reachable === false && !status.unreachableSince) status.unreachableSince = Date.now();
     status.error = e instanceof HubError && e.status === 401
       ? 'this device is not paired with the hub (or its pass was revoked): open Settings → Join'
       : (e.message || String(e));
