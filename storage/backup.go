@@ -119,9 +119,17 @@ func checkFile(path string, lock time.Duration) (err error) {
 	}
 	defer bdb.Close()
 	return bdb.View(func(tx *bolt.Tx) error {
-		// Pages first, so no lookup follows a damaged page pointer.
+		// Pages first, so no lookup follows a damaged page pointer. The
+		// channel is drained whole: bbolt checks in a goroutine of its own
+		// that must finish before the transaction closes.
+		var damaged error
 		for err := range tx.Check() {
-			return fmt.Errorf("the file is damaged: %v", err)
+			if damaged == nil {
+				damaged = err
+			}
+		}
+		if damaged != nil {
+			return fmt.Errorf("the file is damaged: %v", damaged)
 		}
 		if tx.Bucket(BucketMeta) == nil || tx.Bucket(BucketMeta).Get(keySchema) == nil {
 			return errors.New("it is a database file, but not one Cornerbook wrote (it has no Cornerbook layout)")

@@ -42,9 +42,10 @@ func (db *DB) Check() error {
 		problems = append(problems, fmt.Errorf(format, args...))
 		return len(problems) < maxCheckProblems
 	}
-	for err := range tx.Check() {
-		if !add("bbolt: %w", err) {
-			break
+	full := false
+	for err := range tx.Check() { // drained whole: bbolt checks in its own goroutine
+		if !full && !add("bbolt: %w", err) {
+			full = true
 		}
 	}
 	if len(problems) == 0 {
