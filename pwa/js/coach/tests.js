@@ -12,6 +12,7 @@ import { localDay, parseNum } from '../record.js';
 import { VOCAB } from '../vocab.js';
 import { iftStages } from '../checks.js';
 import { hubGet, remember, recall } from './api.js';
+import { query } from './common.js';
 
 const DONE = 'Saved on this phone';
 
@@ -220,6 +221,7 @@ export function Tests() {
       <${SaveLine} state=${state} />
     </form>
     ${athlete && html`<${TestHistory} athlete=${athlete} />`}
+    <${StrengthLoads} list=${list} />
   </section>`;
 }
 
@@ -270,5 +272,46 @@ export function TestHistory({ athlete }) {
       <ul>${g.slice().reverse().map((e) => html`<li data-testid="test-entry" data-test=${e.test}>
         <span class="num">${e.day}</span> ${e.summary}<br /><span class="muted small">${changeWords(e)}</span></li>`)}</ul>
     </div>`)}
+  </section>`;
+}
+
+// ---- strength loads: a share of each fighter's latest e1RM ----
+
+const PLATE_KG = 2.5; // the bar is loaded in 2.5 kg steps (common practice, no source)
+
+function useLoads(exercise, pct, ids) {
+  const [st, setSt] = useState({ targets: null, error: '' });
+  useEffect(() => {
+    if (!exercise || !(pct > 0) || !ids.length) { setSt({ targets: null, error: '' }); return undefined; }
+    let alive = true;
+    hubGet(query('/api/prescription', { exercise, pct_1rm: pct, athletes: ids.join(',') })).then((r) => { if (alive) setSt({ targets: r.targets, error: '' }); },
+      (e) => { if (alive) setSt({ targets: null, error: e.message }); });
+    return () => { alive = false; };
+  }, [exercise, pct, ids.join(',')]);
+  return st;
+}
+
+export function StrengthLoads({ list }) {
+  const [exercise, setExercise] = useState(EXERCISES[0]);
+  const [pct, setPct] = useState('80');
+  const ids = (list || []).map((a) => a.id);
+  const p = num(pct);
+  const st = useLoads(exercise.trim(), p, ids);
+  return html`<section class="card" data-testid="strength-loads">
+    <h2>Strength loads from the latest e1RM</h2>
+    <label for="sl-exercise">Exercise</label>
+    <input id="sl-exercise" data-testid="sl-exercise" list="sl-exercises" value=${exercise} onInput=${(e) => setExercise(e.target.value)} autocomplete="off" />
+    <datalist id="sl-exercises">${EXERCISES.map((x) => html`<option value=${x} />`)}</datalist>
+    <${NumIn} id="sl-pct" label="Share of the e1RM" unit="%" value=${pct} onInput=${setPct} />
+    ${st.error && html`<p class="muted">Loads come from the hub: ${st.error}.</p>`}
+    ${st.targets && html`<table class="targets" data-testid="sl-table"><thead><tr><th>Fighter</th><th>Latest e1RM</th><th>Load</th></tr></thead><tbody>
+      ${st.targets.map((t) => {
+        const kg = t.target_kg;
+        const e1 = Object.entries(t.e1rm_kg || {}).find(([k]) => k.toLowerCase() === exercise.trim().toLowerCase());
+        return html`<tr data-testid="sl-row" data-athlete=${t.athlete}><td>${t.name}</td>
+          <td class="num">${e1 ? `${e1[1].toFixed(1)} kg (${(t.e1rm_day || {})[e1[0]]})` : '—'}</td>
+          <td class="num" data-testid=${`sl-load-${t.athlete}`}>${kg ? `${kg.toFixed(1)} kg — ${(Math.round(kg / PLATE_KG) * PLATE_KG).toFixed(1)} kg on the bar` : (t.missing || 'no test yet')}</td></tr>`;
+      })}</tbody></table>`}
+    <p class="muted small">The e1RM is the latest test's Epley estimate, else its load–velocity 1RM. A load is a starting point: the fighter's bar speed and reps in reserve on the day decide.</p>
   </section>`;
 }
