@@ -188,6 +188,10 @@ type Baseline struct {
 	SparCap      int      `json:"spar_cap_rounds"` // the week's cap
 	OnHold       bool     `json:"spar_on_hold"`    // a stand-down runs today
 	HoldReason   string   `json:"spar_hold_reason,omitempty"`
+	// Holds are the day's stand-down flags themselves (one per running
+	// incident, and the alert for sparring during one), so ringside words
+	// each restriction as the day board does.
+	Holds []flags.Flag `json:"holds,omitempty"`
 }
 
 func (s *Server) handleBaselines(w http.ResponseWriter, r *http.Request) error {
@@ -243,8 +247,10 @@ func (s *Server) handleBaselines(w http.ResponseWriter, r *http.Request) error {
 		}
 		for _, f := range fl {
 			if f.Rule == flags.RuleSparOnHold && f.Status == flags.StatusFlag {
-				b.OnHold, b.HoldReason = true, f.Reason
-				break
+				if !b.OnHold {
+					b.OnHold, b.HoldReason = true, f.Reason
+				}
+				b.Holds = append(b.Holds, f)
 			}
 		}
 		out = append(out, b)

@@ -190,9 +190,21 @@ func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
 	seen := map[string]bool{}
 	for _, day := range coveringDays(t, h) {
 		require.NoError(t, pwatest.Route(ctx, "/review?day="+day))
-		want, err := h.srv.Flags(day, "")
+		all, err := h.srv.Flags(day, "")
 		require.NoError(t, err)
-		require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelector('[data-testid="review-day"]').value === %q && document.querySelectorAll('[data-testid="flag"]').length === %d`, day, len(want)), 10*time.Second), "day %s", day)
+		// A running stand-down is a restriction in the strip above the
+		// board, not a card among the prompts.
+		var want []flags.Flag
+		held := 0
+		for _, f := range all {
+			if f.Rule == flags.RuleSparOnHold && f.Level == flags.LevelInfo && f.Status == flags.StatusFlag {
+				held++
+				seen[f.Rule] = true
+				continue
+			}
+			want = append(want, f)
+		}
+		require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelector('[data-testid="review-day"]').value === %q && document.querySelectorAll('[data-testid="flag"]').length === %d && document.querySelectorAll('[data-testid="restriction"]').length === %d`, day, len(want), held), 10*time.Second), "day %s", day)
 		cards, err := readCards(ctx)
 		require.NoError(t, err)
 		// Every flag has its card, in the hub's order within each athlete.
@@ -218,8 +230,12 @@ func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
 				if f.Threshold != nil && shownNumber(*f.Threshold, f.Unit, units[a]) != "" {
 					assert.Contains(t, c.Numbers, shownNumber(*f.Threshold, f.Unit, units[a]), "%s %s threshold", day, f.Rule)
 				}
+				// The setting is said in words with its value, never by its key.
 				if f.ThresholdName != "" {
-					assert.Contains(t, c.Threshold, f.ThresholdName)
+					assert.NotContains(t, c.Threshold, f.ThresholdName)
+				}
+				if f.ThresholdName != "" && f.Threshold != nil && shownNumber(*f.Threshold, f.Unit, units[a]) != "" {
+					assert.Contains(t, c.Threshold, shownNumber(*f.Threshold, f.Unit, units[a]), "%s %s threshold in words", day, f.Rule)
 				}
 				assert.Equal(t, f.Caution, c.Caution)
 				if f.Status == flags.StatusFlag {
@@ -227,10 +243,10 @@ func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
 				}
 			}
 		}
-		// Athletes are ordered by their most serious card: alert before
-		// watch before info before "not enough data yet".
+		// Athletes on a stand-down come first; then by their most serious
+		// card: alert before watch before info before "not enough data yet".
 		var order []int
-		require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid^="review-athlete-"]')].map((b) => Math.min(9, ...[...b.querySelectorAll('[data-testid="flag"]')].map((c) => ['alert','watch','info','forming'].indexOf(c.dataset.level))))`, &order))
+		require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid^="review-athlete-"]')].map((b) => b.dataset.held === 'true' ? -1 : Math.min(9, ...[...b.querySelectorAll('[data-testid="flag"]')].map((c) => ['alert','watch','info','forming'].indexOf(c.dataset.level))))`, &order))
 		for i := 1; i < len(order); i++ {
 			assert.LessOrEqual(t, order[i-1], order[i], "%s: athletes most serious first", day)
 		}
@@ -281,7 +297,7 @@ func TestCoachReviewShowsEveryRuleWithItsNumbers(t *testing.T) {
 	h.srv.SetDown(true)
 	defer h.srv.SetDown(false)
 	require.NoError(t, pwatest.Reload(ctx))
-	if err := pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector('[data-testid="review-fresh"][data-live="false"]') && document.querySelectorAll('[data-testid="flag"]').length === %d`, len(mustFlags(t, h, coachDay))), 15*time.Second); err != nil {
+	if err := pwatest.Poll(ctx, fmt.Sprintf(`document.querySelector('[data-testid="review-fresh"][data-live="false"]') && document.querySelectorAll('[data-testid="flag"], [data-testid="restriction"]').length === %d`, len(mustFlags(t, h, coachDay))), 15*time.Second); err != nil {
 		var st string
 		pwatest.Eval(ctx, `location.href + ' | ' + document.querySelector('#screen').innerText.slice(0, 100) + ' | ' + document.querySelectorAll('[data-testid="flag"]').length`, &st)
 		t.Fatalf("%v\nscreen: %s", err, st)
@@ -366,7 +382,7 @@ func TestCoachAthletePageDrawsAllFiveCharts(t *testing.T) {
 	h := startCoachHub(t)
 	tomas := h.ids()["Tomas Varga"]
 	ctx := coachBrowser(t, h, "/athlete?id="+tomas+"&day="+coachDay)
-	charts := []string{"chart-mass", "chart-jump", "chart-load", "chart-spar", "chart-wellness"}
+	charts := []string{"chart-mass", "chart-jump", "chart-load", "chart-ratio", "chart-spar", "chart-wellness"}
 	for _, c := range charts {
 		require.NoError(t, pwatest.Poll(ctx, fmt.Sprintf(`(() => { const e = document.querySelector(%q); if (!e) return false;
 			const cv = e.querySelector('canvas'); return !!cv && cv.width > 0 && cv.height > 0 && Number(e.dataset.points) > 0 && Number(e.dataset.series) >= 3 })()`, pwatest.Q(c)), 15*time.Second), c)
@@ -685,5 +701,8 @@ func TestCoachWallSheetPrintsOnOnePage(t *testing.T) {
 		res, err := chromedp.Call(ctx, page.PrintToPDF, page.PrintToPDFParams{PaperWidth: paper.w, PaperHeight: paper.h})
 		require.NoError(t, err)
 		assert.Equal(t, 1, pdfPages(res.Data), "the wall sheet for 8 fighters fits one %s page", paper.name)
+		if paper.name == "A4" { // the printed sheet as the coach pins it up
+			require.NoError(t, os.WriteFile(filepath.Join(pwatest.ShotDir(t), "coach-sheet-print-A4.pdf"), res.Data, 0o644))
+		}
 	}
 }

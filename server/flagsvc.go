@@ -597,8 +597,26 @@ func (s *Server) handleFlags(w http.ResponseWriter, r *http.Request) error {
 	if fl == nil {
 		fl = []flags.Flag{}
 	}
-	writeJSON(w, http.StatusOK, map[string]any{"day": day, "flags": fl})
+	// The athletes the answer may name, so a screen can show names before
+	// its device has pulled the athlete records.
+	ath, err := s.flags.Athletes()
+	if err != nil {
+		return err
+	}
+	names := []athleteRef{}
+	for _, a := range ath {
+		if athlete == "" || a.ID == athlete {
+			names = append(names, athleteRef{ID: a.ID, Name: athleteName(a)})
+		}
+	}
+	writeJSON(w, http.StatusOK, map[string]any{"day": day, "flags": fl, "athletes": names})
 	return nil
+}
+
+// athleteRef names an athlete in an answer about flags.
+type athleteRef struct {
+	ID   string `json:"id"`
+	Name string `json:"name"`
 }
 
 func addDays(day string, n int) (string, error) {

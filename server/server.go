@@ -156,6 +156,7 @@ func (s *Server) Handler() http.Handler {
 	s.routeAccounts(api)
 	s.routeAthletes(api)
 	s.routeTests(api)
+	s.routeGlance(api)
 	api.PathPrefix("/").HandlerFunc(s.serve(func(w http.ResponseWriter, r *http.Request) error {
 		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
 	}))

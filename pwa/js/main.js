@@ -1,6 +1,6 @@
 // App entry: router, status bar, service-worker registration and update.
 import { html, render } from '/vendor/htm/standalone.module.js';
-import { useState, useEffect, useRoute, Link, navigate, plural } from './ui.js';
+import { useState, useEffect, useRef, useRoute, routeCount, Link, navigate, plural, thisDevice } from './ui.js';
 import { onStatus, startSync } from './sync.js';
 import { deviceId, getMeta } from './db.js';
 import { setClockOffset } from './record.js';
@@ -101,7 +101,7 @@ function StatusBar() {
     ${navigator.standalone === false && html`<span class="pill warn" data-testid="status-install">On iPhone, install first: Share → Add to Home Screen. Entries made in a Safari tab stay in that tab, apart from the installed app.</span>`}
     ${u.waiting && html`<button class="pill warn" type="button" data-testid="status-update" onClick=${applyUpdate}>Update ready — tap to reload</button>`}
     ${s.waiting > 0 && html`<span class="pill" data-testid="status-waiting" data-count=${s.waiting}>${plural(s.waiting, 'entry', 'entries')} waiting to sync${s.syncing && html`<span data-testid="status-syncing"> · syncing</span>`}</span>`}
-    ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this phone</span>`}
+    ${s.reachable === false && html`<span class="pill warn" data-testid="status-unreachable">Hub unreachable — your entries are safe on this ${thisDevice()}</span>`}
     ${s.reachable === false && s.unreachableSince > 0 && Date.now() - s.unreachableSince > MOVED_AFTER_MS && html`<span class="pill warn" data-testid="status-moved">${movedWords(s.unreachableSince)}</span>`}
     ${s.waiting === 0 && s.syncing && html`<span class="pill" data-testid="status-syncing">Syncing…${s.received ? ` ${s.received} received` : ''}</span>`}
     ${s.waiting === 0 && s.lastSync > 0 && s.reachable !== false && !s.syncing && html`<span class="pill ok" data-testid="status-synced">Synced ${ago(s.lastSync)}</span>`}
@@ -128,6 +128,12 @@ function movedWords(since) {
 
 function App() {
   const { path } = useRoute();
+  // A screen is mounted afresh when the user goes to an address (a link,
+  // Back), not when the screen itself rewrites its query in place (day,
+  // filters): a re-render of the shell must never remount the screen and
+  // lose what is being typed on it.
+  const nav = useRef(null);
+  if (!nav.current || nav.current.n !== routeCount()) nav.current = { n: routeCount(), key: path + location.search };
   const [build, setBuild] = useState(sw.build);
   useEffect(() => { const fn = (x) => setBuild(x.build); sw.subs.add(fn); fn(sw); return () => sw.subs.delete(fn); }, []);
   const Screen = ROUTES[path] || NotFound;
@@ -138,7 +144,7 @@ function App() {
       <${Link} to="/settings" class="gear" data-testid="nav-settings">Settings</${Link}>
     </header>
     <${StatusBar} />
-    <main id="screen" data-address=${path + location.search}><${Screen} key=${path + location.search} build=${build} /></main>`;
+    <main id="screen" data-address=${path + location.search}><${Screen} key=${nav.current.key} build=${build} /></main>`;
 }
 
 function NotFound() {

@@ -1,16 +1,15 @@
 // Coach screens: jump grid and rounds ringside (intervals: coach/intervals.js).
 import {
   html, useState, useEffect, useAthletes, useAthlete, AthleteSelect, NoAthletes, Choice, SaveLine, savedState,
-  useAsync, useVersion, fmt, plural,
+  useAsync, useVersion, fmt, plural, savedHere, Link,
 } from './ui.js';
 import { save, remove, getRecord, byDay } from './db.js';
 import { localDay, parseNum, attemptStats, heightFromFlightMs } from './record.js';
 import { uuidv7 } from './uuid.js';
 import { fieldOf } from './checks.js';
 import { openIncidents } from './screens.js';
-import { useStanding, RoundClock, AthleteChips, useSparGate, RingsideIncident, JumpRef } from './ringside/index.js';
+import { useStanding, RoundClock, AthleteChips, useSparGate, RingsideIncident, JumpRef, RingsideRestrictions } from './ringside/index.js';
 
-const DONE = 'Saved on this phone';
 const ATTEMPTS = 3;
 
 function useEdit(kind) {
@@ -25,9 +24,48 @@ function useEdit(kind) {
 const rangeOf = (path) => { const x = fieldOf('jump', path); return [x.min, x.max, x.unit]; };
 const RANGE = { height: rangeOf('body.heights_cm[]'), flight: rangeOf('body.flight_ms[]') };
 
+// useTodaysTests: each athlete's CMJ tests of today on this device,
+// earliest first. The earliest is the day's monitoring test; a later one
+// is shown but does not enter the day's value or the baseline.
+function useTodaysTests(day) {
+  const v = useVersion();
+  return useAsync(async () => {
+    const by = {};
+    for (const r of await byDay(day)) {
+      if (r.kind !== 'jump' || r.deleted || !r.body || (r.body.test && r.body.test !== 'cmj')) continue;
+      (by[r.athlete] = by[r.athlete] || []).push(r);
+    }
+    for (const k of Object.keys(by)) by[k].sort((a, b) => Date.parse(a.at) - Date.parse(b.at));
+    return by;
+  }, [day, v], {});
+}
+
+// testMeanCm: the mean height of a stored test's attempts, in cm.
+function testMeanCm(b) {
+  if (Number.isFinite(b.mean_cm)) return b.mean_cm;
+  const st = attemptStats(Array.isArray(b.heights_cm) && b.heights_cm.length ? b.heights_cm : (b.flight_ms || []).map(heightFromFlightMs));
+  return st ? st.mean : null;
+}
+
+const clockOf = (at) => { const d = new Date(at); return Number.isFinite(d.getTime()) ? `${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}` : ''; };
+
+// TestedToday: "Tested today at 09:42, mean 41.3 cm", with a way to
+// correct that test; typing a new one is labelled as a second test.
+function TestedToday({ a, tests, typing }) {
+  if (!tests || !tests.length) return null;
+  const first = tests[0];
+  const m = testMeanCm(first.body);
+  return html`<span class="rs-tested" data-testid=${`jump-tested-${a.id}`} data-record=${first.id} data-count=${tests.length}>
+    Tested today at ${clockOf(first.at)}${m != null ? `, mean ${fmt(m, 1)} cm` : ''}${tests.length > 1 ? ` (and ${plural(tests.length - 1, 'later test', 'later tests')}, kept out of the baseline)` : ''}.
+    <${Link} to=${`/jumps?edit=${encodeURIComponent(first.id)}`} class="secondary linkbtn" data-testid=${`jump-correct-${a.id}`}>Correct that test</${Link}>
+    ${typing && html`<b class="rs-second" data-testid=${`jump-second-${a.id}`}>New attempts here save a second test: it is shown, but the first test stays the day's value and the baseline's.</b>`}
+  </span>`;
+}
+
 export function Jumps() {
   const list = useAthletes();
   const editing = useEdit('jump');
+  const tested = useTodaysTests(localDay());
   const [mode, setMode] = useState('height');
   const [method, setMethod] = useState('mat');
   const [cells, setCells] = useState({});
@@ -81,7 +119,8 @@ export function Jumps() {
         if (session) body.session = session;
         await save({ id: editing && editing.id, kind: 'jump', athlete: a.id, day: editing ? editing.day : localDay(), body });
       }
-      setState(savedState(`${DONE}: ${plural(todo.length, 'jump test', 'jump tests')}`));
+      const seconds = editing ? 0 : todo.filter(([a]) => (tested[a.id] || []).length > 0).length;
+      setState(savedState(`${savedHere()}: ${plural(todo.length, 'jump test', 'jump tests')}${seconds ? ` (${plural(seconds, 'second test', 'second tests')} of the day, kept out of the baseline)` : ''}`));
       if (!editing) setCells({});
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -104,7 +143,8 @@ export function Jumps() {
           const st = attemptStats(valuesOf(a.id).filter((x) => x >= lo && x <= hi));
           const cm = (x) => (mode === 'flight' ? ` ms (≈ ${fmt(heightFromFlightMs(x), 1)} cm)` : ' cm');
           return html`<tr data-testid=${`jump-row-${a.id}`} data-athlete-name=${a.name}>
-            <td>${a.name}<${JumpRef} id=${a.id} standing=${standing} mode=${mode} values=${valuesOf(a.id).filter((x) => x >= lo && x <= hi)} /></td>
+            <td>${a.name}<${JumpRef} id=${a.id} standing=${standing} mode=${mode} values=${valuesOf(a.id).filter((x) => x >= lo && x <= hi)} />
+              ${!editing && html`<${TestedToday} a=${a} tests=${tested[a.id]} typing=${valuesOf(a.id).length > 0} />`}</td>
             ${Array.from({ length: ATTEMPTS }, (_, i) => {
               const k = `${a.id}:${i}`;
               return html`<td><input inputmode="decimal" autocomplete="off" aria-label=${`${a.name}, attempt ${i + 1}, ${unit}`}
@@ -170,7 +210,7 @@ export function Rounds() {
       }
       setLast(editing ? null : ids);
       const names = chosen.map((id) => (list.find((a) => a.id === id) || {}).name).join(', ');
-      setState(savedState(`${DONE}: ${editing ? 'round corrected' : `round for ${names}`}`));
+      setState(savedState(`${savedHere()}: ${editing ? 'round corrected' : `round for ${names}`}`));
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
   const undo = async () => {
@@ -184,6 +224,7 @@ export function Rounds() {
 
   return html`<section data-testid="screen-rounds">
     <h1>Rounds</h1>
+    <${RingsideRestrictions} list=${list} standing=${standing} day=${today} />
     ${!editing && html`<${RoundClock} onLog=${tryDone} names=${chosen.map((id) => (list.find((a) => a.id === id) || {}).name)} onLength=${setSeconds} />`}
     <label>Who is in this round?</label>
     <${AthleteChips} list=${list} chosen=${chosen} toggle=${toggle} counts=${counts} editing=${editing} standing=${standing} localHolds=${holds} />

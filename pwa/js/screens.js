@@ -1,14 +1,13 @@
 // Home, morning check-in, session RPE, incident and clearance.
 import {
   html, useState, useEffect, useRef, Link, navigate, useAthletes, useAthlete, AthleteSelect, NoAthletes,
-  Choice, SaveLine, savedState, useAsync, useVersion, getPicked, setPicked, fmt,
+  Choice, SaveLine, savedState, useAsync, useVersion, getPicked, setPicked, fmt, savedHere,
 } from './ui.js';
-import { save, getRecord, byKind, byAthleteDay } from './db.js';
+import { save, getRecord, byKind, byAthleteDay, getMeta } from './db.js';
 import { VOCAB } from './vocab.js';
 import { checkBody, fieldOf } from './checks.js';
 import { localDay, toKg, fromKg, roundTo, parseNum } from './record.js';
 
-const DONE = 'Saved on this phone';
 
 // useEditing loads the record named by ?edit=, if any.
 function useEditing(kind) {
@@ -38,21 +37,39 @@ const TILES = [
   ['/camp', 'Camp set-up', 'athletes, devices, backup', 'nav-camp'],
 ];
 
+// Home: on a coach's or staff device (or a hub without pairing) the camp
+// at a glance comes first, with the logging tiles right below; on an
+// athlete's phone, who is logging and the tiles.
 export function Home() {
   const list = useAthletes();
   const [picked, setP] = useState(getPicked());
+  const role = useAsync(() => getMeta('role').then((r) => r || ''), [], null);
+  const Glance = useAsync(() => (role !== null && role !== 'athlete' ? import('./coach/glance.js').then((m) => ({ C: m.CampGlance })) : Promise.resolve(null)), [role], null);
   const pick = (id) => { setPicked(id); setP(id); };
-  return html`<section data-testid="screen-home">
-    <h1>Who is logging?</h1>
-    ${list === null ? html`<p class="muted">Loading…</p>` : !list.length ? html`<${NoAthletes} />` : html`
+  if (role === null || list === null) return html`<section data-testid="screen-home" data-ready="false"><p class="muted">Loading…</p></section>`;
+  const coach = role !== 'athlete';
+  const picker = !list.length ? html`<${NoAthletes} />` : html`
       <div class="chips" data-testid="athlete-picker" role="group" aria-label="Athlete">
         ${list.map((a) => html`<button type="button" class="chip" data-testid="athlete-option" data-athlete=${a.id}
           aria-pressed=${picked === a.id ? 'true' : 'false'} onClick=${() => pick(a.id)}>${a.name}</button>`)}
-      </div>`}
-    <h2>Log</h2>
-    <nav class="tiles">
+      </div>`;
+  const tiles = html`<nav class="tiles">
       ${TILES.map(([to, t, sub, id]) => html`<${Link} to=${to} class="tile" data-testid=${id}>${t}<span>${sub}</span></${Link}>`)}
-    </nav>
+    </nav>`;
+  if (coach) {
+    return html`<section data-testid="screen-home" data-ready="true" data-home="camp">
+      ${Glance ? html`<${Glance.C} rows=${list.length} />` : html`<div class="camp-glance" style=${`min-height: ${Math.max(1, list.length) * 64 + 60}px`}><h1>The camp today</h1></div>`}
+      <h2>Log</h2>
+      ${tiles}
+      <h2>Who is logging on this device?</h2>
+      ${picker}
+    </section>`;
+  }
+  return html`<section data-testid="screen-home" data-ready="true" data-home="athlete">
+    <h1>Who is logging?</h1>
+    ${picker}
+    <h2>Log</h2>
+    ${tiles}
   </section>`;
 }
 
@@ -135,7 +152,7 @@ export function Checkin() {
     setState({ saving: true });
     try {
       await save({ id, kind: 'checkin', athlete: athlete.id, day, body });
-      setState(savedState(id && !editing ? `${DONE}: today's check-in corrected` : DONE));
+      setState(savedState(id && !editing ? `${savedHere()}: today's check-in corrected` : savedHere()));
       if (!editing) setF({});
     } catch (err) {
       setState({ error: `Not saved: ${err.message}` });
@@ -235,7 +252,7 @@ export function Session() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: 'session', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState(savedState(DONE));
+      setState(savedState(savedHere()));
       if (!editing) setF({ type: f.type, focus: '' });
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -302,7 +319,7 @@ export function Incident() {
       const body = { type };
       if (note.trim()) body.note = note.trim();
       await save({ id: editing && editing.id, kind: 'incident', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState(savedState(DONE));
+      setState(savedState(savedHere()));
       setStep('done');
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -373,7 +390,7 @@ export function Clearance() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: 'clearance', athlete: athlete.id, day: editing ? editing.day : localDay(), body });
-      setState(savedState(DONE));
+      setState(savedState(savedHere()));
       setIncident(undefined); setBy(''); setNote('');
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };

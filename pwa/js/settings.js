@@ -1,5 +1,5 @@
 // Settings: this device, the hub, storage, rejected entries, app version.
-import { html, useState, useEffect, useAsync, useVersion, useAthletes, navigate } from './ui.js';
+import { html, useState, useEffect, useAsync, useVersion, useAthletes, navigate, savedHere } from './ui.js';
 import { allMeta, setMeta, rejectedList, discard, save, observeStamp } from './db.js';
 import { requestSync } from './sync.js';
 import { VOCAB } from './vocab.js';
@@ -54,7 +54,7 @@ export function Settings({ build }) {
   const saveName = async (e) => {
     e.preventDefault();
     await setMeta('deviceName', (name ?? meta.deviceName ?? '').trim());
-    setSaved('Saved on this phone');
+    setSaved(savedHere());
   };
   const persistText = {
     granted: 'Granted: the browser will not clear this app\'s entries when storage runs low.',

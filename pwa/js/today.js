@@ -39,7 +39,7 @@ export function summary(r, units) {
     case 'fitness_test': case 'strength': return testLine(r);
     case 'jump': {
       if (b.test === 'dj') return testLine(r);
-      const v = b.heights_cm && b.heights_cm.length ? b.heights_cm.map((x) => `${x} cm`) : (b.flight_ms || []).map((x) => `${x} ms`);
+      const v = b.heights_cm && b.heights_cm.length ? b.heights_cm.map((x) => `${fmt(x, 1)} cm`) : (b.flight_ms || []).map((x) => `${x} ms`);
       return `CMJ ${v.join(', ')}${b.best_cm ? ` — best ${fmt(b.best_cm, 1)} cm, mean ${fmt(b.mean_cm, 1)} cm` : ''}`;
     }
     case 'round': return `${ACT[b.activity] || b.activity}, ${INT[b.intensity] || ''}, ${fmt(b.seconds / 60, 0)} min`;

@@ -6,10 +6,15 @@ export { html, useState, useEffect, useRef, useCallback };
 
 // ---- routing (history API) ----
 const routeSubs = new Set();
+// routes counts the moves to a new address (navigate, Back, Forward).
+let routes = 0;
+export const routeCount = () => routes;
+addEventListener('popstate', () => { routes++; });
 export function navigate(to, replace) {
   if (to === location.pathname + location.search) return;
   if (replace) history.replaceState(null, '', to);
   else history.pushState(null, '', to);
+  routes++;
   routeSubs.forEach((fn) => fn());
   window.scrollTo(0, 0);
 }
@@ -112,6 +117,15 @@ export function SaveLine({ state }) {
   if (state.saved) return html`<p class="saved" role="status" data-testid="saved" data-seq=${state.seq}>${state.saved}</p>`;
   return null;
 }
+
+// thisDevice names what the person holds, for "Saved on this phone" and
+// the like: a laptop (the hub, a fine pointer), a phone or a tablet.
+export function thisDevice() {
+  const coarse = typeof matchMedia === 'function' && matchMedia('(pointer: coarse)').matches;
+  if (!coarse) return 'laptop';
+  return Math.min(screen.width, screen.height) < 600 ? 'phone' : 'tablet';
+}
+export const savedHere = () => `Saved on this ${thisDevice()}`;
 
 export function fmt(x, d = 1) {
   return Number.isFinite(x) ? x.toFixed(d) : '–';

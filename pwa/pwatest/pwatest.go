@@ -374,7 +374,7 @@ func athleteID(ctx context.Context, prefix, name string) (string, error) {
 	return id, err
 }
 
-const saved = "Saved on this phone"
+const saved = "Saved on this "
 
 // SaveAndWait taps a save button and waits for this tap's confirmation,
 // which the app shows only after the IndexedDB transaction completed.

@@ -84,6 +84,7 @@ export function AthletePage() {
       <${MassChart} s=${st.s} future=${st.future} units=${units} />
       <${JumpChart} s=${st.s} />
       <${LoadChart} s=${st.s} />
+      <${RatioChart} s=${st.s} />
       <${SparChart} s=${st.s} />
       <${WellnessChart} s=${st.s} />
       <${PlanChart} id=${id} day=${day} />
@@ -95,7 +96,7 @@ export function AthletePage() {
 // Chart is one card: title, the plot, a legend in words, the summary.
 function Chart({ testid, title, summary, legend, build, deps }) {
   const el = useRef(null);
-  const [info, setInfo] = useState({ points: 0, series: 0, error: '' });
+  const [info, setInfo] = useState({ points: 0, series: 0, error: '', lines: '', marks: '' });
   useEffect(() => {
     let plot = null;
     let alive = true;
@@ -104,11 +105,14 @@ function Chart({ testid, title, summary, legend, build, deps }) {
     draw(el.current, x, ys, spec).then((u) => {
       if (!alive) { u.destroy(); return; }
       plot = u;
-      setInfo({ points, series: ys.length, error: '' });
-    }, (e) => alive && setInfo({ points: 0, series: 0, error: e.message }));
+      // What is drawn, named: each series and each labelled marker.
+      const lines = spec.series.map((x) => x.label).join('|');
+      const marks = [...(spec.marks || []).map((m) => m.label), ...(spec.labels || []).filter((l) => Number.isFinite(l.y)).map((l) => l.text)].join('|');
+      setInfo({ points, series: ys.length, error: '', lines, marks });
+    }, (e) => alive && setInfo({ points: 0, series: 0, error: e.message, lines: '', marks: '' }));
     return () => { alive = false; if (plot) plot.destroy(); };
   }, deps);
-  return html`<figure class="chart card" data-testid=${testid} data-points=${info.points} data-series=${info.series} aria-labelledby=${`${testid}-t`}>
+  return html`<figure class="chart card" data-testid=${testid} data-points=${info.points} data-series=${info.series} data-lines=${info.lines} data-marks=${info.marks} aria-labelledby=${`${testid}-t`}>
     <h2 id=${`${testid}-t`}>${title}</h2>
     <div class="plot" ref=${el} role="img" aria-label=${summary}></div>
     ${info.error && html`<p class="error">The chart could not be drawn (${info.error}); the numbers are below.</p>`}
@@ -148,7 +152,7 @@ function MassChart({ s, future, units }) {
   if (pw.length) summary += ` Projected weigh-in mass: ${pw.join(', or ')}.`;
   if (iLoss >= 0) summary += m.loss_pct_week[iLoss] >= 0 ? ` Losing ${fmtN(m.loss_pct_week[iLoss], 2)} % of body mass a week over the last 14 days.` : ` Gaining ${fmtN(-m.loss_pct_week[iLoss], 2)} % of body mass a week over the last 14 days.`;
   const legend = [['morning mass', c.accent, 'dot'], ['trend', c.ink], ['planned path', c.accent, 'dash'], [lim ? 'limit' : 'no limit', c.warm]];
-  if (pw.length) legend.push(['projected weigh-in', c.watch, 'dot']);
+  if (pw.length) legend.push(['projected weigh-in mass (filled: at a steady rate; hollow: at the recent rate)', c.watch, 'dot']);
   return html`<div class="chart-wrap">
     <${Chart} testid="chart-mass" title=${`Morning mass against the plan (${units})`} summary=${summary} legend=${legend}
       deps=${[s, future, units]} build=${() => ({
@@ -164,6 +168,15 @@ function MassChart({ s, future, units }) {
             ...proj.map((p) => ({ label: p.label, stroke: c.watch, kind: 'points', size: p.method === 'rate' ? 10 : 7, fill: p.method === 'rate' ? c.watch : 'transparent' })),
           ],
           marks: m.weigh_in_day ? [{ x: dayTs(m.weigh_in_day), label: 'weigh-in', color: c.warm }] : [],
+          // Every marker named: the limit line, and each projected
+          // weigh-in mass with the assumption behind it.
+          labels: [
+            ...(lim ? [{ x: dayTs(days[0]), y: massNum(lim, units), text: `limit ${mass(lim, units)}`, color: c.warm, below: true }] : []),
+            ...proj.filter((p) => p.i >= 0 && wiIdx >= 0).map((p, k) => ({
+              x: dayTs(m.weigh_in_day), y: massNum(p.weigh_in_kg[p.i], units), color: c.watch, below: k % 2 === 1,
+              text: `projected ${mass(p.weigh_in_kg[p.i], units)} ${p.method === 'rate' ? `at ${fmtN(p.rate_pct_week, 1)} %/week` : 'at the recent rate'}`,
+            })),
+          ],
         },
       })} />
     <p class="caution" data-testid="chart-mass-caution">${MASS_CAUTION}</p>
@@ -206,26 +219,53 @@ function LoadChart({ s }) {
   const l = s.load;
   const c = colors();
   const i = last(l.daily_au);
-  const r = last(l.ratio);
   let summary = i < 0 ? 'No sessions on record.' : `Load ${shortDay(s.days[i])}: ${fmtN(l.daily_au[i], 0)} AU (session RPE × minutes).`;
-  if (i >= 0 && l.acute_au[i] != null) summary += ` Acute ${fmtN(l.acute_au[i], 0)} AU a day, chronic ${fmtN(l.chronic_au[i], 0)} AU a day.`;
-  if (r >= 0) summary += ` Acute:chronic ratio ${fmtN(l.ratio[r], 2)} (watch above ${fmtN(l.watch_ratio, 2)}, low under ${fmtN(l.low_ratio, 2)}).`;
-  else summary += ` Ratio not shown yet: it needs ${l.ratio_min_days} days on record (not enough data yet).`;
+  if (i >= 0 && l.acute_au[i] != null) summary += ` Acute ${fmtN(l.acute_au[i], 0)} AU a day (7-day weighted), chronic ${fmtN(l.chronic_au[i], 0)} AU a day (28-day weighted).`;
   if (i >= 0 && l.week_level[i]) summary += ` Planned this week: ${(LEVEL_WORDS[l.week_level[i]] || l.week_level[i]).toLowerCase()}${l.planned_week_au[i] != null ? `, ${fmtN(l.planned_week_au[i], 0)} AU` : ''}.`;
-  summary += ` ${l.caution}`;
-  return html`<${Chart} testid="chart-load" title="Daily session load and the acute:chronic ratio" summary=${summary}
-    legend=${[['daily load (AU)', c.accent, 'bar'], ['acute:chronic ratio', c.ink], [`watch line ${fmtN(l.watch_ratio, 1)}`, c.warm, 'dash']]}
+  return html`<${Chart} testid="chart-load" title="Daily session load (AU)" summary=${summary}
+    legend=${[['load that day', c.accent, 'bar'], ['acute: 7-day weighted mean', c.warm], ['chronic: 28-day weighted mean', c.ink, 'dash']]}
     deps=${[s]} build=${() => ({
       x: s.days.map(dayTs),
-      ys: [l.daily_au, l.ratio, s.days.map(() => l.watch_ratio)],
+      ys: [l.daily_au, l.acute_au, l.chronic_au],
       spec: {
         yLabel: 'AU',
-        scales: { ratio: { range: (u, lo, hi) => [0, Math.max(2, hi || 0)] }, y: { range: (u, lo, hi) => [0, Math.max(100, hi || 0) * 1.08] } },
-        y2: { scale: 'ratio', label: 'ratio' },
+        scales: { y: { range: (u, lo, hi) => [0, Math.max(100, hi || 0) * 1.08] } },
         series: [
           { label: 'daily load', stroke: c.accent, kind: 'bars', fill: hexA(c.accent, 0.55) },
-          { label: 'ratio', stroke: c.ink, width: 2.5, scale: 'ratio' },
-          { label: 'watch', stroke: c.warm, kind: 'dash', width: 1.5, scale: 'ratio' },
+          { label: 'acute', stroke: c.warm, width: 2.5 },
+          { label: 'chronic', stroke: c.ink, kind: 'dash', width: 2 },
+        ],
+      },
+    })} />`;
+}
+
+// RatioChart: the acute:chronic ratio in a panel of its own, on its own
+// scale (a ratio, not a load), with the watch and low lines named.
+function RatioChart({ s }) {
+  const l = s.load;
+  const c = colors();
+  const r = last(l.ratio);
+  let summary = r >= 0 ? `Acute:chronic ratio ${shortDay(s.days[r])}: ${fmtN(l.ratio[r], 2)} (watch above ${fmtN(l.watch_ratio, 2)}, low under ${fmtN(l.low_ratio, 2)} outside the taper).`
+    : `Ratio not shown yet: it needs ${l.ratio_min_days} days on record (not enough data yet).`;
+  summary += ` ${l.caution}`;
+  const x0 = dayTs(s.days[0]);
+  return html`<${Chart} testid="chart-ratio" title="Acute:chronic load ratio (no unit; 1.0 = load as usual)" summary=${summary}
+    legend=${[['ratio', c.ink], [`watch above ${fmtN(l.watch_ratio, 1)}`, c.warm, 'dash'], [`low under ${fmtN(l.low_ratio, 1)}`, c.muted, 'dash']]}
+    deps=${[s]} build=${() => ({
+      x: s.days.map(dayTs),
+      ys: [l.ratio, s.days.map(() => l.watch_ratio), s.days.map(() => l.low_ratio)],
+      spec: {
+        yLabel: 'ratio',
+        height: 190,
+        scales: { y: { range: (u, lo, hi) => [0, Math.max(2, (hi || 0) * 1.1)] } },
+        series: [
+          { label: 'ratio', stroke: c.ink, width: 2.5 },
+          { label: 'watch', stroke: c.warm, kind: 'dash', width: 1.5 },
+          { label: 'low', stroke: c.muted, kind: 'dash', width: 1.5 },
+        ],
+        labels: [
+          { x: x0, y: l.watch_ratio, text: `watch ${fmtN(l.watch_ratio, 1)}`, color: c.warm },
+          { x: x0, y: l.low_ratio, text: `low ${fmtN(l.low_ratio, 1)}`, color: c.muted, below: true },
         ],
       },
     })} />`;
@@ -235,21 +275,30 @@ function SparChart({ s }) {
   const sp = s.sparring;
   const c = colors();
   const n = s.days.length - 1;
-  let summary = `7 days to ${shortDay(s.days[n])}: ${sp.rolling_rounds[n]} sparring rounds against a cap of ${sp.cap_rounds[n]}; ${sp.rolling_hard_rounds[n]} hard against a hard cap of ${sp.hard_caps ? sp.hard_caps[n] : sp.hard_cap_rounds}.`;
-  summary += ` Today ${sp.rounds[n]} rounds (${sp.hard_rounds[n]} hard).`;
-  return html`<${Chart} testid="chart-spar" title="Sparring rounds per day and the 7-day total against the cap" summary=${summary}
-    legend=${[['rounds that day', c.accent, 'bar'], ['hard rounds that day', c.warm, 'bar'], ['7-day total', c.ink], ['weekly cap', c.warm, 'dash']]}
+  const hardCaps = sp.hard_caps && sp.hard_caps.length ? sp.hard_caps : s.days.map(() => sp.hard_cap_rounds);
+  const x0 = dayTs(s.days[0]);
+  let summary = `7 days to ${shortDay(s.days[n])}: ${sp.rolling_rounds[n]} sparring rounds against a cap of ${sp.cap_rounds[n]}; ${sp.rolling_hard_rounds[n]} hard rounds against a hard-round cap of ${hardCaps[n]}.`;
+  summary += ` That day ${sp.rounds[n]} ${sp.rounds[n] === 1 ? 'round' : 'rounds'} (${sp.hard_rounds[n]} hard).`;
+  return html`<${Chart} testid="chart-spar" title="Sparring rounds: 7-day totals against the caps, all rounds and hard rounds" summary=${summary}
+    legend=${[['rounds that day', c.accent, 'bar'], ['hard rounds that day', c.warm, 'bar'], ['7-day total', c.ink], ['weekly cap', c.ink, 'dash'], ['7-day hard rounds', c.warm], ['hard-round cap', c.warm, 'dash']]}
     deps=${[s]} build=${() => ({
       x: s.days.map(dayTs),
-      ys: [sp.rounds, sp.hard_rounds, sp.rolling_rounds, sp.cap_rounds],
+      ys: [sp.rounds, sp.hard_rounds, sp.rolling_rounds, sp.cap_rounds, sp.rolling_hard_rounds, hardCaps],
       spec: {
         yLabel: 'rounds',
-        scales: { y: { range: (u, lo, hi) => [0, Math.max(10, hi || 0) * 1.1] } },
+        height: 260,
+        scales: { y: { range: (u, lo, hi) => [0, Math.max(10, hi || 0) * 1.15] } },
         series: [
           { label: 'rounds', stroke: c.accent, kind: 'bars', fill: hexA(c.accent, 0.5) },
           { label: 'hard rounds', stroke: c.warm, kind: 'bars', fill: hexA(c.warm, 0.7) },
           { label: '7-day total', stroke: c.ink, width: 2.5 },
-          { label: 'cap', stroke: c.warm, kind: 'dash', width: 2 },
+          { label: 'weekly cap', stroke: c.ink, kind: 'dash', width: 2 },
+          { label: '7-day hard rounds', stroke: c.warm, width: 2.5 },
+          { label: 'hard-round cap', stroke: c.warm, kind: 'dash', width: 2 },
+        ],
+        labels: [
+          { x: x0, y: sp.cap_rounds[0], text: `weekly cap ${sp.cap_rounds[0]}`, color: c.ink },
+          { x: x0, y: hardCaps[0], text: `hard-round cap ${hardCaps[0]}`, color: c.warm, below: true },
         ],
       },
     })} />`;

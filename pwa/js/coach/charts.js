@@ -61,6 +61,32 @@ function vlinePlugin(marks) {
   };
 }
 
+// labelsPlugin writes a label beside each marked point or line end, so
+// no marker on a chart goes unnamed. labels: [{x, y, text, color, scale}].
+function labelsPlugin(labels) {
+  return {
+    hooks: {
+      draw: [(u) => {
+        const ctx = u.ctx;
+        for (const l of labels) {
+          if (l.y === null || l.y === undefined || !Number.isFinite(l.y)) continue;
+          const x = Math.round(u.valToPos(l.x, 'x', true));
+          const y = Math.round(u.valToPos(l.y, l.scale || 'y', true));
+          if (x < u.bbox.left - 1 || x > u.bbox.left + u.bbox.width + 1) continue;
+          ctx.save();
+          ctx.font = `600 ${12 * devicePixelRatio}px system-ui, sans-serif`;
+          ctx.fillStyle = l.color;
+          const right = x > u.bbox.left + u.bbox.width * 0.6;
+          ctx.textAlign = right ? 'right' : 'left';
+          ctx.textBaseline = l.below ? 'top' : 'bottom';
+          ctx.fillText(l.text, x + (right ? -8 : 8) * devicePixelRatio, y + (l.below ? 6 : -6) * devicePixelRatio);
+          ctx.restore();
+        }
+      }],
+    },
+  };
+}
+
 const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
 // draw builds one uPlot chart in el. spec: {series: [{label, stroke,
@@ -99,7 +125,7 @@ export async function draw(el, x, ys, spec) {
       axis({ scale: 'y', label: spec.yLabel || '', size: 56 }),
       ...(spec.y2 ? [axis({ scale: spec.y2.scale, side: 1, label: spec.y2.label, size: 48, grid: { show: false } })] : []),
     ],
-    plugins: spec.marks && spec.marks.length ? [vlinePlugin(spec.marks)] : [],
+    plugins: [...(spec.marks && spec.marks.length ? [vlinePlugin(spec.marks)] : []), ...(spec.labels && spec.labels.length ? [labelsPlugin(spec.labels)] : [])],
     tzDate: (ts) => uPlot.tzDate(new Date(ts * 1000), 'Etc/UTC'),
   };
   el.textContent = '';

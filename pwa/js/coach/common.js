@@ -20,7 +20,56 @@ export const RULE_NAMES = {
   off_plan: 'Week away from the planned load',
   residual_gap: 'Quality not trained lately',
 };
-export const ruleName = (id) => RULE_NAMES[id] || id;
+export const ruleName = (id) => RULE_NAMES[id] || 'Finding';
+
+// paramOf: a rule's setting from the hub's tables (its words and unit).
+function paramOf(tables, name) {
+  if (!tables || !tables.rules || !name) return null;
+  const [rule, p] = name.split('.');
+  const r = tables.rules.find((x) => x.id === rule);
+  return r ? (r.params || []).find((x) => x.name === p) || null : null;
+}
+
+// settingWords: the threshold a flag used, in words with its value
+// ("Threshold: hard sparring rounds in the window, 15 hard rounds") —
+// never the setting's key.
+export function settingWords(f, tables, units) {
+  if (f.threshold === null || f.threshold === undefined) return '';
+  const p = paramOf(tables, f.threshold_name);
+  const v = num(f.threshold, f.unit, units);
+  if (!p || !p.help) return '';
+  return `Threshold: ${p.help}, ${v}. Each fighter's thresholds can be changed in their settings.`;
+}
+
+// flagTitles gives each flag of one fighter's day a heading of its own:
+// the hub's title where it sends one, else the rule's name, told apart by
+// the setting it crossed when two flags share a rule. Returns a Map.
+export function flagTitles(fs, tables) {
+  const base = (f) => f.title || ruleName(f.rule);
+  const n = new Map();
+  for (const f of fs) n.set(base(f), (n.get(base(f)) || 0) + 1);
+  const out = new Map();
+  const seen = new Set();
+  for (const f of fs) {
+    let t = base(f);
+    if (n.get(t) > 1) {
+      const p = paramOf(tables, f.threshold_name);
+      if (p && p.help) t = `${t}: ${p.help}`;
+    }
+    for (let i = 2; seen.has(t); i++) t = `${base(f)} (${i})`;
+    seen.add(t);
+    out.set(f, t);
+  }
+  return out;
+}
+
+// clockOfStamp: "14:05" from an RFC 3339 instant, on this device's clock.
+export function clockOfStamp(at) {
+  const t = Date.parse(at || '');
+  if (!Number.isFinite(t)) return '';
+  const d = new Date(t);
+  return `${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}`;
+}
 
 // The four states a card can be in, most serious first.
 export const LEVELS = [
@@ -63,7 +112,13 @@ export function num(v, unit, units) {
   if (!unit || unit === 'ratio') return s;
   if (unit === 'USG') return s;
   if (unit === '%' || unit === '%/week') return `${s} ${unit}`;
-  return `${s} ${unit}`;
+  return `${s} ${unitFor(unit, v, d)}`;
+}
+
+// unitFor: a counted unit in the singular for exactly one ("1 day").
+const ONE = { days: 'day', rounds: 'round', 'hard rounds': 'hard round', 'check-ins': 'check-in' };
+export function unitFor(unit, v, d = 0) {
+  return ONE[unit] && Number(v.toFixed(d)) === 1 ? ONE[unit] : unit;
 }
 
 export function fmtN(x, d = 1) { return Number.isFinite(x) ? x.toFixed(d) : '–'; }

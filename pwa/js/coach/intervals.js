@@ -6,6 +6,7 @@
 // device first, offline if need be.
 import {
   html, useState, useEffect, useRef, useAthletes, Choice, SaveLine, savedState, useAsync, useVersion, NoAthletes, plural,
+  savedHere,
 } from '../ui.js';
 import { save, byDay, getRecord } from '../db.js';
 import { localDay, parseNum } from '../record.js';
@@ -14,7 +15,6 @@ import { hubGet } from './api.js';
 import { query } from './common.js';
 import { targetWords, doneWords } from '../testwords.js';
 
-const DONE = 'Saved on this phone';
 const PARAMS = [['work_s', 'Work', 's'], ['rest_s', 'Rest', 's'], ['reps', 'Reps per set', ''], ['sets', 'Sets', ''], ['set_rest_s', 'Rest between sets', 's']];
 const num = (s) => (s === undefined || s === null || String(s).trim() === '' ? undefined : parseNum(String(s)));
 const r0 = (x) => String(Math.round(x));
@@ -78,7 +78,7 @@ export function Intervals() {
         if (p.hr_lo_pct && t.hr_max_bpm) Object.assign(body, { hr_lo_pct: p.hr_lo_pct, hr_hi_pct: p.hr_hi_pct, hr_max_bpm: t.hr_max_bpm, hr_max_from: t.hr_max_from });
         await save({ kind: 'intervals', athlete: id, day: localDay(), body });
       }
-      setState(savedState(`Prescribed for ${plural(chosen.length, 'fighter', 'fighters')} — ${DONE.toLowerCase()}`));
+      setState(savedState(`Prescribed for ${plural(chosen.length, 'fighter', 'fighters')} — ${savedHere().toLowerCase()}`));
       setChosen([]);
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
@@ -214,7 +214,7 @@ function DoneForm({ rec, onClose }) {
     setState({ saving: true });
     try {
       await save({ id: rec.id, kind: 'intervals', athlete: rec.athlete, day: rec.day, body });
-      onClose(savedState(DONE));
+      onClose(savedState(savedHere()));
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };
   return html`<form class="done-form" data-testid="intervals-done-form" onSubmit=${submit} novalidate>

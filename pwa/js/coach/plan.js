@@ -8,6 +8,7 @@ import { VOCAB } from '../vocab.js';
 import { fieldWords } from '../checks.js';
 import { toKg, roundTo, parseNum } from '../record.js';
 import { hubGet, hubPost, getTables } from './api.js';
+import { onStatus } from '../sync.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
 
 const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium–heavy', heavy: 'Heavy', taper: 'Taper' };
@@ -153,12 +154,24 @@ function bodyFromForm(f, units) {
   return { body: b, errs };
 }
 
-function useBouts(athlete) {
+// useBouts: the fighter's bouts on this device, latest first; readAt is
+// when they were read, so the screen knows whether a completed sync came
+// before the read. It reads again after each sync.
+function useBouts(athlete, lastSync) {
   const v = useVersion();
   return useAsync(async () => {
-    if (!athlete) return [];
-    return (await byKind('bout')).filter((r) => r.athlete === athlete && !r.deleted).sort((a, b) => (b.body.bout_day || '').localeCompare(a.body.bout_day || ''));
-  }, [athlete, v], null);
+    const readAt = Date.now();
+    const out = athlete ? (await byKind('bout')).filter((r) => r.athlete === athlete && !r.deleted).sort((a, b) => (b.body.bout_day || '').localeCompare(a.body.bout_day || '')) : [];
+    out.readAt = readAt;
+    return out;
+  }, [athlete, v, lastSync], null);
+}
+
+// useLastSync: when this device last completed a sync with the hub (0: never).
+function useLastSync() {
+  const [t, set] = useState(0);
+  useEffect(() => onStatus((s) => set(s.lastSync || 0)), []);
+  return t;
 }
 
 export function Plan() {
@@ -167,7 +180,8 @@ export function Plan() {
   const [aid, setAid] = useState(p.get('athlete') || '');
   const a = (list || []).find((x) => x.id === aid);
   const units = a ? a.units : 'kg';
-  const bouts = useBouts(aid);
+  const lastSync = useLastSync();
+  const bouts = useBouts(aid, lastSync);
   const [boutId, setBoutId] = useState(p.get('bout') || '');
   const [f, setF] = useState(blank);
   const [loadedFor, setLoadedFor] = useState('');
@@ -187,11 +201,16 @@ export function Plan() {
     const arrived = boutId === '' && bouts.length > 0 && !touched;
     if (loadedFor === aid + '|' + boutId && !arrived) return;
     const r = boutId === 'new' ? null : (bouts.find((x) => x.id === boutId) || bouts[0]);
+    // A fighter with no bout on this device may have one on the hub that
+    // has not arrived yet: wait for a sync read after, never offer a blank
+    // form that would become a second bout.
+    if (!r && boutId !== 'new' && !(lastSync > 0 && bouts.readAt >= lastSync)) return;
     setF(r ? formFromBout(r.body, units) : blank());
     if (r && boutId !== r.id) setBoutId(r.id);
     setLoadedFor(aid + '|' + (r ? r.id : boutId));
     setState(null);
-  }, [bouts, a, aid, boutId]);
+  }, [bouts, a, aid, boutId, lastSync]);
+  const waiting = !!aid && boutId !== 'new' && loadedFor !== aid + '|' + boutId;
 
   const set = (k, v) => { setF((o) => ({ ...o, [k]: v })); setState(null); setTouched(true); };
   // A new bout starts blank at once, so what is typed next stays even if
@@ -258,9 +277,10 @@ export function Plan() {
           <option value="new">Set up a new bout…</option>
         </select></div>`}
     </div>
-    ${!a && html`<p class="muted">Choose the fighter whose camp you are planning.</p>`}
-    ${a && boutId && boutId !== 'new' && html`<${Glance} aid=${aid} boutId=${boutId} name=${a.name} units=${units} />`}
-    ${a && html`<div class="plan-edit">
+    ${!a && !(aid && !lastSync) && html`<p class="muted">Choose the fighter whose camp you are planning.</p>`}
+    ${((aid && !a && !lastSync) || (a && waiting)) && html`<p class="muted" data-testid="plan-waiting">Looking for this fighter's bout: it arrives with this device's first sync on the camp Wi-Fi.</p>`}
+    ${a && !waiting && boutId && boutId !== 'new' && html`<${Glance} aid=${aid} boutId=${boutId} name=${a.name} units=${units} />`}
+    ${a && !waiting && html`<div class="plan-edit">
     <h2>${boutId && boutId !== 'new' ? 'Edit the plan' : 'The bout'}</h2>
     <div class="plan-grid">
       <div><label for="plan-name">Name (optional)</label><input id="plan-name" data-testid="plan-name" value=${f.name} placeholder="e.g. Town hall card, 6 rounds" onInput=${(e) => set('name', e.target.value)} /></div>

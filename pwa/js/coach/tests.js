@@ -6,6 +6,7 @@
 import {
   html, useState, useEffect, useRef, useAthletes, useAthlete, AthleteSelect, NoAthletes, Choice, SaveLine, savedState,
   useAsync, useVersion,
+  savedHere,
 } from '../ui.js';
 import { save, byKind, getRecord } from '../db.js';
 import { localDay, parseNum } from '../record.js';
@@ -14,7 +15,6 @@ import { iftStages } from '../checks.js';
 import { hubGet, remember, recall } from './api.js';
 import { query } from './common.js';
 
-const DONE = 'Saved on this phone';
 
 export const TEST_TYPES = [
   ['ift_30_15', '30-15 IFT'], ['repeated_sprint', 'Repeated sprints'], ['hr_max', 'Maximal heart rate'],
@@ -159,7 +159,7 @@ export function Tests() {
     setState({ saving: true });
     try {
       await save({ id: editing && editing.id, kind: b.kind, athlete: athlete.id, day: editing ? editing.day : localDay(), body: b.body });
-      setState(savedState(DONE));
+      setState(savedState(savedHere()));
       if (!editing) setF((o) => ({ start: o.start, nSprints: ROWS.sprints, nSets: ROWS.sets, drop: o.drop, exercise: o.exercise, distance: o.distance }));
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };

@@ -2,7 +2,7 @@
 // and what happened, then the incident is written through the app's write
 // path (saved on this phone, synced like every entry) and the stand-down
 // is shown in plain words.
-import { html, useState, useRef, useEffect, savedState, SaveLine } from '../ui.js';
+import { html, useState, useRef, useEffect, savedState, SaveLine, savedHere } from '../ui.js';
 import { showPanel } from './rounds.js';
 import { save } from '../db.js';
 import { localDay } from '../record.js';
@@ -30,7 +30,7 @@ export function RingsideIncident({ list, chosen }) {
     setState({ saving: true });
     try {
       await save({ kind: 'incident', athlete: who, day: localDay(), body: { type } });
-      setState(savedState(`Saved on this phone: ${label.toLowerCase()}, ${name(who)}`));
+      setState(savedState(`${savedHere()}: ${label.toLowerCase()}, ${name(who)}`));
       setStep('done');
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
   };

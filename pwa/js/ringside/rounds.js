@@ -5,7 +5,16 @@
 import { html, useState, useRef, useEffect } from '../ui.js';
 import { HOLD_TEXT } from '../screens.js';
 import { hhmm } from './standing.js';
+import { restrictionsOf, RestrictionStrip } from '../restrictions.js';
 import './style.js';
+
+// RingsideRestrictions: every running stand-down the hub reports for the
+// day, above the clock and the athletes, worded as on the day board.
+export function RingsideRestrictions({ list, standing, day }) {
+  const held = restrictionsOf(Object.values(standing.byId).flatMap((b) => b.holds || []));
+  const names = Object.fromEntries(list.map((a) => [a.id, a.name]));
+  return html`<${RestrictionStrip} list=${held} names=${names} day=${day} testid="ringside-restrictions" />`;
+}
 
 // holdOf: the hub's stand-down for an athlete, or the device's own open
 // incident (logged here or pulled, not yet seen by the hub's answer).

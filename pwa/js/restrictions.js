@@ -1,0 +1,104 @@
+// Stand-downs in force: restrictions, not prompts. The day board, the wall
+// sheet and ringside show each running stand-down above every flag, every
+// day it runs: the fighter, what happened and when it started, the rule
+// that sets its length, the earliest day it can end, and that only a
+// doctor's written clearance ends it. The hub decides what is running;
+// this module only words it.
+import { html } from './ui.js';
+
+export const UNTIL = 'cleared in writing by a doctor';
+
+const INCIDENT_WORDS = {
+  head_knock: 'Head knock', knockdown: 'Knockdown', stoppage: 'Stoppage', knockout: 'Knockout',
+  knockout_loc: 'Knockout with loss of consciousness',
+};
+export const incidentWords = (t) => INCIDENT_WORDS[t] || 'Incident';
+
+const WD = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
+const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
+const dayNum = (d) => Date.UTC(+d.slice(0, 4), +d.slice(5, 7) - 1, +d.slice(8, 10)) / 86400000;
+const isDay = (s) => typeof s === 'string' && /^\d{4}-\d{2}-\d{2}$/.test(s);
+// dayWords: "Thu 26 Nov 2026".
+export function dayWords(d) {
+  if (!isDay(d)) return '';
+  const t = new Date(dayNum(d) * 86400000);
+  return `${WD[t.getUTCDay()]} ${t.getUTCDate()} ${MO[t.getUTCMonth()]} ${t.getUTCFullYear()}`;
+}
+// clockOf: the wall-clock time an RFC 3339 stamp names, as written (the
+// recording device's own clock), so a knock at 16:40 reads 16:40.
+function clockOf(at) {
+  const m = /T(\d{2}):(\d{2})/.exec(at || '');
+  return m ? `${m[1]}:${m[2]}` : '';
+}
+
+// fromFlag reads a running stand-down from a spar_on_hold flag. The hub
+// sends it as flag.restriction; a hub without that field still sends the
+// info flag, whose reason names the incident and its dates.
+function fromFlag(f) {
+  const r = f.restriction;
+  if (r && typeof r === 'object') {
+    return {
+      athlete: f.athlete, incident: r.incident || (f.inputs || [])[0] || '', type: r.incident_type || '',
+      started_day: r.started_day || '', started_at: r.started_at || '', rule: r.rule || '',
+      earliest_end: r.earliest_end || '', until: r.until || UNTIL,
+    };
+  }
+  const why = f.reason || '';
+  const m = /after the (.+?) on (\d{4}-\d{2}-\d{2})/.exec(why);
+  const end = /before (\d{4}-\d{2}-\d{2})/.exec(why);
+  const type = m ? Object.keys(INCIDENT_WORDS).find((k) => INCIDENT_WORDS[k].toLowerCase() === m[1]) || '' : '';
+  return {
+    athlete: f.athlete, incident: (f.inputs || [])[0] || '', type, started_day: m ? m[2] : '', started_at: '',
+    rule: f.threshold ? `${incidentWords(type)}: at least ${f.threshold} days` : `${incidentWords(type)}: treated as a suspected concussion`,
+    earliest_end: end ? end[1] : '', until: UNTIL,
+  };
+}
+
+// isRestriction: the flag is the stand-down itself (shown in the strip),
+// not the alert for sparring during it (a prompt that wants a decision).
+export const isRestriction = (f) => f.rule === 'spar_on_hold' && f.status !== 'forming' && f.level === 'info';
+
+// restrictionsOf lists the running stand-downs in a day's flags, one per
+// incident, oldest first within a fighter.
+export function restrictionsOf(flags) {
+  const seen = new Set();
+  const out = [];
+  for (const f of flags || []) {
+    if (f.rule !== 'spar_on_hold' || f.status === 'forming') continue;
+    if (!isRestriction(f) && !f.restriction) continue;
+    const r = fromFlag(f);
+    const k = `${r.athlete}|${r.incident}`;
+    if (seen.has(k)) continue;
+    seen.add(k);
+    out.push(r);
+  }
+  return out.sort((a, b) => (a.athlete < b.athlete ? -1 : a.athlete > b.athlete ? 1 : (a.started_day || '').localeCompare(b.started_day || '')));
+}
+
+// restrictionLines: the words of one stand-down, for screen and paper.
+export function restrictionLines(r, day) {
+  const start = `${incidentWords(r.type)} on ${dayWords(r.started_day)}${clockOf(r.started_at) ? ` at ${clockOf(r.started_at)}` : ''}`;
+  let since = '';
+  if (isDay(day) && isDay(r.started_day)) {
+    const n = dayNum(day) - dayNum(r.started_day);
+    since = n <= 0 ? 'started today' : n === 1 ? 'started yesterday' : `started ${n} days ago`;
+  }
+  const end = r.earliest_end ? `not before ${dayWords(r.earliest_end)}` : 'no earliest day: only the clearance ends it';
+  const until = (r.until || UNTIL).replace(/^until\s+/i, '');
+  return { start, since, rule: r.rule, end, until: `Until ${until}` };
+}
+
+// RestrictionStrip: the running stand-downs above everything else on a
+// screen. names maps athlete id → name. Nothing is drawn when none runs.
+export function RestrictionStrip({ list, names, day, testid, compact }) {
+  if (!list || !list.length) return null;
+  return html`<section class=${`restrictions${compact ? ' compact' : ''}`} data-testid=${testid} aria-label="Stand-downs in force">
+    ${list.map((r) => {
+      const w = restrictionLines(r, day);
+      return html`<div class="restriction" data-testid="restriction" data-athlete=${r.athlete} data-incident=${r.incident}>
+        <p class="rx-head"><span class="rx-mark" aria-hidden="true"></span><strong>${names[r.athlete] || 'A fighter'}: stand-down — no sparring or contact</strong></p>
+        <p class="rx-body"><span data-testid="restriction-start">${w.start}${w.since ? ` (${w.since})` : ''}</span>${' · '}<span data-testid="restriction-rule">Rule: ${w.rule}</span>${' · '}<span data-testid="restriction-end">Earliest end: ${w.end}</span>${' · '}<strong data-testid="restriction-until">${w.until}.</strong></p>
+      </div>`;
+    })}
+  </section>`;
+}
