@@ -81,7 +81,15 @@ func (s *Server) handleDefaultPlan(w http.ResponseWriter, r *http.Request) error
 		}
 		return err
 	}
-	writeJSON(w, http.StatusOK, map[string]any{"weeks": weeks})
+	// Why each week of a starting plan is what it is, in words (camps
+	// the generator plans; empty otherwise).
+	why := make([]string, len(weeks))
+	if gen, err := plan.Generate(q.Get("camp_start"), q.Get("bout_day"), th); err == nil && len(gen) == len(weeks) {
+		for i, g := range gen {
+			why[i] = g.Why
+		}
+	}
+	writeJSON(w, http.StatusOK, map[string]any{"weeks": weeks, "why": why})
 	return nil
 }
 

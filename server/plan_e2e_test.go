@@ -59,6 +59,10 @@ func TestCoachPlanTenWeeksWithTravelOnPhoneAndLaptop(t *testing.T) {
 			require.NoError(t, pwatest.Click(ctx, "plan-generate"))
 			require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid^="plan-week-"][data-level]').length === 10`, 10*time.Second))
 
+			// The starting plan says why each week is what it is.
+			why, err := pwatest.Text(ctx, "plan-week-10-why")
+			require.NoError(t, err)
+			assert.Contains(t, why, "Taper, fight week")
 			// Week 2 (medium–heavy): strength–speed with jumps, and the flight.
 			wk2 := start.AddDate(0, 0, 7)
 			require.NoError(t, coachSet(ctx, "plan-week-2-strength", "strength_speed"))

@@ -237,7 +237,7 @@ export function Plan() {
     setGen({ busy: true });
     try {
       const d = await hubGet(query('/api/plan/default', { camp_start: f.camp_start, bout_day: f.bout_day, athlete: aid }));
-      setF((o) => ({ ...o, weeks: d.weeks.map(weekForm) }));
+      setF((o) => ({ ...o, weeks: d.weeks.map((w, i) => ({ ...weekForm(w), why: (d.why || [])[i] || '' })) }));
       setTouched(true);
       setGen({ done: true });
     } catch (e) { setGen({ error: e.message }); }
@@ -435,6 +435,7 @@ function WeekRow({ w, i, start, tables, fraction, refAU, onEdit, current }) {
   const et = (patch) => ed({ travel: { ...t, ...patch } });
   return html`<div class=${`wcard${current ? ' current' : ''}`} data-testid=${`plan-week-${k}`} data-level=${w.level} aria-current=${current ? 'date' : undefined}>
     <div class="whead2"><strong>Week ${k}</strong> <span class="small muted">${start ? dayMonth(start) : ''}${current ? ' · this week' : ''}</span></div>
+    ${w.why && html`<p class="small muted why" data-testid=${`plan-week-${k}-why`}>Starting plan: ${w.why}.</p>`}
     <div class="wgrid">
       <div><label for=${`w${k}-level`}>Load level</label><select id=${`w${k}-level`} data-testid=${`plan-week-${k}-level`} aria-label=${`Week ${k} load level`} value=${w.level}
         onChange=${(e) => ed({ level: e.target.value })}>${Object.entries(LEVEL_WORDS).map(([id, t2]) => html`<option value=${id}>${t2}</option>`)}</select>
