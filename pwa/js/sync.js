@@ -15,13 +15,13 @@ const PUSH_BATCH = 200;
 function trace(what) {
   if (globalThis.__cbTrace) globalThis.__cbTrace.push([what, Date.now()]);
 }
-// Pull pages are sized for the link: the first asks for 256 KB of
+// Pull pages are sized for the link: the first asks for 512 KB of
 // records, each next one for what the last page's round trip would carry
-// in about a second (within 64 KB–4 MB; the hub counts uncompressed JSON),
+// in about two seconds (within 64 KB–4 MB; the hub counts uncompressed JSON),
 // so a crowded travel router gets small pages and a good Wi-Fi few round
 // trips.
 const PULL_LIMIT = 10000;
-const PULL_BYTES = { first: 256 << 10, min: 64 << 10, max: 4 << 20, aimMs: 1000 };
+const PULL_BYTES = { first: 512 << 10, min: 64 << 10, max: 4 << 20, aimMs: 2000 };
 export function nextPullBytes(bytes, ms) {
   const scaled = bytes * PULL_BYTES.aimMs / Math.max(ms, 50);
   // Grow at most fourfold a page, so one quick page on a busy link does
