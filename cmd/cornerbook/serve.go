@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"sync"
 	"time"
 
 	"cornerbook/server"
@@ -66,7 +67,8 @@ type Main struct {
 	Certs  *certs.Bundle
 	stop   context.CancelFunc
 
-	joinURL string // the join page as phones reach it; "" if they cannot
+	joinURL string         // the join page as phones reach it; "" if they cannot
+	bg      sync.WaitGroup // background work that writes into the data folder
 	// LANHost is this laptop's LAN address (nil: primaryHost).
 	LANHost  func() string
 	campName string // the name announced on the Wi-Fi; "" when not announcing
@@ -191,7 +193,11 @@ func (m *Main) Run(ctx context.Context) error {
 			m.Log.Printf("camp certificate renewed: %s", reason)
 		}
 	})
-	go m.snapshots(ctx)
+	m.bg.Add(1)
+	go func() {
+		defer m.bg.Done()
+		m.snapshots(ctx)
+	}()
 	if m.campName != "" {
 		r := &lan.Responder{Name: m.campName, Addrs: func() []net.IP { return certs.CurrentNames().IPs }}
 		go func() {
@@ -332,6 +338,7 @@ func (m *Main) Close() error {
 	var errs []error
 	if m.stop != nil {
 		m.stop()
+		m.bg.Wait() // a snapshot being written is finished first
 		os.Remove(filepath.Join(m.Config.DataDir, hubAddressFile))
 	}
 	if m.Server != nil {

@@ -89,18 +89,15 @@ func Listen(target string, link Link) (*Proxy, error) {
 func (p *Proxy) Addr() string { return p.ln.Addr().String() }
 
 // BytesDown and BytesUp count what crossed the link towards the client
-// and towards the target since the start or the last Reset.
+// and towards the target since the start.
 func (p *Proxy) BytesDown() int64 { return p.bytesDown.Load() }
 
 // BytesUp: see BytesDown.
 func (p *Proxy) BytesUp() int64 { return p.bytesUp.Load() }
 
 // Connections counts the connections opened through the proxy since the
-// start or the last Reset.
+// start.
 func (p *Proxy) Connections() int64 { return p.connsOpened.Load() }
-
-// Reset zeroes the counters.
-func (p *Proxy) Reset() { p.bytesDown.Store(0); p.bytesUp.Store(0); p.connsOpened.Store(0) }
 
 // Close stops accepting and cuts every connection.
 func (p *Proxy) Close() error {
