@@ -200,7 +200,7 @@ export function Tests() {
         <label for="st-exercise">Exercise</label>
         <input id="st-exercise" data-testid="st-exercise" list="st-exercises" value=${f.exercise || ''} onInput=${(e) => set('exercise', e.target.value)} autocomplete="off" />
         <datalist id="st-exercises">${EXERCISES.map((x) => html`<option value=${x} />`)}</datalist>
-        <table class="sets" data-testid="st-sets"><thead><tr><th>Set</th><th>Load kg</th><th>Reps</th><th>In reserve</th><th>Bar speed m/s</th></tr></thead><tbody>
+        <table class="sets" data-testid="st-sets"><thead><tr><th aria-label="Set">#</th><th>Load kg</th><th>Reps</th><th>In reserve</th><th>Bar speed m/s</th></tr></thead><tbody>
           ${Array.from({ length: f.nSets }, (_, i) => html`<tr>
             <td>${i + 1}</td>
             ${[['load', 'Load, kg'], ['reps', 'Reps'], ['rir', 'Reps in reserve'], ['mpv', 'Mean propulsive velocity, m/s']].map(([k, l]) => html`<td>
