@@ -68,6 +68,16 @@ func TestE2EOvertakenCorrectionIsShownAndCanBeApplied(t *testing.T) {
 	assert.Equal(t, "tablet-1", hist.Received[2].Device)
 	assert.True(t, hist.Received[2].Kept)
 
+	// The entry's history on Today shows both corrections, with device and time.
+	require.NoError(t, pwatest.Route(ctx, "/today"))
+	require.NoError(t, pwatest.Click(ctx, "history-open-"+orig.ID))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid="history-`+orig.ID+`"] li').length === 3`, 10*time.Second))
+	hist2, err := pwatest.Text(ctx, "history-"+orig.ID)
+	require.NoError(t, err)
+	assert.Contains(t, hist2, "this device")
+	assert.Contains(t, hist2, "overtaken")
+	assert.Contains(t, hist2, time.UnixMilli(tablet.Stamp.L).Format("15:04"))
+
 	// The device says so in words and applies its correction again.
 	raw, err := pwatest.ReadIDB(ctx, "rejected")
 	require.NoError(t, err)

@@ -1,6 +1,6 @@
 // Today: the day's entries per athlete, with correct, delete and restore.
-import { html, useState, useAsync, useVersion, useAthletes, usePending, navigate, fmt } from './ui.js';
-import { byDay, remove, restore } from './db.js';
+import { html, useState, useEffect, useAsync, useVersion, useAthletes, usePending, navigate, fmt } from './ui.js';
+import { byDay, remove, restore, getMeta } from './db.js';
 import { localDay, fromKg } from './record.js';
 import { INCIDENTS, CR10 } from './screens.js';
 import { testLine, targetWords, doneWords } from './testwords.js';
@@ -72,6 +72,29 @@ function fieldSummary(kind, b) {
   return parts.join(', ');
 }
 
+// History lists every version of an entry the hub received, kept or
+// overtaken, with the device and the time of each.
+function History({ id, units, me }) {
+  const [h, setH] = useState(null);
+  useEffect(() => {
+    let live = true;
+    (async () => {
+      const token = await getMeta('token');
+      const res = await fetch(`/api/records/${encodeURIComponent(id)}/history`, { headers: token ? { Authorization: `Bearer ${token}` } : {}, cache: 'no-store' });
+      if (!res.ok) throw new Error(res.status === 404 ? 'the hub has no version of this entry yet' : `the hub answered ${res.status}`);
+      return res.json();
+    })().then((x) => live && setH(x), (e) => live && setH({ error: e instanceof TypeError ? 'the hub cannot be reached' : e.message }));
+    return () => { live = false; };
+  }, [id]);
+  if (!h) return html`<p class="muted small">Asking the hub…</p>`;
+  if (h.error) return html`<p class="muted small" data-testid=${`history-${id}`}>History: ${h.error}.</p>`;
+  const when = (v) => { const d = new Date(v.stamp.l); return `${localDay(d)} ${String(d.getHours()).padStart(2, '0')}:${String(d.getMinutes()).padStart(2, '0')}`; };
+  const who = (v) => (v.device === me ? 'this device' : v.device_name || `device ${v.device.slice(0, 8)}`);
+  return html`<ol class="history small" data-testid=${`history-${id}`}>
+    ${(h.received || []).map((v) => html`<li data-kept=${v.kept ? 'true' : 'false'}><span class="num">${when(v)}</span> · ${who(v)} · ${v.deleted ? 'deleted' : summary(v, units)} · <strong>${v.kept ? 'kept' : 'overtaken'}</strong></li>`)}
+  </ol>`;
+}
+
 export function Today() {
   const v = useVersion();
   const list = useAthletes() || [];
@@ -79,6 +102,8 @@ export function Today() {
   const [day, setDay] = useState(new URLSearchParams(location.search).get('day') || localDay());
   const recs = useAsync(() => byDay(day), [day, v], []);
   const [err, setErr] = useState('');
+  const [open, setOpen] = useState('');
+  const me = useAsync(() => getMeta('deviceId'), [], '');
   const groups = new Map();
   for (const r of recs.filter((x) => x.kind !== 'athlete').sort((a, b) => (a.at < b.at ? -1 : 1))) {
     const k = r.athlete || '';
@@ -108,12 +133,14 @@ export function Today() {
           return html`<div class=${`entry${r.deleted ? ' deleted' : ''}`} data-testid=${`entry-${r.id}`} data-kind=${r.kind} data-deleted=${r.deleted ? 'true' : 'false'}>
             <div class="what"><strong>${KIND_NAME[r.kind] || r.kind}</strong> <span class="num">${summary(r, a ? a.units : 'kg')}</span>
               ${pending.waiting.has(r.id) && html`<span class="tag" data-testid=${`waiting-${r.id}`}>waiting to sync</span>`}
-              ${rej && html`<span class="tag warn" data-testid=${`rejected-tag-${r.id}`}>rejected: ${rej.reason}</span>`}
+              ${rej && html`<span class="tag warn" data-testid=${`rejected-tag-${r.id}`}>${rej.code === 'OVERTAKEN' ? 'your correction was overtaken' : `rejected: ${rej.reason}`}</span>`}
               ${r.deleted && html`<span class="tag">deleted</span>`}</div>
             ${r.deleted
               ? html`<button class="secondary" type="button" data-testid=${`restore-${r.id}`} onClick=${() => undel(r.id)}>Restore</button>`
               : html`${editRoute(r) && html`<button class="secondary" type="button" data-testid=${`edit-${r.id}`} onClick=${() => navigate(`${editRoute(r)}?edit=${r.id}`)}>Edit</button>`}
                 <button class="secondary danger" type="button" data-testid=${`delete-${r.id}`} onClick=${() => del(r.id)}>Delete</button>`}
+            <button class="secondary" type="button" data-testid=${`history-open-${r.id}`} aria-expanded=${open === r.id ? 'true' : 'false'} onClick=${() => setOpen(open === r.id ? '' : r.id)}>History</button>
+            ${open === r.id && html`<${History} id=${r.id} units=${a ? a.units : 'kg'} me=${me} />`}
           </div>`;
         })}
       </div>`;
