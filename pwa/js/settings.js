@@ -10,6 +10,15 @@ const EDIT_ROUTE = Object.fromEntries(Object.entries(VOCAB.kinds).filter(([, v])
 // editRouteOf: the screen that corrects a rejected entry (drop jumps are
 // entered with the tests, not on the CMJ grid).
 const editRouteOf = (rec) => (rec.kind === 'jump' && rec.body && rec.body.test === 'dj' ? '/tests' : EDIT_ROUTE[rec.kind]);
+// correctURL opens the screen that corrects a rejected entry: a bout on
+// its plan, an athlete on camp set-up's list, the rest on their own screen.
+function correctURL(r) {
+  const rec = r.record;
+  if (rec.kind === 'bout' && rec.athlete) return `/plan?athlete=${encodeURIComponent(rec.athlete)}&bout=${encodeURIComponent(rec.id)}`;
+  if (rec.kind === 'athlete') return '/camp';
+  const route = editRouteOf(rec);
+  return route ? `${route}?edit=${encodeURIComponent(r.id)}` : '';
+}
 const WHY = { VALIDATION: 'refused by the hub', FORBIDDEN: 'not allowed from this device', BAD_REQUEST: 'refused by the hub', TOO_LARGE: 'too large for the hub' };
 
 // hhmm is a stamp's local time of day.
@@ -103,7 +112,7 @@ export function Settings({ build }) {
       </div>` : html`<div class="entry" data-testid=${`rejected-${r.n}`}>
         <div class="what" data-field=${r.field} data-code=${r.code}><strong>${entryWords(r.record, names)}</strong>${r.field ? html` — <strong data-testid=${`rejected-field-${r.n}`}>${fieldWords(r.record.kind, r.field)}</strong>` : ''}: ${r.reason}
           <span class="tag warn">${WHY[r.code] || 'refused by the hub'}</span></div>
-        ${editRouteOf(r.record) && !r.record.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-edit-${r.n}`} onClick=${() => navigate(`${editRouteOf(r.record)}?edit=${r.id}`)}>Correct</button>`}
+        ${correctURL(r) && !r.record.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-edit-${r.n}`} onClick=${() => navigate(correctURL(r))}>Correct</button>`}
         <button class="secondary danger" type="button" data-testid=${`rejected-discard-${r.n}`} onClick=${() => discard(r.n)}>Discard</button>
       </div>`))}
       <p class="muted small">A rejected entry stays here until you correct it (a new version is sent) or discard it.</p>
