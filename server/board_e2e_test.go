@@ -125,9 +125,9 @@ const idLike = `(t) => { const hits = [];
 	return hits; }`
 
 // TestBoardFirstRenderHoldsStill: a fresh device opens the board before
-// its first sync. Sampled every 40 ms for its first 3 s, the board never
-// shows id-like text, and once fighters are shown their order never
-// changes. A decision being typed survives a live update of the board.
+// its first sync. Sampled every 40 ms for its first 3 s (and, on a slow
+// machine, until it has been shown for 2 s), the board never shows
+// id-like text, and once fighters are shown their order never changes. A decision being typed survives a live update of the board.
 func TestBoardFirstRenderHoldsStill(t *testing.T) {
 	h := startCoachHub(t)
 	log := &e2eLogBuf{}
@@ -144,23 +144,29 @@ func TestBoardFirstRenderHoldsStill(t *testing.T) {
 	_, err := chromedp.Call(ctx, page.AddScriptToEvaluateOnNewDocument, page.AddScriptToEvaluateOnNewDocumentParams{Source: `
 		window.__samples = [];
 		const t0 = performance.now();
+		let shownAt = 0;
 		const take = () => {
 			const s = document.querySelector('[data-testid="screen-review"]');
-			window.__samples.push({ ms: Math.round(performance.now() - t0), text: s ? s.innerText : '',
-				order: s ? [...s.querySelectorAll('[data-testid^="review-athlete-"]')].map((e) => e.dataset.athleteName) : [] });
-			if (performance.now() - t0 < 3000) setTimeout(take, 40);
+			const now = performance.now() - t0;
+			const order = s ? [...s.querySelectorAll('[data-testid^="review-athlete-"]')].map((e) => e.dataset.athleteName) : [];
+			if (order.length && !shownAt) shownAt = now;
+			window.__samples.push({ ms: Math.round(now), text: s ? s.innerText : '', order });
+			// The first 3 s, and on a slow machine until the board has been
+			// shown for 2 s (at most 20 s).
+			if (now < 3000 || (!shownAt && now < 20000) || (shownAt && now - shownAt < 2000)) setTimeout(take, 40);
+			else window.__done = true;
 		};
 		setTimeout(take, 0);`})
 	require.NoError(t, err)
 	require.NoError(t, pwatest.Open(ctx, h.url("/review?day="+coachDay)))
-	time.Sleep(3200 * time.Millisecond)
+	require.NoError(t, pwatest.Poll(ctx, `window.__done === true`, 30*time.Second))
 	var samples []struct {
 		Ms    int
 		Text  string
 		Order []string
 	}
 	require.NoError(t, pwatest.Eval(ctx, `window.__samples`, &samples))
-	require.Greater(t, len(samples), 20, "the board was sampled through its first 3 s")
+	require.Greater(t, len(samples), 20, "the board was sampled through its first 3 s and more")
 	var hitsAll []string
 	var shown []string
 	changes := 0
@@ -185,8 +191,8 @@ func TestBoardFirstRenderHoldsStill(t *testing.T) {
 			shown = s.Order
 		}
 	}
-	assert.Empty(t, hitsAll, "no id-like text on the board in its first 3 s")
-	require.NotEmpty(t, shown, "the board showed its fighters within 3 s")
+	assert.Empty(t, hitsAll, "no id-like text on the board at any sample")
+	require.NotEmpty(t, shown, "the board showed its fighters")
 	assert.Zero(t, changes)
 
 	// A decision being typed survives a live update.
