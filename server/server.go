@@ -100,6 +100,7 @@ func OpenStore(path string, now func() time.Time) (*storage.DB, error) {
 		Now:           now,
 		Prepare:       func(r *devsync.Record) error { return records.PrepareAt(now())(r) },
 		CampIntegrity: true,
+		Related:       related,
 	})
 }
 
@@ -157,6 +158,7 @@ func (s *Server) Handler() http.Handler {
 	s.routeAthletes(api)
 	s.routeTests(api)
 	s.routeGlance(api)
+	s.routeFightWeek(api)
 	api.PathPrefix("/").HandlerFunc(s.serve(func(w http.ResponseWriter, r *http.Request) error {
 		return userError(CodeNotFound, "", fmt.Sprintf("no such API route: %s %s", r.Method, r.URL.Path))
 	}))

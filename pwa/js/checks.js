@@ -151,6 +151,31 @@ const cross = {
       const bad = checkWeek(`body.weeks[${i}]`, w || {}, Number.isFinite(start) ? start + 7 * i * DAY : NaN);
       if (bad) return bad;
     }
+    return boutFightWeek(b);
+  },
+  incident(b) {
+    const f = 'body.loss_of_consciousness';
+    const label = 'Loss of consciousness';
+    if (b.type === 'knockout_loc' && b.loss_of_consciousness === false) {
+      return { field: f, label, reason: 'is false, but the incident is a knockout with loss of consciousness' };
+    }
+    if (b.loc_seconds !== undefined && b.loc_seconds !== null && b.loss_of_consciousness !== true && b.type !== 'knockout_loc') {
+      return { field: f, label, reason: 'is not true, but loc_seconds (how long consciousness was lost) is given' };
+    }
+    if (b.loss_of_consciousness === true && b.type === 'injury') {
+      return { field: f, label, reason: 'goes with a head incident; record a head knock, knockdown, stoppage or knockout' };
+    }
+    if (b.clinician_day) {
+      const bad = dayRefusal(b.clinician_day);
+      if (bad) return { field: 'body.clinician_day', label: "Clinician's date", reason: bad };
+      if (!(b.seen_by || '').trim()) return { field: 'body.seen_by', label: 'Clinician who saw the fighter', reason: "is required with a clinician's date: the clinician who set it" };
+    }
+    return null;
+  },
+  weigh_in(b) {
+    if (b.made !== undefined && b.made !== null && b.type !== 'official') {
+      return { field: 'body.made', label: 'Made the limit', reason: `goes with the official weigh-in only; a ${String(b.type).replace(/_/g, '-')} weigh-in is judged against its cap` };
+    }
     return null;
   },
 };
@@ -323,6 +348,72 @@ function dropJump(b) {
   for (const [i, x] of contact.entries()) {
     bad = between(`body.contact_ms[${i}]`, 'Ground contact', x, l.min_contact_ms, l.max_contact_ms, 'ms');
     if (bad) return bad;
+  }
+  return null;
+}
+
+// dayRefusal answers as the hub's day check does (null when it is a day).
+function dayRefusal(s) {
+  if (typeof s !== 'string' || s.length !== 10 || s[4] !== '-' || s[7] !== '-') return `must be a calendar day written YYYY-MM-DD; got ${JSON.stringify(s)}`;
+  const t = dayNum(s);
+  if (!Number.isFinite(t) || new Date(t).toISOString().slice(0, 10) !== s) return `${s} is not a day of the calendar (YYYY-MM-DD)`;
+  if (Number(s.slice(0, 4)) < 2000) return `is ${s}, before 2000; check the year`;
+  return null;
+}
+
+const wall = (s) => `${s.slice(0, 10)} ${s.slice(11, 16)}`;
+
+// boutFightWeek: the bout's start, its weigh-in rules and its stand-down
+// rule sets, in the hub's words (records.checkBoutFightWeek).
+function boutFightWeek(b) {
+  const L = VOCAB.limits;
+  if (b.bout_at) {
+    const label = 'Bout starts';
+    if (!RFC3339.test(b.bout_at) || !Number.isFinite(Date.parse(b.bout_at))) {
+      return { field: 'body.bout_at', label, reason: `must be the bout's start with the venue's offset, e.g. 2026-02-28T20:30:00-07:00; got ${JSON.stringify(b.bout_at)}` };
+    }
+    if (b.bout_at.slice(0, 10) !== b.bout_day) return { field: 'body.bout_at', label, reason: `is on ${b.bout_at.slice(0, 10)}, but the bout day is ${b.bout_day}` };
+    const wi = Date.parse(b.weigh_in);
+    if (Number.isFinite(wi)) {
+      const h = (Date.parse(b.bout_at) - wi) / 3600000;
+      if (h <= 0) return { field: 'body.bout_at', label, reason: `is ${wall(b.bout_at)}, not after the weigh-in at ${wall(b.weigh_in)}` };
+      if (h > L.max_bout_after_hours) return { field: 'body.bout_at', label, reason: `is ${h.toFixed(1)} h after the weigh-in; at most ${L.max_bout_after_hours} h` };
+    }
+  }
+  const r = b.rules;
+  if (r) {
+    const seen = new Set();
+    for (const [i, c] of (r.check_weights || []).entries()) {
+      const f = `body.rules.check_weights[${i}]`;
+      const label = 'Check weight';
+      if (!(c.days_before >= 1 && c.days_before <= L.max_check_days)) {
+        return { field: f + '.days_before', label, reason: `must be between 1 and ${L.max_check_days} days before the weigh-in; got ${c.days_before}` };
+      }
+      if (seen.has(c.days_before)) return { field: f + '.days_before', label, reason: `a check weight ${c.days_before} days out is already set` };
+      seen.add(c.days_before);
+      const bad = between(f + '.over_limit_pct', label, c.over_limit_pct, 0, L.max_over_limit_pct, '% over the limit');
+      if (bad) return bad;
+    }
+    const fd = r.fight_day;
+    if (fd) {
+      const p = 'body.rules.fight_day';
+      const label = 'Fight-day cap';
+      const lb = fd.over_limit_lb !== undefined && fd.over_limit_lb !== null;
+      const pct = fd.over_official_pct !== undefined && fd.over_official_pct !== null;
+      if (lb && pct) return { field: p, label, reason: 'give either pounds over the limit (over_limit_lb) or percent over the official weigh-in mass (over_official_pct), not both' };
+      if (lb) return between(p + '.over_limit_lb', label, fd.over_limit_lb, 0, L.max_fight_day_lb, 'lb over the limit');
+      if (pct) return between(p + '.over_official_pct', label, fd.over_official_pct, 0, L.max_fight_day_pct, '% over the official weigh-in mass');
+      return { field: p, label, reason: 'give pounds over the limit (over_limit_lb) or percent over the official weigh-in mass (over_official_pct)' };
+    }
+  }
+  const sets = b.stand_down_sets || [];
+  if (sets.length > L.max_stand_down_sets) return { field: 'body.stand_down_sets', label: 'Stand-down rules', reason: `may name at most ${L.max_stand_down_sets} rule sets` };
+  for (const [i, id] of sets.entries()) {
+    if (!VOCAB.stand_down_sets.includes(id)) {
+      const field = `body.stand_down_sets[${i}]`;
+      if (id === '') return { field, label: 'Stand-down rules', reason: `is required: one of ${VOCAB.stand_down_sets.join(', ')}` };
+      return { field, label: 'Stand-down rules', reason: `must be one of ${VOCAB.stand_down_sets.join(', ')}; got ${JSON.stringify(id)}` };
+    }
   }
   return null;
 }

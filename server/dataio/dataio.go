@@ -40,19 +40,33 @@ type Progress func(done, total int)
 // order, one JSON object per line. kind "" means every kind.
 func ExportJSONL(db *storage.DB, w io.Writer, kind string) error {
 	bw := bufio.NewWriter(w)
-	err := db.All(true, func(r devsync.Record) error {
-		if kind != "" && r.Kind != kind {
-			return nil
-		}
+	write := func(r devsync.Record) error {
 		b, err := json.Marshal(r)
 		if err != nil {
 			return err
 		}
 		bw.Write(b)
 		return bw.WriteByte('\n')
+	}
+	var tail []devsync.Record // the kinds with rules between records, last (orderForRules)
+	err := db.All(true, func(r devsync.Record) error {
+		if kind != "" && r.Kind != kind {
+			return nil
+		}
+		if orderedKinds[r.Kind] {
+			tail = append(tail, r)
+			return nil
+		}
+		return write(r)
 	})
 	if err != nil {
 		return err
+	}
+	sortByAt(tail)
+	for _, r := range tail {
+		if err := write(r); err != nil {
+			return err
+		}
 	}
 	return bw.Flush()
 }
@@ -162,6 +176,7 @@ func ImportJSONL(db *storage.DB, r io.Reader, prepare func(*devsync.Record) erro
 		return res, &ImportError{Lines: bad}
 	}
 	res.Lines = len(recs)
+	orderForRules(recs)
 	dev, err := db.Device(ImportDevice)
 	if err != nil && !errors.Is(err, storage.ErrNotFound) {
 		return res, err
@@ -358,4 +373,41 @@ func cell(v any) string {
 	}
 	b, _ := json.Marshal(v)
 	return string(b)
+}
+
+// orderedKinds are the kinds with rules between records (a return-to-sport
+// step after the one below it, a fight-day weigh-in after the official
+// one). The store lists records in the order they last changed, so a
+// corrected step 3 would come after step 4, or a corrected incident after
+// its steps; export writes these kinds last, by the time each happened,
+// and import sends them in that order, so a file imports as the store
+// held it and export → import → export stays identical.
+var orderedKinds = map[string]bool{records.KindWeighIn: true, records.KindRTSStep: true}
+
+func orderForRules(recs []devsync.Record) {
+	var tail []devsync.Record
+	n := 0
+	for _, r := range recs {
+		if orderedKinds[r.Kind] {
+			tail = append(tail, r)
+			continue
+		}
+		recs[n] = r
+		n++
+	}
+	sortByAt(tail)
+	copy(recs[n:], tail)
+}
+
+// sortByAt orders records by the instant of their at (as written when it
+// does not parse), keeping the given order among equal times.
+func sortByAt(recs []devsync.Record) {
+	sort.SliceStable(recs, func(i, j int) bool {
+		ti, ei := time.Parse(time.RFC3339, recs[i].At)
+		tj, ej := time.Parse(time.RFC3339, recs[j].At)
+		if ei != nil || ej != nil {
+			return recs[i].At < recs[j].At
+		}
+		return ti.Before(tj)
+	})
 }

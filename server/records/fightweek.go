@@ -1,7 +1,9 @@
 package records
 
 import (
+	"encoding/json"
 	"fmt"
+	"math"
 	"strings"
 	"time"
 )
@@ -166,13 +168,11 @@ func checkIncidentMedical(b *Incident) error {
 		return fe("body.loss_of_consciousness", "is false, but the incident is a knockout with loss of consciousness")
 	}
 	if b.LOCSeconds != nil {
-		if b.LOC == nil || !*b.LOC {
-			if b.Type != "knockout_loc" {
-				return fe("body.loc_seconds", "is given, but loss_of_consciousness is not true")
-			}
-		}
 		if err := between("body.loc_seconds", *b.LOCSeconds, 0, MaxLOCSeconds, "s"); err != nil {
 			return err
+		}
+		if (b.LOC == nil || !*b.LOC) && b.Type != "knockout_loc" {
+			return fe("body.loss_of_consciousness", "is not true, but loc_seconds (how long consciousness was lost) is given")
 		}
 	}
 	if b.LOC != nil && *b.LOC && b.Type == "injury" {
@@ -190,4 +190,57 @@ func checkIncidentMedical(b *Incident) error {
 		}
 	}
 	return nil
+}
+func validateWeighIn(c *check, raw json.RawMessage) (any, error) {
+	var b WeighIn
+	present, err := decodeBody(raw, &b, KindWeighIn)
+	if err != nil {
+		return nil, err
+	}
+	if err := oneOf("body.type", b.Type, WeighInKinds); err != nil {
+		return nil, err
+	}
+	if !present.has("mass_kg") {
+		return nil, fe("body.mass_kg", "is required: the mass on the scale, %d to %d kg", MinMassKg, MaxMassKg)
+	}
+	if err := between("body.mass_kg", b.MassKg, MinMassKg, MaxMassKg, "kg"); err != nil {
+		return nil, err
+	}
+	if b.Made != nil && b.Type != "official" {
+		return nil, fe("body.made", "goes with the official weigh-in only; a %s weigh-in is judged against its cap", strings.ReplaceAll(b.Type, "_", "-"))
+	}
+	if math.IsNaN(b.MassKg) {
+		return nil, fe("body.mass_kg", "is not a number")
+	}
+	if err := note("body.note", b.Note); err != nil {
+		return nil, err
+	}
+	return &b, nil
+}
+
+func validateRTSStep(c *check, raw json.RawMessage) (any, error) {
+	var b RTSStep
+	present, err := decodeBody(raw, &b, KindRTSStep)
+	if err != nil {
+		return nil, err
+	}
+	if err := checkID("body.incident", b.Incident, "the id of the incident this step follows"); err != nil {
+		return nil, err
+	}
+	if !present.has("step") {
+		return nil, fe("body.step", "is required: the return-to-sport step, %d to %d", MinRTSStep, MaxRTSStep)
+	}
+	if err := betweenInt("body.step", b.Step, MinRTSStep, MaxRTSStep, ""); err != nil {
+		return nil, err
+	}
+	if err := text("body.symptoms", b.Symptoms, MaxNoteLen, true); err != nil {
+		return nil, err
+	}
+	if err := name("body.supervised_by", b.SupervisedBy, "who supervised the step"); err != nil {
+		return nil, err
+	}
+	if err := note("body.note", b.Note); err != nil {
+		return nil, err
+	}
+	return &b, nil
 }

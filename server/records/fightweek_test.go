@@ -35,7 +35,7 @@ func TestFightWeekFields(t *testing.T) {
 		{"empty fight-day cap", KindBout, bout(t, map[string]any{"rules": map[string]any{"fight_day": map[string]any{}}}), "body.rules.fight_day"},
 		{"fight-day 50 lb", KindBout, bout(t, map[string]any{"rules": map[string]any{"fight_day": map[string]any{"over_limit_lb": 50}}}), "body.rules.fight_day.over_limit_lb"},
 		{"unknown stand-down set", KindBout, bout(t, map[string]any{"stand_down_sets": []any{"my_gym"}}), "body.stand_down_sets[0]"},
-		{"loc seconds without loc", KindIncident, `{"type":"knockout","loc_seconds":20}`, "body.loc_seconds"},
+		{"loc seconds without loc", KindIncident, `{"type":"knockout","loc_seconds":20}`, "body.loss_of_consciousness"},
 		{"knockout_loc with loc false", KindIncident, `{"type":"knockout_loc","loss_of_consciousness":false}`, "body.loss_of_consciousness"},
 		{"loc for an injury", KindIncident, `{"type":"injury","loss_of_consciousness":true}`, "body.loss_of_consciousness"},
 		{"loc for two hours", KindIncident, `{"type":"knockout","loss_of_consciousness":true,"loc_seconds":7200}`, "body.loc_seconds"},

@@ -180,6 +180,16 @@ var Registry = []Kind{
 			{"travel landing before it leaves", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-14T09:00:00Z","arrive_at":"2026-01-14T08:00:00Z","from_zone":"Europe/London","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.arrive_at"},
 			{"travel longer than three days", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-14T09:00:00Z","arrive_at":"2026-01-18T21:00:00+07:00","from_zone":"Europe/London","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.arrive_at"},
 			{"travel leaving outside its week", `{"weeks":[{"week":1,"level":"medium"},{"week":2,"level":"heavy","travel":{"depart_at":"2026-01-19T09:00:00Z","arrive_at":"2026-01-19T21:00:00+07:00","from_zone":"Europe/London","to_zone":"Asia/Bangkok"}}]}`, "body.weeks[1].travel.depart_at"},
+			{"bout start without its offset", `{"bout_at":"2026-02-28 20:30"}`, "body.bout_at"},
+			{"bout start on another day", `{"bout_at":"2026-03-01T20:30:00Z"}`, "body.bout_at"},
+			{"check weight on the weigh-in day", `{"rules":{"check_weights":[{"days_before":0,"over_limit_pct":3}]}}`, "body.rules.check_weights[0].days_before"},
+			{"two check weights the same day", `{"rules":{"check_weights":[{"days_before":7,"over_limit_pct":3},{"days_before":7,"over_limit_pct":4}]}}`, "body.rules.check_weights[1].days_before"},
+			{"check weight far over the limit", `{"rules":{"check_weights":[{"days_before":30,"over_limit_pct":40}]}}`, "body.rules.check_weights[0].over_limit_pct"},
+			{"two fight-day caps", `{"rules":{"fight_day":{"over_limit_lb":10,"over_official_pct":10}}}`, "body.rules.fight_day"},
+			{"fight-day cap without a number", `{"rules":{"fight_day":{}}}`, "body.rules.fight_day"},
+			{"fight-day cap far over the limit", `{"rules":{"fight_day":{"over_limit_lb":50}}}`, "body.rules.fight_day.over_limit_lb"},
+			{"fight-day cap far over the weigh-in", `{"rules":{"fight_day":{"over_official_pct":40}}}`, "body.rules.fight_day.over_official_pct"},
+			{"unknown stand-down rule set", `{"stand_down_sets":["my_gym"]}`, "body.stand_down_sets[0]"},
 		},
 		validate: validateBout,
 	},
@@ -295,8 +305,17 @@ var Registry = []Kind{
 		Fields: []Field{
 			enum("body.type", "What happened", IncidentTypes),
 			textField("body.note", "What you saw", MaxNoteLen),
+			rng("body.loc_seconds", "How long consciousness was lost", "s", 0, MaxLOCSeconds),
+			textField("body.seen_by", "Clinician who saw the fighter", MaxNameLen),
 		},
-		Example:  `{"type":"head_knock"}`,
+		Example: `{"type":"head_knock"}`,
+		Cases: []Case{
+			{"how long consciousness was lost, when it was not", `{"loc_seconds":20}`, "body.loss_of_consciousness"},
+			{"loss of consciousness with an injury", `{"type":"injury","loss_of_consciousness":true}`, "body.loss_of_consciousness"},
+			{"a knockout with loss of consciousness marked without it", `{"type":"knockout_loc","loss_of_consciousness":false}`, "body.loss_of_consciousness"},
+			{"a clinician's date without the clinician", `{"clinician_day":"2026-04-20"}`, "body.seen_by"},
+			{"a clinician's date that is not a day", `{"seen_by":"Dr. A. Example","clinician_day":"20/04/2026"}`, "body.clinician_day"},
+		},
 		validate: validateIncident,
 	},
 	{
@@ -376,6 +395,32 @@ var Registry = []Kind{
 			{"a bar speed that rises with the load", `{"sets":[{"load_kg":40,"reps":5,"mpv_ms":1},{"load_kg":60,"reps":4,"mpv_ms":0.75},{"load_kg":80,"reps":3,"mpv_ms":0.8}]}`, "body.sets[2].mpv_ms"},
 		},
 		validate: validateStrength,
+	},
+	{
+		Name: KindWeighIn, Screen: "/fightweek", Label: "weigh-in", Plural: "weigh-ins", Body: WeighIn{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff}, Rules: []string{RuleWeighIn},
+		Fields: []Field{
+			enum("body.type", "Weigh-in", WeighInKinds),
+			rng("body.mass_kg", "Mass on the scale", "kg", MinMassKg, MaxMassKg),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example: `{"type":"check","mass_kg":70}`,
+		Cases: []Case{
+			{"made the limit, on a check weight", `{"made":true}`, "body.made"},
+		},
+		validate: validateWeighIn,
+	},
+	{
+		Name: KindRTSStep, Screen: "/rts", Label: "return-to-sport step", Plural: "return-to-sport steps", Body: RTSStep{}, Scope: PerAthlete, Dated: true,
+		Writers: []string{RoleStaff},
+		Fields: []Field{
+			wholeRng("body.step", "Step", "", MinRTSStep, MaxRTSStep),
+			textField("body.symptoms", "Symptoms", MaxNoteLen),
+			textField("body.supervised_by", "Supervised by", MaxNameLen),
+			textField("body.note", "Note", MaxNoteLen),
+		},
+		Example:  `{"incident":"0190a0b0-0000-7000-8000-000000000001","step":1,"supervised_by":"Dr. A. Example"}`,
+		validate: validateRTSStep,
 	},
 }
 
@@ -485,6 +530,10 @@ type Vocabulary struct {
 	Cases    map[string][]Case `json:"cases"`
 	// Limits are the numbers the checks of one field against another use.
 	Limits map[string]float64 `json:"limits"`
+	// StandDownSets are the ids a bout's stand_down_sets may name.
+	StandDownSets []string `json:"stand_down_sets"`
+	// WeighInKinds are the weigh-in record's types.
+	WeighInKinds []string `json:"weigh_in_kinds"`
 }
 
 // VocabKind is one kind as the app sees it.
@@ -505,7 +554,10 @@ func Vocab() Vocabulary {
 		MaxNameLen: MaxNameLen, MaxNoteLen: MaxNoteLen, Protocols: Protocols, Modalities: ModalityOptions,
 		Levels: Levels, Emphases: Emphases, CR10: CR10, Cases: map[string][]Case{},
 		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
-			"max_emphasis_ids": MaxEmphasisIDs, "max_travel_hours": MaxTravelHours}}
+			"max_emphasis_ids": MaxEmphasisIDs, "max_travel_hours": MaxTravelHours,
+			"max_check_days": MaxCheckDays, "max_over_limit_pct": MaxOverLimitPct, "max_fight_day_lb": MaxFightDayLb,
+			"max_fight_day_pct": MaxFightDayPct, "max_bout_after_hours": MaxBoutAfterHours, "max_stand_down_sets": MaxStandDownSets},
+		StandDownSets: StandDownSetIDs, WeighInKinds: WeighInKinds}
 	for k, x := range testLimits {
 		v.Limits[k] = x
 	}
