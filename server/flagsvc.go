@@ -64,7 +64,7 @@ type athleteRecs struct {
 
 // windowedKinds are read over the rules' window; standDownKinds in full.
 var (
-	windowedKinds  = []string{records.KindCheckin, records.KindJump, records.KindRound, records.KindSession, records.KindIntervals, records.KindDecision}
+	windowedKinds  = []string{records.KindCheckin, records.KindJump, records.KindRound, records.KindSession, records.KindIntervals, records.KindDecision, records.KindWeighIn}
 	standDownKinds = []string{records.KindIncident, records.KindClearance}
 )
 

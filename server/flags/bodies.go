@@ -7,6 +7,8 @@ package flags
 // They are exported so the chart series read records exactly as the
 // rules do.
 
+import "cornerbook/server/fightweek"
+
 // Kind names of the record format.
 const (
 	kindAthlete   = "athlete"
@@ -19,6 +21,7 @@ const (
 	kindIncident  = "incident"
 	kindClearance = "clearance"
 	kindDecision  = "decision"
+	kindWeighIn   = "weigh_in"
 	kindNote      = "note"
 )
 
@@ -88,15 +91,17 @@ type weekBody struct {
 }
 
 type boutBody struct {
-	CampStart       string     `json:"camp_start"`
-	WeighIn         string     `json:"weigh_in"`
-	WeighInZone     string     `json:"weigh_in_zone"`
-	WeighInType     string     `json:"weigh_in_type"`
-	BoutDay         string     `json:"bout_day"`
-	LimitKg         float64    `json:"limit_kg"`
-	StartMassKg     float64    `json:"start_mass_kg"`
-	ReferenceLoadAU float64    `json:"reference_load_au"`
-	Path            []knotBody `json:"path"`
-	Weeks           []weekBody `json:"weeks"`
-	StandDownSets   []string   `json:"stand_down_sets"`
+	CampStart       string           `json:"camp_start"`
+	WeighIn         string           `json:"weigh_in"`
+	WeighInZone     string           `json:"weigh_in_zone"`
+	WeighInType     string           `json:"weigh_in_type"`
+	BoutDay         string           `json:"bout_day"`
+	LimitKg         float64          `json:"limit_kg"`
+	StartMassKg     float64          `json:"start_mass_kg"`
+	ReferenceLoadAU float64          `json:"reference_load_au"`
+	Path            []knotBody       `json:"path"`
+	Weeks           []weekBody       `json:"weeks"`
+	StandDownSets   []string         `json:"stand_down_sets"`
+	BoutAt          string           `json:"bout_at"`
+	Rules           *fightweek.Rules `json:"rules"`
 }

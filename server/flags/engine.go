@@ -101,10 +101,11 @@ type engine struct {
 	decisions  []decision  // every decision up to today (today's acknowledge flags; spar_on_hold ones answer rounds)
 	sparLog    []sparRound // every sparring round up to today
 
-	bout  *plan
-	bouts []*plan // every bout given, by camp start
-	out   []Flag
-	units string // the athlete's display units, "kg" or "lb"
+	bout     *plan
+	bouts    []*plan // every bout given, by camp start
+	out      []Flag
+	units    string    // the athlete's display units, "kg" or "lb"
+	weighIns []weighIn // weigh-in records up to today
 }
 
 func newEngine(in *Input) (*engine, bool) {
@@ -225,6 +226,8 @@ func newEngine(in *Input) (*engine, bool) {
 			if json.Unmarshal(r.Body, &b) == nil {
 				e.decisions = append(e.decisions, decision{r.ID, r.At, d, b, r})
 			}
+		case kindWeighIn:
+			e.addWeighIn(r, d)
 		}
 	}
 	// Everything in one canonical order (day, time, id), so the flags do not

@@ -89,6 +89,7 @@ const (
 	RuleMissingCheckin = records.RuleMissingCheckin
 	RuleOffPlan        = records.RuleOffPlan
 	RuleResidualGap    = records.RuleResidualGap
+	RuleWeighIn        = records.RuleWeighIn
 )
 
 // Rules lists every rule id in a stable order.
@@ -96,7 +97,7 @@ var Rules = []string{
 	RuleJumpDrop, RuleMassAbovePath, RuleMassLossFast, RuleCutAtRisk,
 	RuleSparDensity, RuleSparSpacing, RuleSparOnHold, RuleLoadSpike,
 	RuleMonotony, RuleWellnessDrop, RuleHydration, RuleMissingCheckin,
-	RuleOffPlan, RuleResidualGap,
+	RuleOffPlan, RuleResidualGap, RuleWeighIn,
 }
 
 // Input is everything one athlete-day evaluation needs.
@@ -226,6 +227,7 @@ func Compute(in Input) []Flag {
 	e.missingCheckin()
 	e.offPlan()
 	e.residualGap()
+	e.weighInRules()
 	e.attachDecisions()
 	uniqueTitles(e.out)
 	sortFlags(e.out)

@@ -21,6 +21,7 @@ const (
 	RuleMissingCheckin = "missing_checkin"
 	RuleOffPlan        = "off_plan"
 	RuleResidualGap    = "residual_gap"
+	RuleWeighIn        = "weigh_in" // check weights and fight-day weigh-ins against the bout's rules; regain
 )
 
 // Param is one editable threshold of a flag rule.
@@ -167,7 +168,14 @@ var Rules = []Rule{
 		whole("max_strength_days", 35, "days", 1, 90, "days since the last maximal-strength session"),
 		whole("speed_days", 8, "days", 1, 60, "days since the last speed or plyometric session"),
 	}},
-}
+	// Check weights and fight-day weigh-ins over the caps of the bout's own
+	// rules are alerts (REFERENCES §14.1). A regain above 10 % of the
+	// official mass is a watch: a state commission's fight-night check
+	// (2017) and the 2019 check-weight programme both use 10 % (§14.1);
+	// 20.6 % of professional boxers exceeded it (§6.3).
+	{RuleWeighIn, []Param{
+		value("regain_watch_pct", 10, "% of the official mass", 1, 30, "regain from the official weigh-in to the fight-day weigh-in that starts a watch"),
+	}}}
 
 // DefaultCheckinHour is the local hour by which a check-in is expected
 // (PRODUCT.md, missing_checkin), unless settings say otherwise. A

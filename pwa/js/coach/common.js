@@ -19,6 +19,7 @@ export const RULE_NAMES = {
   missing_checkin: 'No morning check-in',
   off_plan: 'Week away from the planned load',
   residual_gap: 'Quality not trained lately',
+  weigh_in: 'Weigh-in over its cap or large regain',
 };
 export const ruleName = (id) => RULE_NAMES[id] || 'Finding';
 
