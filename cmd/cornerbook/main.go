@@ -35,6 +35,8 @@ func Run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = runExport(args, stdout)
 	case "flags":
 		err = runFlags(args, stdout)
+	case "fightweek":
+		err = runFightWeek(args, stdout)
 	case "plan":
 		err = runPlan(args, stdout)
 	case "tests":
@@ -68,6 +70,7 @@ const usage = `Usage:
   cornerbook flags   --data DIR --day YYYY-MM-DD [--athlete ID] [--json]
   cornerbook plan    --data DIR --athlete ID [--day YYYY-MM-DD] [--json]
   cornerbook tests   --data DIR --athlete ID [--day YYYY-MM-DD] [--json]
+  cornerbook fightweek --data DIR --athlete ID [--day YYYY-MM-DD] [--json]
   cornerbook backup  --data DIR FILE        (also while the hub runs: it asks the hub)
   cornerbook restore --data DIR FILE        (with the hub stopped)
 

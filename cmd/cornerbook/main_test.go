@@ -79,7 +79,7 @@ func TestMain_DemoServesAppAndCamp(t *testing.T) {
 		}
 		since = page.Next
 	}
-	assert.Equal(t, 4, athletes, "the demo camp has four invented athletes")
+	assert.Equal(t, 5, athletes, "the demo camp has five invented athletes")
 }
 
 // TestCommands_LockedFolder: while a hub holds the folder, commands say so

@@ -1,0 +1,117 @@
+package main
+
+import (
+	"encoding/json"
+	"flag"
+	"fmt"
+	"io"
+	"strings"
+	"time"
+
+	"cornerbook/server"
+	"cornerbook/server/fightweek"
+)
+
+// runFightWeek prints a fighter's fight week: the official weigh-in, the
+// mass a week before it, the acute loss, the regain, the hours from the
+// weigh-in to the bout and every check against its cap.
+func runFightWeek(args []string, stdout io.Writer) error {
+	fs := flag.NewFlagSet("fightweek", flag.ContinueOnError)
+	data := dataFlag(fs)
+	athlete := fs.String("athlete", "", "the athlete id (required)")
+	day := fs.String("day", "", "the day whose bout is shown, YYYY-MM-DD (default today in the camp's time zone)")
+	asJSON := fs.Bool("json", false, "JSON instead of words")
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 || *athlete == "" {
+		return errUsage
+	}
+	if *day != "" {
+		if _, err := time.Parse(time.DateOnly, *day); err != nil {
+			return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
+		}
+	}
+	db, err := openData(*data, time.Now)
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	srv, err := server.New(server.Config{Store: db})
+	if err != nil {
+		return err
+	}
+	v, err := srv.FightWeek(*athlete, *day)
+	if err != nil {
+		return err
+	}
+	if *asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(v)
+	}
+	writeFightWeekText(stdout, &v)
+	return nil
+}
+
+func writeFightWeekText(w io.Writer, v *server.FightWeekView) {
+	title := v.BoutName
+	if title == "" && v.BoutDay != "" {
+		title = "bout on " + v.BoutDay
+	}
+	fmt.Fprintf(w, "%s — %s\n", v.Name, title)
+	if v.Bout == "" {
+		fmt.Fprintln(w, "No bout is planned for this fighter.")
+		return
+	}
+	if v.RulesWords != "" {
+		fmt.Fprintf(w, "Weigh-in rules: %s\n", v.RulesWords)
+	} else {
+		fmt.Fprintln(w, "Weigh-in rules: official weigh-in only (no rule set picked).")
+	}
+	if v.Preset != nil {
+		fmt.Fprintf(w, "  from: %s (%s)\n  %s\n", v.Preset.Source, v.Preset.Sure, v.Preset.Caution)
+	}
+	fmt.Fprintln(w)
+	for _, line := range v.Words {
+		fmt.Fprintln(w, line)
+	}
+	if len(v.Checks) > 0 {
+		fmt.Fprintln(w, "\nChecks:")
+		for _, c := range v.Checks {
+			mark := "  "
+			switch {
+			case c.Pass == nil:
+				mark = "– "
+			case *c.Pass:
+				mark = "✓ "
+			default:
+				mark = "✗ "
+			}
+			fmt.Fprintf(w, "%s%s\n", mark, c.Reason)
+		}
+	}
+	fmt.Fprintln(w, "\nDay by day:")
+	for _, d := range v.Days {
+		var parts []string
+		if d.MorningKg != nil {
+			parts = append(parts, "morning "+fightweek.Mass(*d.MorningKg, v.Units))
+		}
+		if d.PathKg != nil {
+			parts = append(parts, "path "+fightweek.Mass(*d.PathKg, v.Units))
+		}
+		label := fmt.Sprintf("%d days out", d.DaysToWeighIn)
+		switch {
+		case d.IsWeighInDay && d.IsBoutDay:
+			label = "weigh-in and bout"
+		case d.IsWeighInDay:
+			label = "weigh-in day"
+		case d.IsBoutDay:
+			label = "bout day"
+		case d.DaysToWeighIn == 1:
+			label = "1 day out"
+		}
+		fmt.Fprintf(w, "  %s  %-18s %s\n", d.Day, label, strings.Join(parts, ", "))
+	}
+	fmt.Fprintln(w)
+	for _, c := range v.Cautions {
+		fmt.Fprintln(w, c)
+	}
+}
