@@ -93,7 +93,7 @@ func TestBaselines_Demo(t *testing.T) {
 	defer resp.Body.Close()
 	var out struct{ Athletes []server.Baseline }
 	require.NoError(t, json.NewDecoder(resp.Body).Decode(&out))
-	require.Len(t, out.Athletes, 4)
+	require.Len(t, out.Athletes, 5)
 	fl, err := srv.Flags("2026-12-01", "")
 	require.NoError(t, err)
 	byName := map[string]server.Baseline{}

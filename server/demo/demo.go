@@ -17,6 +17,7 @@ import (
 	"math/rand/v2"
 	"time"
 
+	"cornerbook/server/fightweek"
 	"cornerbook/server/fitness"
 	"cornerbook/server/plan"
 	"cornerbook/server/records"
@@ -219,6 +220,22 @@ func (g *gen) build() []devsync.Record {
 			campStart: start, boutIn: 23, baseCMJ: 46.0, refLoad: 3400,
 			massAt: func(d int) float64 { return 70.6 - 0.075*float64(d-start) },
 		},
+		{ // Pro welterweight, pounds, in fight week: the weigh-in tomorrow,
+			// the bout the day after, under a check-weight programme
+			// (30, 14 and 7 days); the 14-day check weight was over its cap.
+			key: "sami", name: "Sami Arkwright", units: "lb", sex: "m", birthYear: 1999,
+			class: "pro_welterweight", limitKg: lb(147), weighType: "day_before", startMass: 72.0,
+			campStart: start, boutIn: 2, baseCMJ: 45.0, refLoad: 3300,
+			massAt: func(d int) float64 {
+				switch {
+				case d <= -14:
+					return 72.0 - 0.059*float64(d-start)
+				case d <= -6:
+					return 70.4 - 0.25*float64(d+14)
+				}
+				return 68.4 - 0.2*float64(d+6)
+			},
+		},
 	}
 	for _, f := range fs {
 		g.fighter(f, start)
@@ -268,11 +285,22 @@ func (g *gen) fighter(f *fighter, start int) {
 		weeks[k-1].Note = "Fly out Monday morning; easy runs and mobility until the body has adjusted."
 	}
 	f.weeks = weeks
-	g.add(records.KindBout, aid, campStart, 8, 0, coachTablet, records.Bout{
+	bout := records.Bout{
 		Name: "Invented bout, week " + fmt.Sprint(len(weeks)), CampStart: g.dayStr(campStart), WeighIn: weigh.Format(time.RFC3339),
 		WeighInType: f.weighType, BoutDay: g.dayStr(boutDay), WeightClass: f.class, LimitKg: round2(f.limitKg),
 		StartMassKg: f.startMass, ReferenceLoadAU: f.refLoad, Weeks: weeks,
-	})
+	}
+	if f.key == "sami" {
+		// The bout's contract names the check-weight programme; the
+		// national board's stand-downs apply besides the ringside minimums.
+		p, _ := fightweek.PresetByID("check_weights_30_14_7")
+		rules := p.Rules
+		bout.Rules = &rules
+		bout.WeighIn = g.day(weighDay).Add(13 * time.Hour).Format(time.RFC3339)
+		bout.BoutAt = g.day(boutDay).Add(21 * time.Hour).Format(time.RFC3339)
+		bout.StandDownSets = []string{"pro_board_28_45"}
+	}
+	g.add(records.KindBout, aid, campStart, 8, 0, coachTablet, bout)
 
 	for d := start; d <= 0; d++ {
 		wd := g.day(d).Weekday()
@@ -420,8 +448,19 @@ func (g *gen) trainingDay(f *fighter, aid, phone string, d int, wd time.Weekday)
 func (g *gen) story(f *fighter, aid, phone string) {
 	switch f.key {
 	case "mateo":
-		g.add(records.KindIncident, aid, -5, 16, 40, coachTablet, records.Incident{Type: "head_knock", Note: "Heavy right hand in sparring; sat out the rest of the session."})
+		inc := g.add(records.KindIncident, aid, -5, 16, 40, coachTablet, records.Incident{Type: "head_knock", Note: "Heavy right hand in sparring; sat out the rest of the session.",
+			SeenBy: "Dr. Ilse Marrow (camp doctor)"})
 		g.add(records.KindNote, aid, -4, 9, 0, coachTablet, records.Note{Text: "Seen by the camp doctor; no contact until cleared.", By: "S&C coach"})
+		// The return to sport, one step a day or slower (Patricios et al. 2023).
+		g.add(records.KindRTSStep, aid, -4, 10, 0, coachTablet, records.RTSStep{Incident: inc, Step: 1, Symptoms: "Mild headache in the morning, gone by noon.", SupervisedBy: "Dr. Ilse Marrow"})
+		g.add(records.KindRTSStep, aid, -3, 10, 30, coachTablet, records.RTSStep{Incident: inc, Step: 2, Symptoms: "None on the bike.", SupervisedBy: "Physio Ren Okafor"})
+		g.add(records.KindRTSStep, aid, -1, 10, 30, coachTablet, records.RTSStep{Incident: inc, Step: 3, Symptoms: "None; shadow boxing and skipping.", SupervisedBy: "Physio Ren Okafor"})
+	case "sami":
+		// Check weights at 30, 14 and 7 days before the weigh-in (tomorrow):
+		// the 14-day one 0.3 kg over its cap of limit + 5 %.
+		g.add(records.KindWeighIn, aid, -29, 9, 0, coachTablet, records.WeighIn{Type: "check", MassKg: 71.4})
+		g.add(records.KindWeighIn, aid, -13, 9, 0, coachTablet, records.WeighIn{Type: "check", MassKg: 70.3, Note: "Commission scale, gym-side."})
+		g.add(records.KindWeighIn, aid, -6, 9, 0, coachTablet, records.WeighIn{Type: "check", MassKg: 68.5})
 	case "kofi":
 		g.add(records.KindDecision, aid, -1, 12, 35, coachTablet, records.Decision{Rule: "spar_spacing", Note: "Third hard day; kept it, but no sparring tomorrow unless jumps are back.", By: "S&C coach"})
 	case "tomas":
