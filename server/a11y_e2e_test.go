@@ -98,11 +98,12 @@ func appScreens(h *ringHub) []appScreen {
 	q := func(id string) string { return fmt.Sprintf("document.querySelector(%q)", pwatest.Q(id)) }
 	mateo, kofi := h.names["Mateo Lindqvist"], h.names["Kofi Brandt"]
 	return []appScreen{
-		{name: "home", path: "/", ready: q("screen-home") + ` && document.querySelectorAll('[data-testid="athlete-option"]').length === 4`},
+		{name: "home", path: "/", ready: q("screen-home") + ` && document.querySelectorAll('[data-testid="athlete-option"]').length === 5`},
+		{name: "rts", path: "/rts?athlete=" + mateo, ready: q("screen-rts") + ` && ` + q("rts-so-far")},
 		{name: "checkin", path: "/checkin", ready: q("screen-checkin") + ` && ` + q("checkin-units"),
 			setup: func(ctx context.Context) error { return pwatest.SelectAthlete(ctx, "Ines Halloran") }},
-		{name: "jumps", path: "/jumps", ready: q("screen-jumps") + ` && document.querySelectorAll('[data-testid^="jump-baseline-"]').length === 4 && !document.querySelector('[data-testid^="jump-baseline-"][data-unknown]')`},
-		{name: "rounds", path: "/rounds", ready: q("screen-rounds") + ` && document.querySelectorAll('[data-testid^="ringside-spar-"][data-rounds]').length === 4`,
+		{name: "jumps", path: "/jumps", ready: q("screen-jumps") + ` && document.querySelectorAll('[data-testid^="jump-baseline-"]').length === 5 && !document.querySelector('[data-testid^="jump-baseline-"][data-unknown]')`},
+		{name: "rounds", path: "/rounds", ready: q("screen-rounds") + ` && document.querySelectorAll('[data-testid^="ringside-spar-"][data-rounds]').length === 5`,
 			setup: func(ctx context.Context) error {
 				return pwatest.Eval(ctx, `import('/js/ringside/clock.js').then((m) => { m.reset(); return true })`, nil)
 			}},

@@ -150,7 +150,7 @@ async function write(id, change, op) {
     device: me,
     // at is when the entry was observed: a correction, delete or restore
     // keeps it; the stamp records the edit.
-    at: (old && old.at) || rfc3339(),
+    at: fields.at || (old && old.at) || rfc3339(),
     stamp,
   };
   if (!rec.athlete) delete rec.athlete;
@@ -169,7 +169,7 @@ async function write(id, change, op) {
   return rec;
 }
 
-// save creates or edits a record: {id?, kind, athlete?, day, body}. The
+// save creates or edits a record: {id?, kind, athlete?, day, at?, body}. The
 // hub's checks run first: what the hub would refuse is refused here, with
 // its field and words (a CheckError), and nothing is saved.
 export function save(draft) {
@@ -178,6 +178,7 @@ export function save(draft) {
   return write(draft.id, (old) => {
     const f = { kind: draft.kind, day: draft.day, body: draft.body };
     if (draft.athlete) f.athlete = draft.athlete;
+    if (draft.at) f.at = draft.at; // the moment a weigh-in or a step happened, with its offset
     if (!old && draft.id) f.id = draft.id;
     if (old && old.deleted) throw new Error('this entry is deleted; restore it first');
     return f;

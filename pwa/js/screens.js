@@ -31,6 +31,8 @@ const TILES = [
   ['/session', 'Session RPE', 'how hard, how long', 'nav-session'],
   ['/incident', 'Incident', 'head knock, knockdown, injury', 'nav-incident'],
   ['/clearance', 'Clearance', 'end a stand-down', 'nav-clearance'],
+  ['/rts', 'Return to sport', 'one step a day at most', 'nav-rts'],
+  ['/fightweek', 'Fight week', 'weigh-ins, regain, hours to the bout', 'nav-fightweek'],
   ['/today', 'Today', 'entries, corrections', 'nav-today'],
   ['/review', 'Day board', 'flags, decisions, charts', 'nav-review'],
   ['/plan', 'Camp plan', 'bout, weeks, mass path', 'nav-plan'],

@@ -43,4 +43,5 @@ export const COACH_ROUTES = {
   '/sheet': lazy(() => import('./sheet.js'), 'Sheet'),
   '/tests': lazy(() => import('./tests.js'), 'Tests'),
   '/intervals': lazy(() => import('./intervals.js'), 'Intervals'),
+  '/fightweek': lazy(() => import('./fightweek.js'), 'FightWeek'),
 };
