@@ -287,7 +287,7 @@ func TestCoachScreensSpeakWords(t *testing.T) {
 	for _, day := range coveringDays(t, h) {
 		screens = append(screens,
 			screen{"/review?day=" + day, `document.querySelector('[data-testid="screen-review"][data-ready="true"]') && document.querySelector('[data-testid="review-fresh"][data-live="true"]')`},
-			screen{"/sheet?day=" + day, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 4 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable'))`})
+			screen{"/sheet?day=" + day, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 5 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable'))`})
 	}
 	for _, s := range screens {
 		require.NoError(t, pwatest.Route(ctx, s.path))
@@ -504,7 +504,7 @@ func TestHomeIsTheCampAtAGlance(t *testing.T) {
 	require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid^="glance-"][data-held]')].map((e) => ({ ID: e.dataset.testid.slice(7), Held: e.dataset.held,
 		Rx: e.querySelector('[data-testid="glance-restriction"]').innerText, Worst: e.querySelector('[data-testid="glance-worst"]').innerText,
 		Mass: e.querySelector('[data-testid="glance-mass"]').innerText, Phone: e.querySelector('[data-testid="glance-phone"]').innerText }))`, &rows))
-	require.Len(t, rows, 4, "a row per fighter")
+	require.Len(t, rows, 5, "a row per fighter")
 	assert.Equal(t, ids["Mateo Lindqvist"], rows[0].ID, "the fighter on a stand-down comes first")
 	assert.Equal(t, "true", rows[0].Held)
 	assert.Contains(t, rows[0].Rx, "Stand-down: head knock on "+demoToday.AddDate(0, 0, -5).Format("Mon 2 Jan 2006"))

@@ -62,7 +62,11 @@ func TestDemoCamp_HubFeedsTheRulesWholeHistory(t *testing.T) {
 				}
 			}
 			in.Bout = best
-			want, err := json.Marshal(flags.Compute(in))
+			fs := flags.Compute(in)
+			if fs == nil {
+				fs = []flags.Flag{} // a day without flags (the hub answers [])
+			}
+			want, err := json.Marshal(fs)
 			require.NoError(t, err)
 			fl, err := srv.Flags(day, a.ID)
 			require.NoError(t, err)

@@ -147,7 +147,7 @@ func TestE2EStrengthLoadsFromTheLatestE1RM(t *testing.T) {
 	require.NoError(t, pwatest.Type(ctx, "sl-exercise", "back squat"))
 	require.NoError(t, pwatest.Type(ctx, "sl-pct", "80"))
 	var kofi string
-	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid="sl-row"]').length === 4`, 10*time.Second))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelectorAll('[data-testid="sl-row"]').length === 5`, 10*time.Second))
 	require.NoError(t, pwatest.Eval(ctx, `[...document.querySelectorAll('[data-testid="sl-row"]')].find((r) => r.textContent.includes('Kofi Brandt')).dataset.athlete`, &kofi))
 	require.NoError(t, pwatest.WaitText(ctx, "sl-load-"+kofi, "108.5 kg — 107.5 kg on the bar"))
 	require.NoError(t, pwatest.WaitText(ctx, "sl-table", "no back squat test yet"), "a fighter without the exercise is named as such")

@@ -179,6 +179,8 @@ export function recordSummary(r, units) {
     case 'clearance': return `Clearance${b.by ? ` by ${b.by}` : ''}${b.note ? ` — ${b.note}` : ''}`;
     case 'bout': return `Bout plan: camp ${b.camp_start}, bout ${b.bout_day}, limit ${mass(b.limit_kg, units)}`;
     case 'decision': return `Decision: ${b.note}`;
+    case 'weigh_in': return `${{ check: 'Check weight', official: 'Official weigh-in', fight_day: 'Fight-day weigh-in' }[b.type] || 'Weigh-in'}: ${mass(b.mass_kg, units)} at ${String(r.at || '').slice(0, 16).replace('T', ' ')}`;
+    case 'rts_step': return `Return-to-sport step ${b.step}${b.supervised_by ? `, supervised by ${b.supervised_by}` : ''}`;
     default: return r.kind;
   }
 }
