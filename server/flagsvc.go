@@ -51,6 +51,7 @@ type flagService struct {
 	recs map[string]*athleteRecs
 	// athletes is the sorted athlete list; nil until read or after a change.
 	athletes []devsync.Record
+	archived []devsync.Record // athletes the coach archived: only a running stand-down of theirs is shown
 	// refreshing marks athletes whose recomputation is waiting to run.
 	refreshing map[string]bool
 }
@@ -224,28 +225,39 @@ func (f *flagService) Today() string { return f.s.now().In(f.location()).Format(
 // Athletes lists the camp's live athlete records, by name. The list is
 // kept until an athlete record changes.
 func (f *flagService) Athletes() ([]devsync.Record, error) {
+	live, _, err := f.roster()
+	return live, err
+}
+
+// roster lists the live athletes and the archived ones, each by name.
+func (f *flagService) roster() (live, gone []devsync.Record, err error) {
 	f.mu.Lock()
-	cached := f.athletes
+	live, gone = f.athletes, f.archived
 	f.mu.Unlock()
-	if cached != nil {
-		return cached, nil
+	if live != nil {
+		return live, gone, nil
 	}
-	out := []devsync.Record{}
-	err := f.s.store.Kind(records.KindAthlete, func(r devsync.Record) error {
+	live, gone = []devsync.Record{}, []devsync.Record{}
+	err = f.s.store.Kind(records.KindAthlete, func(r devsync.Record) error {
 		if archived(r) {
-			return nil // out of the day board and the sheet; entries kept
+			gone = append(gone, r) // out of the day board and the sheet; entries kept
+		} else {
+			live = append(live, r)
 		}
-		out = append(out, r)
 		return nil
 	})
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	sort.Slice(out, func(i, j int) bool { return athleteName(out[i]) < athleteName(out[j]) })
+	byName := func(rs []devsync.Record) {
+		sort.Slice(rs, func(i, j int) bool { return athleteName(rs[i]) < athleteName(rs[j]) })
+	}
+	byName(live)
+	byName(gone)
 	f.mu.Lock()
-	f.athletes = out
+	f.athletes, f.archived = live, gone
 	f.mu.Unlock()
-	return out, nil
+	return live, gone, nil
 }
 
 // archived reports whether an athlete record was archived by the coach
@@ -264,24 +276,39 @@ func athleteName(r devsync.Record) string {
 // Day returns the flags of one day for one athlete, or all athletes when
 // athlete is "". Results are cached until a push touches the athlete.
 func (f *flagService) Day(day, athlete string) ([]flags.Flag, error) {
-	ids := []string{athlete}
-	if athlete == "" {
-		ath, err := f.Athletes()
+	if athlete != "" {
+		fl, err := f.forAthlete(athlete, day)
 		if err != nil {
 			return nil, err
 		}
-		ids = ids[:0]
-		for _, a := range ath {
-			ids = append(ids, a.ID)
-		}
+		out := append([]flags.Flag(nil), fl...)
+		sortFlags(out)
+		return out, nil
+	}
+	live, gone, err := f.roster()
+	if err != nil {
+		return nil, err
 	}
 	var out []flags.Flag
-	for _, id := range ids {
-		fl, err := f.forAthlete(id, day)
+	for _, a := range live {
+		fl, err := f.forAthlete(a.ID, day)
 		if err != nil {
 			return nil, err
 		}
 		out = append(out, fl...)
+	}
+	// An archived athlete leaves the board, but a stand-down still in
+	// force does not: restrictions outrank tidiness.
+	for _, a := range gone {
+		fl, err := f.forAthlete(a.ID, day)
+		if err != nil {
+			return nil, err
+		}
+		for _, x := range fl {
+			if x.Rule == flags.RuleSparOnHold && x.Status == flags.StatusFlag {
+				out = append(out, x)
+			}
+		}
 	}
 	sortFlags(out)
 	return out, nil
@@ -504,7 +531,7 @@ func (f *flagService) Changed(recs []devsync.Record) {
 	for _, r := range recs {
 		f.patch(r)
 		if r.Kind == records.KindAthlete {
-			f.athletes = nil
+			f.athletes, f.archived = nil, nil
 		}
 	}
 	for a := range touched {
@@ -599,13 +626,17 @@ func (s *Server) handleFlags(w http.ResponseWriter, r *http.Request) error {
 	}
 	// The athletes the answer may name, so a screen can show names before
 	// its device has pulled the athlete records.
-	ath, err := s.flags.Athletes()
+	live, gone, err := s.flags.roster()
 	if err != nil {
 		return err
 	}
+	named := map[string]bool{}
+	for _, x := range fl {
+		named[x.Athlete] = true
+	}
 	names := []athleteRef{}
-	for _, a := range ath {
-		if athlete == "" || a.ID == athlete {
+	for _, a := range append(append([]devsync.Record{}, live...), gone...) {
+		if (athlete == "" || a.ID == athlete) && (named[a.ID] || !archived(a)) {
 			names = append(names, athleteRef{ID: a.ID, Name: athleteName(a)})
 		}
 	}
@@ -658,7 +689,7 @@ func (s *Server) DropFlagCache() {
 	s.flags.mu.Lock()
 	s.flags.cache.clear()
 	s.flags.recs = map[string]*athleteRecs{}
-	s.flags.athletes = nil
+	s.flags.athletes, s.flags.archived = nil, nil
 	s.flags.mu.Unlock()
 }
 

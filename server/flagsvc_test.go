@@ -12,6 +12,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"cornerbook/server/flags"
+	devsync "cornerbook/sync"
 )
 
 func flagRules(t *testing.T, h *hub, day, athlete string) map[string]flags.Flag {
@@ -153,4 +154,54 @@ func TestFlags_MissingCheckinFromTheFirstRecordLongAgo(t *testing.T) {
 	assert.Equal(t, "No morning check-in", f.Title)
 	assert.NotContains(t, flagRules(t, h, day, b.ID), "missing_checkin", "a note is not a first record")
 	assert.NotContains(t, flagRules(t, h, "2026-05-01", a.ID), "missing_checkin", "nothing before the first record")
+}
+
+// TestFlags_ArchivedAthleteKeepsARunningStandDown: archiving takes an
+// athlete off the day board, but a stand-down in force stays on it with
+// the athlete's name (restrictions outrank tidiness; PRODUCT.md
+// "Restrictions come first"); nothing else of theirs is shown.
+func TestFlags_ArchivedAthleteKeepsARunningStandDown(t *testing.T) {
+	h := newHub(t)
+	a := h.athlete("Rena Osei", "kg")
+	b := h.athlete("Paulo Brisk", "kg")
+	day := "2026-11-19"
+	knock := h.rec("incident", a.ID, "2026-11-18", map[string]any{"type": "head_knock"})
+	wet := h.rec("checkin", a.ID, day, map[string]any{"usg": 1.032})
+	other := h.rec("checkin", b.ID, day, map[string]any{"usg": 1.032})
+	resp := h.push("phone-1", 1, a, b, knock, wet, other)
+	require.Equal(t, 5, resp.Applied, "rejected: %+v", resp.Rejected)
+
+	board := func() (map[string][]string, map[string]string) {
+		var out struct {
+			Flags    []flags.Flag
+			Athletes []struct{ ID, Name string }
+		}
+		require.Equal(t, 200, h.get("/api/flags?day="+day, &out))
+		rules := map[string][]string{}
+		for _, f := range out.Flags {
+			if f.Status == flags.StatusFlag {
+				rules[f.Athlete] = append(rules[f.Athlete], f.Rule)
+			}
+		}
+		names := map[string]string{}
+		for _, n := range out.Athletes {
+			names[n.ID] = n.Name
+		}
+		return rules, names
+	}
+	rules, _ := board()
+	require.Contains(t, rules[a.ID], flags.RuleSparOnHold)
+	require.Contains(t, rules[a.ID], "hydration")
+
+	// Archive both: the one under a stand-down keeps only the stand-down.
+	for i, r := range []devsync.Record{a, b} {
+		r.Body = json.RawMessage(`{"name":"` + map[int]string{0: "Rena Osei", 1: "Paulo Brisk"}[i] + `","units":"kg","active":false}`)
+		r.Stamp.L += 1000
+		h.push("phone-1", uint64(10+i), r)
+	}
+	rules, names := board()
+	assert.Equal(t, []string{flags.RuleSparOnHold}, rules[a.ID], "only the running stand-down of an archived athlete")
+	assert.Equal(t, "Rena Osei", names[a.ID], "the stand-down is named")
+	assert.NotContains(t, rules, b.ID, "an archived athlete without a stand-down is off the board")
+	assert.NotContains(t, names, b.ID)
 }
