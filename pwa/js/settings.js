@@ -44,8 +44,13 @@ function entryWords(rec, names) {
 export function Settings({ build }) {
   const v = useVersion();
   const meta = useAsync(allMeta, [v], {});
-  const rejected = useAsync(rejectedList, [v], []);
-  const names = Object.fromEntries((useAthletes() || []).map((a) => [a.id, a.name]));
+  // The list shows once both the refused entries and the athletes' names
+  // are in hand, so an entry is never first shown without its athlete.
+  const rejectedOrNull = useAsync(rejectedList, [v], null);
+  const athleteList = useAthletes();
+  const listReady = rejectedOrNull !== null && athleteList !== null;
+  const rejected = rejectedOrNull || [];
+  const names = Object.fromEntries((athleteList || []).map((a) => [a.id, a.name]));
   const [name, setName] = useState(null);
   const [persist, setPersist] = useState('');
   const [saved, setSaved] = useState('');
@@ -104,8 +109,9 @@ export function Settings({ build }) {
     </div>
     <div class="card" id="rejected" data-testid="rejected-list">
       <h2>Rejected entries</h2>
-      ${rejected.length === 0 && html`<p class="muted">None. Every entry the hub received was accepted.</p>`}
-      ${rejected.map((r) => (r.code === 'OVERTAKEN' ? html`<div class="entry" data-testid=${`rejected-${r.n}`} data-code="OVERTAKEN">
+      ${!listReady && html`<p class="muted" data-testid="rejected-loading">Reading this device's entries…</p>`}
+      ${listReady && rejected.length === 0 && html`<p class="muted">None. Every entry the hub received was accepted.</p>`}
+      ${listReady && rejected.map((r) => (r.code === 'OVERTAKEN' ? html`<div class="entry" data-testid=${`rejected-${r.n}`} data-code="OVERTAKEN">
         <div class="what">Your correction of <strong>${entryWords(r.record, names).replace(/^./, (c) => c.toLowerCase())}</strong> was overtaken by ${r.by.name ? html`<strong>${r.by.name}</strong>'s` : 'another device\'s'} ${r.by.deleted ? 'delete' : 'correction'} at <span class="num">${hhmm(r.by.stamp && r.by.stamp.l)}</span>. Both are in the entry's history.</div>
         ${!r.by.deleted && html`<button class="secondary" type="button" data-testid=${`rejected-reapply-${r.n}`} onClick=${() => reapply(r)}>Apply mine again</button>`}
         <button class="secondary" type="button" data-testid=${`rejected-discard-${r.n}`} onClick=${() => discard(r.n)}>Keep theirs</button>
