@@ -29,6 +29,8 @@ var writeRule = map[string]struct{ athlete, staff bool }{
 	records.KindNote:        {true, true},
 	records.KindFitnessTest: {false, true},
 	records.KindStrength:    {false, true},
+	records.KindWeighIn:     {false, true}, // weighed by the coach or staff, at the scales
+	records.KindRTSStep:     {false, true}, // each step is supervised
 }
 
 var (
