@@ -103,26 +103,20 @@ func runFlags(args []string, stdout io.Writer) error {
 	if _, err := time.Parse("2006-01-02", *day); err != nil {
 		return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
 	}
-	db, err := openData(*data, time.Now)
+	srv, done, err := openHub(*data)
 	if err != nil {
 		return err
 	}
-	defer db.Close()
-	srv, err := server.New(server.Config{Store: db})
-	if err != nil {
-		return err
-	}
+	defer done()
 	fl, err := srv.Flags(*day, *athlete)
 	if err != nil {
 		return err
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
 		if fl == nil {
-			return enc.Encode([]any{})
+			return writeJSON(stdout, []any{})
 		}
-		return enc.Encode(fl)
+		return writeJSON(stdout, fl)
 	}
 	writeFlagsText(stdout, fl, srv.AthleteNames())
 	return nil
@@ -193,28 +187,20 @@ func runTests(args []string, stdout io.Writer) error {
 	if *athlete == "" {
 		return errors.New("--athlete ID is required: the athlete whose tests to list")
 	}
-	if *day != "" {
-		if _, err := time.Parse("2006-01-02", *day); err != nil {
-			return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
-		}
+	if err := checkDay(*day); err != nil {
+		return err
 	}
-	db, err := openData(*data, time.Now)
+	srv, done, err := openHub(*data)
 	if err != nil {
 		return err
 	}
-	defer db.Close()
-	srv, err := server.New(server.Config{Store: db})
-	if err != nil {
-		return err
-	}
+	defer done()
 	rep, err := srv.Tests(*athlete, *day)
 	if err != nil {
 		return err
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return writeJSON(stdout, rep)
 	}
 	fmt.Fprintf(stdout, "%s — tests up to %s\n", rep.Name, rep.Day)
 	for _, e := range rep.Tests {
@@ -320,4 +306,38 @@ func backupFromHub(dir, path string, stdout io.Writer) error {
 	}
 	fmt.Fprintf(stdout, "backup written from the running hub: %s (%d KiB)\n", path, n>>10)
 	return nil
+}
+
+// openHub opens the data folder and the hub's computations over it, for
+// the commands that only read (flags, plan, tests, fightweek); done
+// closes the folder.
+func openHub(data string) (srv *server.Server, done func(), err error) {
+	db, err := openData(data, time.Now)
+	if err != nil {
+		return nil, nil, err
+	}
+	srv, err = server.New(server.Config{Store: db})
+	if err != nil {
+		db.Close()
+		return nil, nil, err
+	}
+	return srv, func() { db.Close() }, nil
+}
+
+// checkDay refuses a --day that is given but is not a calendar day.
+func checkDay(day string) error {
+	if day == "" {
+		return nil
+	}
+	if _, err := time.Parse(time.DateOnly, day); err != nil {
+		return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", day)
+	}
+	return nil
+}
+
+// writeJSON writes v as indented JSON, as every --json answer is.
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
 }

@@ -1,12 +1,10 @@
 package main
 
 import (
-	"encoding/json"
 	"flag"
 	"fmt"
 	"io"
 	"strings"
-	"time"
 
 	"cornerbook/server"
 	"cornerbook/server/fightweek"
@@ -24,28 +22,20 @@ func runFightWeek(args []string, stdout io.Writer) error {
 	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 || *athlete == "" {
 		return errUsage
 	}
-	if *day != "" {
-		if _, err := time.Parse(time.DateOnly, *day); err != nil {
-			return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
-		}
+	if err := checkDay(*day); err != nil {
+		return err
 	}
-	db, err := openData(*data, time.Now)
+	srv, done, err := openHub(*data)
 	if err != nil {
 		return err
 	}
-	defer db.Close()
-	srv, err := server.New(server.Config{Store: db})
-	if err != nil {
-		return err
-	}
+	defer done()
 	v, err := srv.FightWeek(*athlete, *day)
 	if err != nil {
 		return err
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(v)
+		return writeJSON(stdout, v)
 	}
 	writeFightWeekText(stdout, &v)
 	return nil

@@ -1,14 +1,11 @@
 package main
 
 import (
-	"encoding/json"
 	"flag"
 	"fmt"
 	"io"
 	"strings"
-	"time"
 
-	"cornerbook/server"
 	"cornerbook/server/plan"
 )
 
@@ -23,28 +20,20 @@ func runPlan(args []string, stdout io.Writer) error {
 	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 || *athlete == "" {
 		return errUsage
 	}
-	if *day != "" {
-		if _, err := time.Parse(time.DateOnly, *day); err != nil {
-			return fmt.Errorf("--day must be a calendar day YYYY-MM-DD; got %q", *day)
-		}
+	if err := checkDay(*day); err != nil {
+		return err
 	}
-	db, err := openData(*data, time.Now)
+	srv, done, err := openHub(*data)
 	if err != nil {
 		return err
 	}
-	defer db.Close()
-	srv, err := server.New(server.Config{Store: db})
-	if err != nil {
-		return err
-	}
+	defer done()
 	rep, err := srv.PlanReport(*athlete, *day)
 	if err != nil {
 		return err
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return writeJSON(stdout, rep)
 	}
 	writePlanText(stdout, rep, srv.AthleteNames()[*athlete])
 	return nil
