@@ -176,44 +176,25 @@ func writeFlagsText(w io.Writer, fl []flags.Flag, names map[string]string) {
 }
 
 func runTests(args []string, stdout io.Writer) error {
-	fs := flag.NewFlagSet("tests", flag.ContinueOnError)
-	data := dataFlag(fs)
-	athlete := fs.String("athlete", "", "the athlete id (required)")
-	day := fs.String("day", "", "as of this day, YYYY-MM-DD (default today)")
-	asJSON := fs.Bool("json", false, "JSON instead of one line per test")
-	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 {
-		return errUsage
-	}
-	if *athlete == "" {
-		return errors.New("--athlete ID is required: the athlete whose tests to list")
-	}
-	if err := checkDay(*day); err != nil {
-		return err
-	}
-	srv, done, err := openHub(*data)
-	if err != nil {
-		return err
-	}
-	defer done()
-	rep, err := srv.Tests(*athlete, *day)
-	if err != nil {
-		return err
-	}
-	if *asJSON {
-		return writeJSON(stdout, rep)
-	}
-	fmt.Fprintf(stdout, "%s — tests up to %s\n", rep.Name, rep.Day)
+	return runAthleteReport(args, stdout, "tests", "as of this day, YYYY-MM-DD (default today)",
+		func(srv *server.Server, athlete, day string) (any, func(io.Writer), error) {
+			rep, err := srv.Tests(athlete, day)
+			return rep, func(w io.Writer) { writeTestsText(w, rep) }, err
+		})
+}
+
+func writeTestsText(w io.Writer, rep server.TestsReport) {
+	fmt.Fprintf(w, "%s — tests up to %s\n", rep.Name, rep.Day)
 	for _, e := range rep.Tests {
 		line := fmt.Sprintf("%s  %-20s %s", e.Day, e.Label, e.Summary)
 		if c := e.Change; c != nil {
 			line += "; " + server.ChangeWords(e, *c)
 		}
-		fmt.Fprintln(stdout, line)
+		fmt.Fprintln(w, line)
 	}
 	if len(rep.Tests) == 0 {
-		fmt.Fprintln(stdout, "no tests recorded")
+		fmt.Fprintln(w, "no tests recorded")
 	}
-	return nil
 }
 
 func runBackup(args []string, stdout io.Writer) error {
@@ -322,6 +303,41 @@ func openHub(data string) (srv *server.Server, done func(), err error) {
 		return nil, nil, err
 	}
 	return srv, func() { db.Close() }, nil
+}
+
+// runAthleteReport runs a command that reads one athlete's report
+// (plan, tests, fightweek): --data, --athlete (required), --day and
+// --json, then the report in words or as JSON.
+func runAthleteReport(args []string, stdout io.Writer, name, dayHelp string,
+	get func(srv *server.Server, athlete, day string) (v any, text func(io.Writer), err error)) error {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	data := dataFlag(fs)
+	athlete := fs.String("athlete", "", "the athlete id (required)")
+	day := fs.String("day", "", dayHelp)
+	asJSON := fs.Bool("json", false, "JSON instead of words")
+	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 {
+		return errUsage
+	}
+	if *athlete == "" {
+		return errors.New("--athlete ID is required: the athlete whose " + name + " to show")
+	}
+	if err := checkDay(*day); err != nil {
+		return err
+	}
+	srv, done, err := openHub(*data)
+	if err != nil {
+		return err
+	}
+	defer done()
+	v, text, err := get(srv, *athlete, *day)
+	if err != nil {
+		return err
+	}
+	if *asJSON {
+		return writeJSON(stdout, v)
+	}
+	text(stdout)
+	return nil
 }
 
 // checkDay refuses a --day that is given but is not a calendar day.

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"flag"
 	"fmt"
 	"io"
 	"strings"
@@ -14,31 +13,11 @@ import (
 // mass a week before it, the acute loss, the regain, the hours from the
 // weigh-in to the bout and every check against its cap.
 func runFightWeek(args []string, stdout io.Writer) error {
-	fs := flag.NewFlagSet("fightweek", flag.ContinueOnError)
-	data := dataFlag(fs)
-	athlete := fs.String("athlete", "", "the athlete id (required)")
-	day := fs.String("day", "", "the day whose bout is shown, YYYY-MM-DD (default today in the camp's time zone)")
-	asJSON := fs.Bool("json", false, "JSON instead of words")
-	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 || *athlete == "" {
-		return errUsage
-	}
-	if err := checkDay(*day); err != nil {
-		return err
-	}
-	srv, done, err := openHub(*data)
-	if err != nil {
-		return err
-	}
-	defer done()
-	v, err := srv.FightWeek(*athlete, *day)
-	if err != nil {
-		return err
-	}
-	if *asJSON {
-		return writeJSON(stdout, v)
-	}
-	writeFightWeekText(stdout, &v)
-	return nil
+	return runAthleteReport(args, stdout, "fightweek", "the day whose bout is shown, YYYY-MM-DD (default today in the camp's time zone)",
+		func(srv *server.Server, athlete, day string) (any, func(io.Writer), error) {
+			v, err := srv.FightWeek(athlete, day)
+			return v, func(w io.Writer) { writeFightWeekText(w, &v) }, err
+		})
 }
 
 func writeFightWeekText(w io.Writer, v *server.FightWeekView) {

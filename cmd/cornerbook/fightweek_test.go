@@ -88,5 +88,6 @@ func TestCommands_FightWeek(t *testing.T) {
 	assert.NotContains(t, out, ath)
 
 	code, _, stderr = runCmd(t, "", "fightweek", "--data", dir)
-	assert.Equal(t, 2, code, stderr)
+	assert.Equal(t, 1, code, stderr)
+	assert.Contains(t, stderr, "--athlete ID is required", "the missing option is named")
 }

@@ -1,42 +1,22 @@
 package main
 
 import (
-	"flag"
 	"fmt"
 	"io"
 	"strings"
 
+	"cornerbook/server"
 	"cornerbook/server/plan"
 )
 
 // runPlan prints an athlete's current bout week by week, planned against
 // done, and the plan's checks in words (--json: the same with ids).
 func runPlan(args []string, stdout io.Writer) error {
-	fs := flag.NewFlagSet("plan", flag.ContinueOnError)
-	data := dataFlag(fs)
-	athlete := fs.String("athlete", "", "the athlete id (required)")
-	day := fs.String("day", "", "done up to this day, YYYY-MM-DD (default today in the camp's time zone)")
-	asJSON := fs.Bool("json", false, "JSON instead of words")
-	if err := parseInterleaved(fs, args); err != nil || fs.NArg() != 0 || *athlete == "" {
-		return errUsage
-	}
-	if err := checkDay(*day); err != nil {
-		return err
-	}
-	srv, done, err := openHub(*data)
-	if err != nil {
-		return err
-	}
-	defer done()
-	rep, err := srv.PlanReport(*athlete, *day)
-	if err != nil {
-		return err
-	}
-	if *asJSON {
-		return writeJSON(stdout, rep)
-	}
-	writePlanText(stdout, rep, srv.AthleteNames()[*athlete])
-	return nil
+	return runAthleteReport(args, stdout, "plan", "done up to this day, YYYY-MM-DD (default today in the camp's time zone)",
+		func(srv *server.Server, athlete, day string) (any, func(io.Writer), error) {
+			rep, err := srv.PlanReport(athlete, day)
+			return rep, func(w io.Writer) { writePlanText(w, rep, srv.AthleteNames()[athlete]) }, err
+		})
 }
 
 func writePlanText(w io.Writer, rep plan.Report, name string) {

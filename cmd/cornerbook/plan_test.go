@@ -133,3 +133,11 @@ func TestCommands_Plan(t *testing.T) {
 	assert.Equal(t, 1, code)
 	assert.Contains(t, stderr, "no athlete")
 }
+
+// TestCommands_PlanNamesAMissingAthlete: plan without --athlete says which
+// option is missing rather than printing the whole usage.
+func TestCommands_PlanNamesAMissingAthlete(t *testing.T) {
+	code, _, stderr := runCmd(t, "", "plan", "--data", t.TempDir())
+	assert.Equal(t, 1, code, stderr)
+	assert.Contains(t, stderr, "--athlete ID is required")
+}
