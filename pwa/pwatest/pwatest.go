@@ -216,12 +216,13 @@ func Eval(ctx context.Context, expr string, out any) error {
 	return json.Unmarshal(raw, out)
 }
 
-// Poll re-evaluates a boolean expression until it is true or the timeout passes.
+// Poll re-evaluates a boolean expression until it is true or the timeout
+// passes. A promise is awaited: its value, not the promise, is what counts.
 func Poll(ctx context.Context, expr string, timeout time.Duration) error {
 	deadline := time.Now().Add(timeout)
 	for {
 		var ok bool
-		err := Eval(ctx, "(async () => !!("+expr+"))()", &ok)
+		err := Eval(ctx, "(async () => !!(await ("+expr+")))()", &ok)
 		if err == nil && ok {
 			return nil
 		}
