@@ -222,6 +222,52 @@ func TestE2ELogThroughTheScreensLandsOnTheHub(t *testing.T) {
 	require.NoError(t, pwatest.WaitText(ctx, "status-synced", "Synced"))
 }
 
+// A save made while a pull waits on a slow link goes to the hub at once,
+// beside the pull, instead of queueing behind it; when the pull ends,
+// nothing is lost or sent twice.
+func TestE2ESaveDuringASlowPullIsPushedAtOnce(t *testing.T) {
+	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
+	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
+	_, ctx, _ := e2eBrowser(t, "")
+	require.NoError(t, pwatest.Open(ctx, h.url("/")))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+
+	// Every pull from here on waits until the test lets it through.
+	require.NoError(t, pwatest.Eval(ctx, `(() => {
+		window.__cbTrace = [];
+		const real = window.fetch.bind(window);
+		window.__pullGate = new Promise((r) => { window.__openPulls = r; });
+		window.fetch = (url, opt) => String(url).includes('/api/pull') ? window.__pullGate.then(() => real(url, opt)) : real(url, opt);
+		return true })()`, nil))
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/sync.js').then((m) => { m.requestSync('manual'); return true })`, nil))
+	require.NoError(t, pwatest.Poll(ctx, `window.__cbTrace.some(([w]) => w === 'pull-sent')`, 10*time.Second))
+
+	var id string
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((m) => m.save({ kind: 'round', athlete: '`+ids["Ana Pereira"]+`', day: (new Date()).toLocaleDateString('sv'), body: { activity: 'pads', seconds: 180, intensity: 2 } })).then((r) => r.id)`, &id))
+	deadline := time.Now().Add(10 * time.Second)
+	var err error
+	for time.Now().Before(deadline) {
+		if _, err = h.db.Get(id); err == nil {
+			break
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	require.NoError(t, err, "the save reached the hub while the pull was still waiting")
+	var answered bool
+	require.NoError(t, pwatest.Eval(ctx, `window.__cbTrace.some(([w]) => w === 'pull-answered')`, &answered))
+	assert.False(t, answered, "the pull had not ended when the save landed")
+
+	require.NoError(t, pwatest.Eval(ctx, `(() => { window.__openPulls(); return true })()`, nil))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	rounds := h.all()["round"]
+	require.Len(t, rounds, 1, "on the hub once")
+	assert.Equal(t, id, rounds[0].ID)
+	require.NoError(t, pwatest.Poll(ctx, `import('/js/db.js').then((m) => m.getRecord('`+id+`')).then((r) => !!r && r.body.activity === 'pads')`, 5*time.Second))
+	waiting, err := pwatest.Waiting(ctx)
+	require.NoError(t, err)
+	assert.Zero(t, waiting, "nothing left waiting")
+}
+
 func e2eBody(t *testing.T, r devsync.Record) map[string]any {
 	var m map[string]any
 	require.NoError(t, json.Unmarshal(r.Body, &m))

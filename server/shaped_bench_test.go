@@ -387,11 +387,23 @@ func BenchmarkShapedLinkSaveToBoard(b *testing.B) {
 				ID string
 				T  float64
 			}
+			if os.Getenv("E2E_TRACE") != "" {
+				require.NoError(b, pwatest.Eval(dev.ctx, `(() => { globalThis.__cbTrace = []; return true })()`, nil))
+			}
 			require.NoError(b, pwatest.Eval(dev.ctx, `import('/js/db.js').then((m) => { const t = Date.now(); return m.save({ kind: 'round', athlete: '`+ids["Ana Pereira"]+`', day: (new Date()).toLocaleDateString('sv'), body: { activity: 'pads', seconds: 180, intensity: 2 } }).then((rec) => ({ ID: rec.id, T: t })) })`, &r))
 			require.NoError(b, pwatest.Poll(board, `window.__seen['`+r.ID+`'] !== undefined`, 10*time.Second))
 			var seen float64
 			require.NoError(b, pwatest.Eval(board, `window.__seen['`+r.ID+`']`, &seen))
 			lat[dev.name] = append(lat[dev.name], seen-r.T)
+			if os.Getenv("E2E_TRACE") != "" {
+				var tr [][]any
+				require.NoError(b, pwatest.Eval(dev.ctx, `globalThis.__cbTrace.splice(0)`, &tr))
+				line := fmt.Sprintf("%s save→board %.0f ms:", dev.name, seen-r.T)
+				for _, e := range tr {
+					line += fmt.Sprintf(" %v+%.0f", e[0], e[1].(float64)-r.T)
+				}
+				b.Log(line)
+			}
 		}
 	}
 	b.StopTimer()

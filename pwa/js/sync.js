@@ -60,18 +60,35 @@ async function api(method, url, body, knownToken) {
   return data;
 }
 
-// withLock runs fn while holding the one sync lock of this origin.
-const localChain = { p: Promise.resolve() };
-function withLock(fn) {
+// Two locks of this origin (Web Locks, shared by tabs and the service
+// worker). The sync lock runs one push-then-pull at a time; the push lock
+// runs one push at a time. A sync takes the sync lock and then, for its
+// push, the push lock; a save made while a pull is running pushes under
+// the push lock alone, so it reaches the hub without waiting for pages
+// on a slow link. Pull and push write different stores (records and the
+// cursor; the outbox and the rejections), and a pulled version replaces a
+// local one only when its stamp wins, so the two may overlap.
+const chains = {};
+function lockNamed(name, fn) {
   if (typeof navigator !== 'undefined' && navigator.locks && navigator.locks.request) {
-    return navigator.locks.request('cornerbook-sync', fn);
+    return navigator.locks.request(name, fn);
   }
-  const run = localChain.p.then(fn, fn);
-  localChain.p = run.catch(() => {});
+  const chain = chains[name] || (chains[name] = { p: Promise.resolve() });
+  const run = chain.p.then(fn, fn);
+  chain.p = run.catch(() => {});
   return run;
 }
+const withLock = (fn) => lockNamed('cornerbook-sync', fn);
 
-async function pushAll() {
+// pushAll pushes the outbox under the push lock. An answer from a hub of
+// another epoch (restored or replaced) resets this device for it, unless
+// the push runs beside a pull (alongPull): then the pull, which sees the
+// same epoch on its next page, resets, and the push only stops.
+function pushAll(alongPull) {
+  return lockNamed('cornerbook-push', () => pushUnlocked(alongPull));
+}
+
+async function pushUnlocked(alongPull) {
   let skewRetries = 0;
   let pushed = 0;
   let batch = PUSH_BATCH;
@@ -122,6 +139,7 @@ async function pushAll() {
     await ack(res, sentAt, gotAt);
     pushed += rows.length;
     if (res.epoch && epoch && res.epoch !== epoch) {
+      if (alongPull) return pushed;
       await resetForEpoch(res.epoch);
       continue;
     }
@@ -240,7 +258,13 @@ function schedule(ms) {
 // requestSync coalesces triggers: one run at a time, one more if asked meanwhile.
 export async function requestSync(reason) {
   trace('request:' + reason);
-  if (running) { again = true; return; }
+  if (running) {
+    again = true;
+    // A save while a sync runs is pushed at once, beside the pull; the
+    // sync's next round pulls it back with whatever else is new.
+    if (reason === 'write') pushAlongside();
+    return;
+  }
   running = true;
   status.syncing = true;
   status.received = 0;
@@ -274,6 +298,18 @@ export async function requestSync(reason) {
     status.syncing = false;
     await refreshCounts();
   }
+}
+
+// pushAlongside pushes the outbox while a pull runs. A failure here is
+// left to the running sync, which pushes again in its next round and
+// reports what went wrong.
+let alongside = null;
+function pushAlongside() {
+  if (alongside) return;
+  alongside = pushAll(true)
+    .then((n) => { trace('pushed-alongside'); if (n) return refreshCounts(); })
+    .catch(() => {})
+    .finally(() => { alongside = null; });
 }
 
 // syncSoon runs after a local write: at once for the first write, then
