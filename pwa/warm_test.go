@@ -9,7 +9,8 @@ import (
 	"cornerbook/pwa/pwatest"
 )
 
-// TestCoachScreensWarmOnAStaffDevice: the coach's screens an athlete's
+// TestCoachScreensWarmOnAStaffDevice: the coach's screens (camp set-up
+// among them) an athlete's
 // phone never opens are left out of the install; a device paired as staff
 // (or coach) has the worker keep them all, so they open offline there.
 func TestCoachScreensWarmOnAStaffDevice(t *testing.T) {
@@ -21,12 +22,14 @@ func TestCoachScreensWarmOnAStaffDevice(t *testing.T) {
 		return `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('` + p + `')).then((r) => !!r)`
 	}
 	var has bool
-	require.NoError(t, pwatest.Eval(ctx, cached("/js/coach/intervals.js"), &has))
-	require.False(t, has, "not fetched at install")
+	for _, p := range []string{"/js/coach/intervals.js", "/js/camp.js"} {
+		require.NoError(t, pwatest.Eval(ctx, cached(p), &has))
+		require.False(t, has, "%s not fetched at install", p)
+	}
 
 	require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((m) => m.setMeta('role', 'staff')).then(() => true)`, nil))
 	require.NoError(t, pwatest.Reload(ctx))
-	for _, p := range []string{"/js/coach/intervals.js", "/js/coach/tests.js", "/js/coach/plan.js", "/vendor/uplot/uPlot.esm.js"} {
+	for _, p := range []string{"/js/coach/intervals.js", "/js/coach/tests.js", "/js/coach/plan.js", "/js/camp.js", "/vendor/uplot/uPlot.esm.js"} {
 		require.NoError(t, pwatest.Poll(ctx, cached(p), 10*time.Second), p)
 	}
 }

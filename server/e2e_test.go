@@ -268,6 +268,33 @@ func TestE2ESaveDuringASlowPullIsPushedAtOnce(t *testing.T) {
 	assert.Zero(t, waiting, "nothing left waiting")
 }
 
+// A phone joined as staff keeps the coach's screens (camp set-up among
+// them) for offline use from the moment it joins, not from its next start.
+func TestE2EStaffDeviceKeepsCoachScreensOnceJoined(t *testing.T) {
+	h, accounts := startPairingHub(t)
+	join, err := accounts.NewJoin(auth.RoleStaff, "", "coach", time.Now())
+	require.NoError(t, err)
+	_, ctx, _ := e2eBrowser(t, "")
+	require.NoError(t, pwatest.Open(ctx, h.url("/")))
+	require.NoError(t, pwatest.WaitControlled(ctx))
+	cached := func(p string) string {
+		return `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('` + p + `')).then((r) => !!r)`
+	}
+	var has bool
+	require.NoError(t, pwatest.Eval(ctx, cached("/js/camp.js"), &has))
+	require.False(t, has, "camp set-up is not part of a phone's install")
+
+	// Within the page, as from Settings: the page has long started and
+	// read this device's role (none yet) by now.
+	require.NoError(t, pwatest.Route(ctx, "/join?code="+auth.FormatCode(join.Code)))
+	require.NoError(t, pwatest.Type(ctx, "join-name", "Ringside phone"))
+	require.NoError(t, pwatest.Click(ctx, "join-submit"))
+	require.NoError(t, pwatest.WaitText(ctx, "join-done", "joined"))
+	for _, p := range []string{"/js/camp.js", "/js/coach/plan.js", "/js/coach/sheet.js"} {
+		require.NoError(t, pwatest.Poll(ctx, cached(p), 10*time.Second), "%s kept after joining as staff", p)
+	}
+}
+
 func e2eBody(t *testing.T, r devsync.Record) map[string]any {
 	var m map[string]any
 	require.NoError(t, json.Unmarshal(r.Body, &m))

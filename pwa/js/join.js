@@ -21,6 +21,12 @@ export function Join() {
       if (res.device && res.device.athlete) setPicked(res.device.athlete);
       setState({ done: true, message: res.message || 'This device has joined the camp.' });
       requestSync('joined');
+      // A device joined as staff keeps every coach screen for offline use
+      // from now on, not only from its next start.
+      const role = res.device && res.device.role;
+      if ((role === 'coach' || role === 'staff') && 'serviceWorker' in navigator) {
+        navigator.serviceWorker.ready.then((reg) => reg.active && reg.active.postMessage({ type: 'WARM' })).catch(() => {});
+      }
     } catch (err) {
       const why = err instanceof HubError ? err.message : 'The hub could not be reached. Join on the camp Wi-Fi, at the hub\'s https address.';
       setState({ error: `Not joined: ${why}` });

@@ -10,14 +10,12 @@ import { Today } from './today.js';
 import { Settings } from './settings.js';
 import { Join } from './join.js';
 import { COACH_ROUTES } from './coach/routes.js';
-import { Camp } from './camp.js';
 import { RTS } from './rts.js';
 
 const ROUTES = {
   '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds,
   '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings, '/join': Join,
   ...COACH_ROUTES,
-  '/camp': Camp,
   '/rts': RTS,
 };
 

@@ -1,4 +1,4 @@
-// The coach's screens, loaded on first use so the app shell a phone
+// The coach's screens (and camp set-up), loaded on first use so the app shell a phone
 // opens at 7 a.m. does not parse them.
 import { html, useState, useEffect } from '../ui.js';
 
@@ -44,4 +44,6 @@ export const COACH_ROUTES = {
   '/tests': lazy(() => import('./tests.js'), 'Tests'),
   '/intervals': lazy(() => import('./intervals.js'), 'Intervals'),
   '/fightweek': lazy(() => import('./fightweek.js'), 'FightWeek'),
+  // Camp set-up (athletes, their names and units) is the coach's alone.
+  '/camp': lazy(() => import('../camp.js'), 'Camp'),
 };
