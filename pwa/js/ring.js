@@ -189,6 +189,12 @@ export function Rounds() {
     return h;
   }, [v, list], {});
   const standing = useStanding(today);
+  // Ringside appears once the hub has said who is stood down (or could
+  // not be reached), so the stand-down strip is above the clock from the
+  // first frame instead of pushing it down as the coach reaches for it.
+  // A hub that is slow to answer is waited for 1.5 s at most.
+  const [waited, setWaited] = useState(false);
+  useEffect(() => { const t = setTimeout(() => setWaited(true), 1500); return () => clearTimeout(t); }, []);
   const [tryDone, gatePanel] = useSparGate({ activity, chosen, list: list || [], standing, localHolds: holds, onDone: () => done() });
   useEffect(() => {
     if (!editing) return;
@@ -196,7 +202,9 @@ export function Rounds() {
     setChosen([editing.athlete]); setActivity(b.activity || 'other'); setIntensity(b.intensity || 2); setSeconds(b.seconds || 180);
   }, [editing]);
   if (list && !list.length) return html`<${NoAthletes} />`;
-  if (!list) return html`<p class="muted">Loading…</p>`;
+  if (!list || (standing.state === 'loading' && !waited)) {
+    return html`<section data-testid="screen-rounds" data-ready="false"><h1>Rounds</h1><p class="muted">Asking the hub who is stood down…</p></section>`;
+  }
   const toggle = (id) => { setChosen((c) => (c.includes(id) ? c.filter((x) => x !== id) : [...c, id])); setState(null); };
 
   const done = async () => {
@@ -222,7 +230,7 @@ export function Rounds() {
     } catch (err) { setState({ error: `Not undone: ${err.message}` }); }
   };
 
-  return html`<section data-testid="screen-rounds">
+  return html`<section data-testid="screen-rounds" data-ready="true">
     <h1>Rounds</h1>
     <${RingsideRestrictions} list=${list} standing=${standing} day=${today} />
     ${!editing && html`<${RoundClock} onLog=${tryDone} names=${chosen.map((id) => (list.find((a) => a.id === id) || {}).name)} onLength=${setSeconds} />`}
