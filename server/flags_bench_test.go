@@ -81,6 +81,7 @@ func benchCamp(b *testing.B, athletes, days int) (*server.Server, *storage.DB, s
 	if err != nil {
 		b.Fatal(err)
 	}
+	b.Cleanup(func() { srv.Close() }) // before the store's close (cleanups run last first)
 	return srv, db, end.Format("2006-01-02"), ids
 }
 

@@ -54,6 +54,9 @@ type flagService struct {
 	archived []devsync.Record // athletes the coach archived: only a running stand-down of theirs is shown
 	// refreshing marks athletes whose recomputation is waiting to run.
 	refreshing map[string]bool
+	// work counts the background goroutines (run, refresh); Server.Close
+	// waits for them.
+	work sync.WaitGroup
 }
 
 // athleteRecs is one athlete's decoded records: windowed kinds from
@@ -577,13 +580,31 @@ func (f *flagService) refresh(athlete, today string, old []flags.Flag, had bool)
 		f.mu.Unlock()
 		return // the waiting recomputation reads the records as they are then
 	}
+	select {
+	case <-f.s.stop:
+		f.mu.Unlock()
+		return // the hub is closing: nobody is left to poke
+	default:
+	}
 	f.refreshing[athlete] = true
+	f.work.Add(1)
 	f.mu.Unlock()
 	go func() {
-		time.Sleep(refreshDelay)
+		defer f.work.Done()
+		t := time.NewTimer(refreshDelay)
+		defer t.Stop()
+		stopped := false
+		select {
+		case <-t.C:
+		case <-f.s.stop:
+			stopped = true
+		}
 		f.mu.Lock()
 		delete(f.refreshing, athlete)
 		f.mu.Unlock()
+		if stopped {
+			return
+		}
 		now, err := f.forAthlete(athlete, today)
 		if err != nil || !had || !sameFlags(old, now) {
 			f.s.hub.FlagsChanged(athlete)

@@ -1,7 +1,12 @@
 package server_test
 
 import (
+	"bytes"
 	"encoding/json"
+	"net/http"
+	"net/http/httptest"
+	"path/filepath"
+	"runtime/pprof"
 	"strings"
 	"testing"
 	"time"
@@ -11,6 +16,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"cornerbook/server"
 	"cornerbook/server/flags"
 	devsync "cornerbook/sync"
 )
@@ -204,4 +210,33 @@ func TestFlags_ArchivedAthleteKeepsARunningStandDown(t *testing.T) {
 	assert.Equal(t, "Rena Osei", names[a.ID], "the stand-down is named")
 	assert.NotContains(t, rules, b.ID, "an archived athlete without a stand-down is off the board")
 	assert.NotContains(t, names, b.ID)
+}
+
+// TestClose_WaitsForTheFlagsBackgroundWork: a push starts a recomputation
+// of the athlete's flags off the request path, and a ticker refreshes
+// today's; when Close returns, neither runs any more, so the store closed
+// next is never read after its close.
+func TestClose_WaitsForTheFlagsBackgroundWork(t *testing.T) {
+	db, err := server.OpenStore(filepath.Join(t.TempDir(), "cornerbook.db"), func() time.Time { return fixedNow })
+	require.NoError(t, err)
+	defer db.Close()
+	srv, err := server.New(server.Config{Store: db, Now: func() time.Time { return fixedNow }, Location: time.UTC})
+	require.NoError(t, err)
+	ts := httptest.NewServer(srv.Handler())
+	h := &hub{t: t, store: db, srv: srv, http: ts, now: fixedNow}
+	a := h.athlete("Ana Pereira", "kg")
+	day := fixedNow.Format("2006-01-02")
+	h.push("tablet", 1, a, h.rec("checkin", a.ID, fixedNow.AddDate(0, 0, -1).Format("2006-01-02"), map[string]any{"mass_kg": 64.4}))
+	// Today's flags cached, so the next push has something to recompute.
+	var got map[string]any
+	require.Equal(t, http.StatusOK, h.get("/api/flags?day="+day, &got))
+	h.push("tablet", 3, h.rec("checkin", a.ID, day, map[string]any{"mass_kg": 64.2}))
+	var pre bytes.Buffer
+	pprof.Lookup("goroutine").WriteTo(&pre, 1)
+	t.Log(strings.Count(pre.String(), "flagService"), pre.String())
+	ts.Close()
+	require.NoError(t, srv.Close())
+	var stacks bytes.Buffer
+	require.NoError(t, pprof.Lookup("goroutine").WriteTo(&stacks, 2))
+	assert.NotContains(t, stacks.String(), "cornerbook/server.(*flagService)", "the flags' background work has ended when Close returns")
 }

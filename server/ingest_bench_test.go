@@ -63,6 +63,7 @@ func benchPush(b *testing.B, perPush, together int) {
 	if err != nil {
 		b.Fatal(err)
 	}
+	defer srv.Close()
 	ts := httptest.NewServer(srv.Handler())
 	defer ts.Close()
 	raw, err := bolt.Open(filepath.Join(dir, "raw.db"), 0o600, &bolt.Options{Timeout: time.Second})

@@ -136,7 +136,11 @@ func New(cfg Config) (*Server, error) {
 	s.clock.Restore(devsync.HLC{L: s.now().UnixMilli()})
 	s.flags = newFlagService(s)
 	s.stop = make(chan struct{})
-	go s.flags.run(s.stop)
+	s.flags.work.Add(1)
+	go func() {
+		defer s.flags.work.Done()
+		s.flags.run(s.stop)
+	}()
 	return s, nil
 }
 
@@ -293,7 +297,13 @@ func (s *Server) URL() string {
 // Close stops accepting, drops websockets and waits for handlers up to
 // DefaultShutdownTimeout. It does not close the store.
 func (s *Server) Close() error {
-	s.stopOnce.Do(func() { close(s.stop) })
+	s.stopOnce.Do(func() {
+		// Under the flags' lock: a recomputation is either counted before
+		// the stop or sees it and never starts.
+		s.flags.mu.Lock()
+		close(s.stop)
+		s.flags.mu.Unlock()
+	})
 	s.hub.CloseAll(true)
 	ctx, cancel := context.WithTimeout(context.Background(), DefaultShutdownTimeout)
 	defer cancel()
@@ -303,6 +313,10 @@ func (s *Server) Close() error {
 			errs = append(errs, hs.Shutdown(ctx))
 		}
 	}
+	// The flags' background work (today's refresh, the recomputations
+	// after a push) ends before Close returns, so the store can be closed
+	// after it without a read racing the close.
+	s.flags.work.Wait()
 	return errors.Join(errs...)
 }
 

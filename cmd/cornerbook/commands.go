@@ -302,7 +302,7 @@ func openHub(data string) (srv *server.Server, done func(), err error) {
 		db.Close()
 		return nil, nil, err
 	}
-	return srv, func() { db.Close() }, nil
+	return srv, func() { srv.Close(); db.Close() }, nil
 }
 
 // runAthleteReport runs a command that reads one athlete's report
