@@ -104,6 +104,15 @@ func (p principal) canRead(rec *devsync.Record) bool {
 	return auth.CanRead(*p.dev, rec)
 }
 
+// maybeSeen picks, among the records canRead hides, those this device may
+// have received before: an athlete's device, its own athlete's records (a
+// note shared with the athlete and later made staff-only). The store then
+// looks at their earlier versions and withdraws those it once sent.
+func (p principal) maybeSeen(rec *devsync.Record) bool {
+	a := p.seesOnly()
+	return a != "" && rec.Athlete == a
+}
+
 // allowWrite checks each mutation's record against the caller's rights:
 // a record always names the device that pushes it, and a paired device
 // writes only the kinds and athletes its role allows, including the

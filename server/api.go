@@ -133,10 +133,11 @@ func (s *Server) handlePull(w http.ResponseWriter, r *http.Request) error {
 	if size < devsync.MinPullBytes || size > devsync.MaxPullBytes {
 		return userError(devsync.CodeBadRequest, "bytes", fmt.Sprintf("must be between %d and %d", devsync.MinPullBytes, devsync.MaxPullBytes))
 	}
-	recs, next, more, maxSeq, lastSeen, err := s.store.PullSeen(since, int(limit), int(size), who.canRead)
+	page, err := s.store.PullFor(since, int(limit), int(size), storage.PullFilter{Visible: who.canRead, MaybeSeen: who.maybeSeen})
 	if err != nil {
 		return err
 	}
+	recs, next, more, maxSeq, lastSeen := page.Records, page.Next, page.More, page.MaxSeq, page.LastSeen
 	if who.seesOnly() != "" {
 		// An athlete's cursor and count move only with what it sees, so a
 		// pull never tells when others log. A full page (more) moves on
@@ -154,7 +155,7 @@ func (s *Server) handlePull(w http.ResponseWriter, r *http.Request) error {
 		recs = []devsync.Record{}
 	}
 	writeJSON(w, http.StatusOK, devsync.PullResponse{
-		Epoch: epoch, Records: recs, Next: next, More: more, MaxSeq: maxSeq,
+		Epoch: epoch, Records: recs, Withdrawn: page.Withdrawn, Next: next, More: more, MaxSeq: maxSeq,
 		ServerTime: s.now().UnixMilli(), ServerHLC: s.stampNow(),
 	})
 	return nil
@@ -215,6 +216,9 @@ func (s *Server) handleHistory(w http.ResponseWriter, r *http.Request) error {
 	if err != nil {
 		return err
 	}
+	// An athlete's device sees only the versions it may read: a note shared
+	// now may have been staff-only before, in other words.
+	versions, lost = readable(versions, who.canRead), readable(lost, who.canRead)
 	type entry struct {
 		devsync.Record
 		DeviceName string `json:"device_name,omitempty"`
@@ -230,6 +234,17 @@ func (s *Server) handleHistory(w http.ResponseWriter, r *http.Request) error {
 	sort.SliceStable(all, func(i, j int) bool { return all[i].Stamp.Compare(all[j].Stamp) < 0 })
 	writeJSON(w, http.StatusOK, map[string]any{"id": id, "versions": versions, "received": all})
 	return nil
+}
+
+// readable keeps the versions canRead passes.
+func readable(vs []devsync.Record, canRead func(*devsync.Record) bool) []devsync.Record {
+	out := vs[:0:0]
+	for i := range vs {
+		if canRead(&vs[i]) {
+			out = append(out, vs[i])
+		}
+	}
+	return out
 }
 
 // deviceName is a device's name as the coach gave it, or "" when the hub

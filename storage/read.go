@@ -105,23 +105,56 @@ func (db *DB) PullBytes(since uint64, limit, maxBytes int, visible func(*devsync
 // PullSeen is PullBytes that also returns lastSeen, the change sequence
 // of the last record of the page that visible passed (0 if none).
 func (db *DB) PullSeen(since uint64, limit, maxBytes int, visible func(*devsync.Record) bool) (recs []devsync.Record, next uint64, more bool, maxSeq, lastSeen uint64, err error) {
+	p, err := db.PullFor(since, limit, maxBytes, PullFilter{Visible: visible})
+	return p.Records, p.Next, p.More, p.MaxSeq, p.LastSeen, err
+}
+
+// PullFilter says what one device receives.
+type PullFilter struct {
+	// Visible passes the records the device may read (nil: all).
+	Visible func(*devsync.Record) bool
+	// MaybeSeen, when set, picks among the records Visible hides those
+	// the device may have read before (for an athlete's device: its own
+	// athlete's). For each, the record's earlier winning versions are
+	// read: if Visible passes any of them, the device once received the
+	// record and the page withdraws it (a note made staff-only after it
+	// was shared with the athlete).
+	MaybeSeen func(*devsync.Record) bool
+}
+
+// PullPage is one page of a pull.
+type PullPage struct {
+	Records []devsync.Record
+	// Withdrawn are the ids of records the device may no longer read but
+	// once could: it drops its copy.
+	Withdrawn []string
+	Next      uint64
+	More      bool
+	MaxSeq    uint64
+	// LastSeen is the change sequence of the last record of the page sent
+	// or withdrawn (0 if none).
+	LastSeen uint64
+}
+
+// PullFor is PullBytes through a device's filter, with withdrawals.
+func (db *DB) PullFor(since uint64, limit, maxBytes int, f PullFilter) (PullPage, error) {
 	if limit <= 0 {
 		limit = devsync.DefaultPullLimit
 	}
 	limit = min(limit, devsync.MaxPullLimit)
-	next = since
-	err = db.bolt.View(func(tx *bolt.Tx) error {
+	p := PullPage{Next: since}
+	err := db.bolt.View(func(tx *bolt.Tx) error {
 		changes := tx.Bucket(BucketChanges)
 		records := tx.Bucket(BucketRecords)
-		maxSeq = changes.Sequence()
+		p.MaxSeq = changes.Sequence()
 		if since == ^uint64(0) {
 			return nil
 		}
 		c := changes.Cursor()
 		scanned, size := 0, 0
 		for k, id := c.Seek(u64(since + 1)); k != nil; k, id = c.Next() {
-			if len(recs) == limit || scanned == scanBudget || (maxBytes > 0 && size >= maxBytes) {
-				more = true
+			if len(p.Records) == limit || scanned == scanBudget || (maxBytes > 0 && size >= maxBytes) {
+				p.More = true
 				return nil
 			}
 			scanned++
@@ -133,19 +166,48 @@ func (db *DB) PullSeen(since uint64, limit, maxBytes int, visible func(*devsync.
 			if err != nil {
 				return fmt.Errorf("record %q: %w", id, err)
 			}
-			next = binary.BigEndian.Uint64(k)
-			if visible == nil || visible(&r) {
-				recs = append(recs, r)
+			p.Next = binary.BigEndian.Uint64(k)
+			if f.Visible == nil || f.Visible(&r) {
+				p.Records = append(p.Records, r)
 				size += len(v)
-				lastSeen = next
+				p.LastSeen = p.Next
+				continue
+			}
+			if f.MaybeSeen == nil || !f.MaybeSeen(&r) {
+				continue
+			}
+			seen, err := earlierVisible(tx, r.ID, f.Visible)
+			if err != nil {
+				return err
+			}
+			if seen {
+				p.Withdrawn = append(p.Withdrawn, r.ID)
+				p.LastSeen = p.Next
 			}
 		}
 		return nil
 	})
 	if err != nil {
-		return nil, since, false, 0, 0, err
+		return PullPage{Next: since}, err
 	}
-	return recs, next, more, maxSeq, lastSeen, nil
+	return p, nil
+}
+
+// earlierVisible reports whether visible passes any earlier winning
+// version of a record.
+func earlierVisible(tx *bolt.Tx, id string, visible func(*devsync.Record) bool) (bool, error) {
+	prefix := append([]byte(id), '|')
+	c := tx.Bucket(BucketVersions).Cursor()
+	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+		r, err := decode(v)
+		if err != nil {
+			return false, fmt.Errorf("version %x: %w", k, err)
+		}
+		if visible(&r) {
+			return true, nil
+		}
+	}
+	return false, nil
 }
 
 // Range calls fn for each live record of one athlete and kind whose day

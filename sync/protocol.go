@@ -95,8 +95,12 @@ type Overtaken struct {
 
 // PullResponse is one page of GET /api/pull?since=N.
 type PullResponse struct {
-	Epoch      string   `json:"epoch"`
-	Records    []Record `json:"records"`
+	Epoch   string   `json:"epoch"`
+	Records []Record `json:"records"`
+	// Withdrawn are ids of records this device once received but may no
+	// longer read (a note made staff-only): it drops its copy. Sent only
+	// to such a device; the record itself is unchanged on the hub.
+	Withdrawn  []string `json:"withdrawn,omitempty"`
 	Next       uint64   `json:"next"` // the cursor to send next time
 	More       bool     `json:"more"`
 	MaxSeq     uint64   `json:"maxSeq"`

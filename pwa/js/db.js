@@ -344,6 +344,14 @@ export async function applyPage(page, sentAt, gotAt) {
       changed++;
     }
   });
+  // A record this device may no longer read (a note made staff-only after
+  // it was shared with the athlete) is taken back: the hub sends its id
+  // alone, and the copy here goes. What waits to sync stays queued.
+  for (const id of page.withdrawn || []) {
+    if (typeof id !== 'string') continue;
+    writes.push(records.delete(id));
+    changed++;
+  }
   await Promise.all(writes);
   const meta = tx.objectStore('meta');
   await meta.put(page.next, 'cursor');
