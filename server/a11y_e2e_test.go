@@ -149,6 +149,7 @@ func appScreens(h *ringHub) []appScreen {
 		{name: "tests", path: "/tests?athlete=" + kofi, ready: q("screen-tests") + ` && document.querySelectorAll('[data-testid="test-entry"]').length >= 7`},
 		{name: "session", path: "/session", ready: q("screen-session")},
 		{name: "incident", path: "/incident", ready: q("screen-incident")},
+		{name: "note", path: "/note?athlete=" + kofi, ready: `document.querySelector('[data-testid="screen-note"][data-ready="true"] [data-testid="note-audience"]')`},
 		{name: "clearance", path: "/clearance?athlete=" + mateo, ready: q("screen-clearance") + ` && document.querySelector('[data-testid^="clearance-incident-"]')`},
 		// The demo camp ends on demoToday; the browser's own today may be later.
 		{name: "today", path: "/today?day=" + demoToday.Format("2006-01-02"), ready: q("screen-today") + ` && document.querySelectorAll('[data-testid^="entry-"]').length > 0`},

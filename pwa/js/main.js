@@ -11,12 +11,14 @@ import { Settings } from './settings.js';
 import { Join } from './join.js';
 import { COACH_ROUTES } from './coach/routes.js';
 import { RTS } from './rts.js';
+import { Note } from './note.js';
 
 const ROUTES = {
   '/': Home, '/checkin': Checkin, '/jumps': Jumps, '/rounds': Rounds,
   '/session': Session, '/incident': Incident, '/clearance': Clearance, '/today': Today, '/settings': Settings, '/join': Join,
   ...COACH_ROUTES,
   '/rts': RTS,
+  '/note': Note,
 };
 
 // ---- service worker: register, detect a waiting update, reload once ----

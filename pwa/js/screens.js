@@ -29,6 +29,7 @@ const TILES = [
   ['/intervals', 'Intervals', 'prescribed from tests, done against prescribed', 'nav-intervals'],
   ['/tests', 'Tests', '30-15 IFT, sprints, HRmax, strength, drop jumps', 'nav-tests'],
   ['/session', 'Session RPE', 'how hard, how long', 'nav-session'],
+  ['/note', 'Note', 'staff only, or shared with the athlete', 'nav-note'],
   ['/incident', 'Incident', 'head knock, knockdown, injury', 'nav-incident'],
   ['/clearance', 'Clearance', 'end a stand-down', 'nav-clearance'],
   ['/rts', 'Return to sport', 'one step a day at most', 'nav-rts'],

@@ -329,7 +329,7 @@ var Registry = []Kind{
 		validate: validateClearance,
 	},
 	{
-		Name: KindDecision, Label: "decision", Plural: "decisions", Body: Decision{}, Scope: PerAthlete, Dated: true,
+		Name: KindDecision, Screen: "/decision", Label: "decision", Plural: "decisions", Body: Decision{}, Scope: PerAthlete, Dated: true,
 		Fields: []Field{
 			enum("body.rule", "Flag", RuleIDs),
 			textField("body.note", "What was decided", MaxNoteLen),
@@ -339,7 +339,7 @@ var Registry = []Kind{
 		validate: validateDecision,
 	},
 	{
-		Name: KindNote, Label: "note", Plural: "notes", Body: Note{}, Scope: PerAthlete, Dated: true,
+		Name: KindNote, Screen: "/note", Label: "note", Plural: "notes", Body: Note{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff, RoleAthlete},
 		Fields: []Field{
 			textField("body.text", "Note", MaxNoteLen),

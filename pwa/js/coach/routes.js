@@ -46,4 +46,5 @@ export const COACH_ROUTES = {
   '/fightweek': lazy(() => import('./fightweek.js'), 'FightWeek'),
   // Camp set-up (athletes, their names and units) is the coach's alone.
   '/camp': lazy(() => import('../camp.js'), 'Camp'),
+  '/decision': lazy(() => import('./decision.js'), 'Decision'),
 };
