@@ -54,8 +54,26 @@ export function textTrouble(v) {
   return '';
 }
 
+// blank: a required field left out or empty (a text of spaces only).
+const blank = (f, v) => v === undefined || v === null || v === '' || (!!f.max_len && typeof v === 'string' && v.trim() === '');
+
 function checkField(f, body, year) {
-  for (const [path, v] of values(body, f.path)) {
+  const found = values(body, f.path);
+  if (f.required) {
+    // An array's elements are checked one by one; a plain field is also
+    // refused when it is left out.
+    if (!f.path.includes('[]') && found.length === 0) return { field: f.path, reason: f.required, label: f.label };
+    for (const [path, v] of found) if (blank(f, v)) return { field: path, reason: f.required, label: f.label };
+  }
+  if (f.max_items) {
+    for (const [path, arr] of values(body, f.path.slice(0, -2))) {
+      if (Array.isArray(arr) && arr.length > 0 && (arr.length < f.min_items || arr.length > f.max_items)) {
+        const reason = f.items_words.replace('{min}', f.min_items).replace('{max}', f.max_items).replace('{got}', arr.length);
+        return { field: path, reason, label: f.label };
+      }
+    }
+  }
+  for (const [path, v] of found) {
     const bad = (reason) => ({ field: path, reason, label: f.label });
     if (f.min !== undefined && typeof v === 'number') {
       const [lo, hi] = range(f, year);
@@ -116,7 +134,7 @@ const cross = {
   },
   fitness_test: (b) => fitnessTest(b),
   strength: (b) => strength(b),
-  jump: (b) => dropJump(b),
+  jump: (b) => attemptsGiven(b) || dropJump(b),
   bout(b) {
     const start = dayNum(b.camp_start);
     const bout = dayNum(b.bout_day);
@@ -169,6 +187,20 @@ const cross = {
       const bad = dayRefusal(b.clinician_day);
       if (bad) return { field: 'body.clinician_day', label: "Clinician's date", reason: bad };
       if (!(b.seen_by || '').trim()) return { field: 'body.seen_by', label: 'Clinician who saw the fighter', reason: "is required with a clinician's date: the clinician who set it" };
+    }
+    return null;
+  },
+  // A threshold names a flag rule and one of its settings (their limits
+  // are the registry's fields); in the hub's order: rule ids, then names.
+  settings(b) {
+    const t = b.thresholds;
+    if (!t || typeof t !== 'object') return null;
+    for (const id of Object.keys(t).sort()) {
+      const rule = VOCAB.rules.find((r) => r.id === id);
+      if (!rule) return { field: `body.thresholds.${id}`, label: 'Flag', reason: `is not a flag rule; use one of ${VOCAB.rules.map((r) => r.id).join(', ')}` };
+      for (const k of Object.keys(t[id] || {}).sort()) {
+        if (!rule.params.includes(k)) return { field: `body.thresholds.${id}.${k}`, label: 'Setting', reason: `is not a setting of ${id}; use one of ${rule.params.join(', ')}` };
+      }
     }
     return null;
   },
@@ -326,6 +358,14 @@ function strength(b) {
     };
   }
   return null;
+}
+
+// attemptsGiven: a jump test holds its attempts as heights or flight times.
+function attemptsGiven(b) {
+  const some = (a) => Array.isArray(a) && a.length > 0;
+  if (some(b.flight_ms) || some(b.heights_cm)) return null;
+  const l = L();
+  return { field: 'body.heights_cm', label: 'Jump height', reason: `is required: ${l.min_attempts} to ${l.max_attempts} attempts as heights in cm (heights_cm) or flight times in ms (flight_ms)` };
 }
 
 function dropJump(b) {

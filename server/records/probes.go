@@ -60,6 +60,39 @@ func Probes(now time.Time) ([]Probe, error) {
 					add(f.Path+" between steps", with(base, f.Path, v), index0(f.Path), f.Refusal(v, now.Year()))
 				}
 			}
+			if f.Required != "" {
+				// Left out (a key of the example), empty, or spaces only
+				// for a text: refused in the registry's words.
+				if name := strings.TrimPrefix(f.Path, "body."); !strings.ContainsAny(name, ".[") {
+					if _, ok := base[name]; ok {
+						b := clone(base)
+						delete(b, name)
+						add(f.Path+" left out", b, f.Path, f.Required)
+					}
+				}
+				if f.Min == nil {
+					add(f.Path+" empty", with(base, f.Path, ""), index0(f.Path), f.Required)
+				}
+				if f.MaxLen > 0 {
+					add(f.Path+" of spaces only", with(base, f.Path, "   "), index0(f.Path), f.Required)
+				}
+			}
+			if f.MaxItems > 0 {
+				arr, _ := strings.CutSuffix(f.Path, "[]")
+				lo, _, _ := f.Range(now.Year())
+				items := func(n int) []any {
+					out := make([]any, n)
+					for i := range out {
+						out[i] = lo
+					}
+					return out
+				}
+				add(arr+" with too many", with(base, arr, items(f.MaxItems+1)), arr, f.ItemsRefusal(f.MaxItems+1))
+				add(arr+" at its most", with(base, arr, items(f.MaxItems)), "", "")
+				if f.MinItems > 1 {
+					add(arr+" with too few", with(base, arr, items(f.MinItems-1)), arr, f.ItemsRefusal(f.MinItems-1))
+				}
+			}
 			if len(f.Enum) > 0 {
 				add(f.Path+" not in its list", with(base, f.Path, "zzz"), index0(f.Path), f.EnumRefusal("zzz"))
 			}

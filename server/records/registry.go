@@ -2,6 +2,7 @@ package records
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"reflect"
 	"strconv"
@@ -80,6 +81,37 @@ type Field struct {
 	// {unit} (" kg", or nothing) and {got}; empty: the usual wording.
 	Words     string `json:"words,omitempty"`
 	StepWords string `json:"step_words,omitempty"`
+	// Required is the refusal of the field left out or empty (a text of
+	// spaces only, for a text); empty: the field may be left out. An
+	// array element's ("body.weeks[].level") is refused when empty.
+	Required string `json:"required,omitempty"`
+	// MinItems and MaxItems bound how many elements an array field
+	// ("body.heights_cm[]") holds when it holds any, refused in ItemsWords
+	// ({min}, {max}, {got}) naming the array.
+	MinItems   int    `json:"min_items,omitempty"`
+	MaxItems   int    `json:"max_items,omitempty"`
+	ItemsWords string `json:"items_words,omitempty"`
+}
+
+// need makes the field required, refused in the hub's words "is required: …".
+func (f Field) need(words string) Field {
+	f.Required = "is required: " + words
+	return f
+}
+
+// needEnum makes a list field required: "is required: one of …".
+func needEnum(path, label string, values []string) Field {
+	return enum(path, label, values).need("one of " + strings.Join(values, ", "))
+}
+
+// needName is a required name: "is required: who …, 1 to 80 characters".
+func needName(path, label, what string) Field {
+	return textField(path, label, MaxNameLen).need(fmt.Sprintf("%s, 1 to %d characters", what, MaxNameLen))
+}
+
+// idField is a required id of another record.
+func idField(path, label, what string) Field {
+	return Field{Path: path, Label: label}.need(what)
 }
 
 // Case is a refusal the registry's tests and the app's checks share.
@@ -125,7 +157,7 @@ var Registry = []Kind{
 	{
 		Name: KindAthlete, Screen: "/camp", Label: "athlete", Plural: "athletes", Body: Athlete{}, Scope: Self,
 		Fields: []Field{
-			textField("body.name", "Name", MaxNameLen),
+			needName("body.name", "Name", "the athlete's name"),
 			enum("body.units", "Units", Units),
 			{Path: "body.birth_year", Label: "Birth year", Min: f64(MinBirthYear), MaxYearsAgo: MinAgeYears, Whole: true,
 				Words: "must be between {min} and {max} (athletes aged 10 or over); got {got}"},
@@ -136,11 +168,16 @@ var Registry = []Kind{
 	{
 		Name: KindSettings, Label: "settings", Plural: "settings", Body: Settings{}, Scope: CampOrAthlete,
 		Rules: RuleIDs,
-		Fields: []Field{
-			rng("body.checkin_hour", "Check-in hour", "h (local time, 10.5 = 10:30)", 0, MaxCheckinHour),
+		// Every flag rule's thresholds (the Rules table), then the camp's own.
+		Fields: append(thresholdFields(),
 			textField("body.gym_name", "Gym name", MaxNameLen),
+			rng("body.checkin_hour", "Check-in hour", "h (local time, 10.5 = 10:30)", 0, MaxCheckinHour),
+		),
+		Example: `{"checkin_hour":10}`,
+		Cases: []Case{
+			{"a threshold of no flag rule", `{"thresholds":{"jump_height":{"window_days":28}}}`, "body.thresholds.jump_height"},
+			{"a threshold the rule does not have", `{"thresholds":{"jump_drop":{"window":28}}}`, "body.thresholds.jump_drop.window"},
 		},
-		Example:  `{"checkin_hour":10}`,
 		validate: validateSettings,
 	},
 	{
@@ -148,15 +185,18 @@ var Registry = []Kind{
 		Rules: []string{RuleMassAbovePath, RuleMassLossFast, RuleCutAtRisk, RuleSparDensity, RuleLoadSpike, RuleOffPlan, RuleResidualGap},
 		Fields: []Field{
 			textField("body.name", "Bout", MaxBoutNameLen),
-			enum("body.weigh_in_type", "Weigh-in", WeighInTypes),
-			rng("body.start_mass_kg", "Start mass", "kg", MinMassKg, MaxMassKg),
+			Field{Path: "body.camp_start", Label: "Camp start"}.need("the first day of the camp, YYYY-MM-DD"),
+			Field{Path: "body.bout_day", Label: "Bout day"}.need("the day of the bout, YYYY-MM-DD"),
+			Field{Path: "body.weigh_in", Label: "Weigh-in"}.need("the weigh-in date and time, RFC 3339 with offset (e.g. 2026-03-13T10:00:00+01:00)"),
+			needEnum("body.weigh_in_type", "Weigh-in", WeighInTypes),
+			rng("body.start_mass_kg", "Start mass", "kg", MinMassKg, MaxMassKg).need(fmt.Sprintf("the fighter's morning mass at camp start, %d to %d kg", MinMassKg, MaxMassKg)),
 			rng("body.reference_load_au", "Usual weekly load", "AU per week", 0, MaxReferenceLoadAU),
 			rng("body.path[].mass_kg", "Planned mass", "kg", MinMassKg, MaxMassKg),
-			enum("body.weeks[].level", "Week's load", Levels),
+			needEnum("body.weeks[].level", "Week's load", Levels),
 			wholeRng("body.weeks[].spar_cap_rounds", "Sparring cap", "sparring rounds", 0, MaxSparCap),
-			enum("body.weeks[].strength.ids[]", "Strength emphasis", EmphasisIDs(GroupStrength)),
+			needEnum("body.weeks[].strength.ids[]", "Strength emphasis", EmphasisIDs(GroupStrength)),
 			textField("body.weeks[].strength.label", "Strength, in your words", MaxEmphasisLabel),
-			enum("body.weeks[].conditioning.ids[]", "Conditioning emphasis", EmphasisIDs(GroupConditioning)),
+			needEnum("body.weeks[].conditioning.ids[]", "Conditioning emphasis", EmphasisIDs(GroupConditioning)),
 			textField("body.weeks[].conditioning.label", "Conditioning, in your words", MaxEmphasisLabel),
 			wholeRng("body.weeks[].spar_rounds", "Planned sparring", "sparring rounds", 0, MaxSparCap),
 			wholeRng("body.weeks[].hard_rounds", "Planned hard rounds", "hard sparring rounds", 0, MaxSparCap),
@@ -219,13 +259,15 @@ var Registry = []Kind{
 		Fields: []Field{
 			enum("body.test", "Test", JumpTests),
 			enum("body.method", "Measured with", JumpMethods),
-			rng("body.heights_cm[]", "Jump height", "cm", MinHeightCm, MaxHeightCm),
-			{Path: "body.flight_ms[]", Label: "Flight time", Unit: "ms", Min: f64(MinFlightMs), Max: f64(MaxFlightMs),
-				Words: "must be between {min} and {max} ms (a jump of 4.9 to 122.6 cm); got {got}"},
+			attempts(rng("body.heights_cm[]", "Jump height", "cm", MinHeightCm, MaxHeightCm)),
+			attempts(Field{Path: "body.flight_ms[]", Label: "Flight time", Unit: "ms", Min: f64(MinFlightMs), Max: f64(MaxFlightMs),
+				Words: "must be between {min} and {max} ms (a jump of 4.9 to 122.6 cm); got {got}"}),
 			textField("body.session", "Test session", MaxShortLen),
 		},
 		Example: `{"test":"cmj","heights_cm":[40,41,42]}`,
 		Cases: []Case{
+			{"no attempts", `{"heights_cm":null}`, "body.heights_cm"},
+			{"an empty list of attempts", `{"heights_cm":[]}`, "body.heights_cm"},
 			{"a drop jump without its drop height", `{"test":"dj","contact_ms":[200,210,205]}`, "body.drop_cm"},
 			{"a drop height out of range", `{"test":"dj","drop_cm":5,"contact_ms":[200,210,205]}`, "body.drop_cm"},
 			{"a drop jump without contact times", `{"test":"dj","drop_cm":40}`, "body.contact_ms"},
@@ -238,10 +280,10 @@ var Registry = []Kind{
 		Name: KindRound, Screen: "/rounds", Label: "round", Plural: "rounds", Body: Round{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff}, Rules: []string{RuleSparDensity, RuleSparSpacing, RuleSparOnHold},
 		Fields: []Field{
-			enum("body.activity", "Activity", Activities),
-			wholeRng("body.seconds", "Round length", "s", MinRoundS, MaxRoundS),
-			{Path: "body.intensity", Label: "Intensity", Min: f64(1), Max: f64(3), Whole: true,
-				Words: "must be 1 (easy), 2 (moderate) or 3 (hard); got {got}"},
+			needEnum("body.activity", "Activity", Activities),
+			wholeRng("body.seconds", "Round length", "s", MinRoundS, MaxRoundS).need(fmt.Sprintf("the round's length, %d to %d s", MinRoundS, MaxRoundS)),
+			Field{Path: "body.intensity", Label: "Intensity", Min: f64(1), Max: f64(3), Whole: true,
+				Words: "must be 1 (easy), 2 (moderate) or 3 (hard); got {got}"}.need("1 easy, 2 moderate or 3 hard"),
 			textField("body.partner", "Partner", MaxNameLen),
 			textField("body.note", "Note", MaxNoteLen),
 		},
@@ -253,12 +295,14 @@ var Registry = []Kind{
 		Writers: []string{RoleStaff},
 		Fields: []Field{
 			textField("body.protocol", "Protocol", MaxShortLen),
-			textField("body.modality", "Modality", MaxShortLen),
+			textField("body.modality", "Modality", MaxShortLen).need("what the intervals were done on, e.g. " + strings.Join(Modalities, ", ")),
+			// Left out, the work is 0 s: refused as out of range.
 			{Path: "body.work_s", Label: "Work", Unit: "s", Min: f64(0), MinAbove: true, Max: f64(MaxIntervalS),
-				Words: "must be more than {min} and at most {max} s per repetition; got {got}"},
+				Words:    "must be more than {min} and at most {max} s per repetition; got {got}",
+				Required: fmt.Sprintf("must be more than 0 and at most %d s per repetition; got 0", MaxIntervalS)},
 			rng("body.rest_s", "Rest", "s", 0, MaxIntervalS),
 			rng("body.set_rest_s", "Rest between sets", "s", 0, MaxIntervalS),
-			wholeRng("body.reps", "Reps per set", "repetitions per set", 1, MaxReps),
+			wholeRng("body.reps", "Reps per set", "repetitions per set", 1, MaxReps).need(fmt.Sprintf("repetitions per set, 1 to %d", MaxReps)),
 			wholeRng("body.sets", "Sets", "sets", 1, MaxSets),
 			wholeRng("body.hr_peak", "Peak heart rate", "bpm", MinHR, MaxHR),
 			wholeRng("body.hr_mean", "Mean heart rate", "bpm", MinHR, MaxHR),
@@ -290,10 +334,10 @@ var Registry = []Kind{
 		Name: KindSession, Screen: "/session", Label: "session", Plural: "sessions", Body: Session{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff, RoleAthlete}, Rules: []string{RuleLoadSpike, RuleMonotony},
 		Fields: []Field{
-			enum("body.type", "Type", SessionTypes),
+			needEnum("body.type", "Type", SessionTypes),
 			enum("body.focus", "Focus", SessionFocuses),
-			rng("body.minutes", "Duration", "min", MinSessionMin, MaxSessionMin),
-			rpeField("body.rpe"),
+			rng("body.minutes", "Duration", "min", MinSessionMin, MaxSessionMin).need(fmt.Sprintf("the session's length, %d to %d min", MinSessionMin, MaxSessionMin)),
+			rpeField("body.rpe").need("the session RPE, 0 to 10 on the CR-10 scale"),
 			textField("body.note", "Note", MaxNoteLen),
 		},
 		Example:  `{"type":"boxing","minutes":60,"rpe":6}`,
@@ -303,7 +347,7 @@ var Registry = []Kind{
 		Name: KindIncident, Screen: "/incident", Label: "incident", Plural: "incidents", Body: Incident{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff}, Rules: []string{RuleSparOnHold},
 		Fields: []Field{
-			enum("body.type", "What happened", IncidentTypes),
+			needEnum("body.type", "What happened", IncidentTypes),
 			textField("body.note", "What you saw", MaxNoteLen),
 			rng("body.loc_seconds", "How long consciousness was lost", "s", 0, MaxLOCSeconds),
 			textField("body.seen_by", "Clinician who saw the fighter", MaxNameLen),
@@ -322,7 +366,8 @@ var Registry = []Kind{
 		Name: KindClearance, Screen: "/clearance", Label: "clearance", Plural: "clearances", Body: Clearance{}, Scope: PerAthlete, Dated: true,
 		Rules: []string{RuleSparOnHold},
 		Fields: []Field{
-			textField("body.by", "Cleared in writing by", MaxNameLen),
+			idField("body.incident", "Incident", "the id of the incident this clearance ends"),
+			needName("body.by", "Cleared in writing by", "who gave the clearance, e.g. the ringside doctor"),
 			textField("body.note", "Note", MaxNoteLen),
 		},
 		Example:  `{"incident":"0190a0b0-0000-7000-8000-000000000001","by":"Dr. A. Example"}`,
@@ -332,7 +377,7 @@ var Registry = []Kind{
 		Name: KindDecision, Screen: "/decision", Label: "decision", Plural: "decisions", Body: Decision{}, Scope: PerAthlete, Dated: true,
 		Fields: []Field{
 			enum("body.rule", "Flag", RuleIDs),
-			textField("body.note", "What was decided", MaxNoteLen),
+			textField("body.note", "What was decided", MaxNoteLen).need(fmt.Sprintf("what was decided, up to %d characters", MaxNoteLen)),
 			textField("body.by", "By", MaxNameLen),
 		},
 		Example:  `{"rule":"jump_drop","note":"Lighter session today."}`,
@@ -342,7 +387,7 @@ var Registry = []Kind{
 		Name: KindNote, Screen: "/note", Label: "note", Plural: "notes", Body: Note{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff, RoleAthlete},
 		Fields: []Field{
-			textField("body.text", "Note", MaxNoteLen),
+			textField("body.text", "Note", MaxNoteLen).need(fmt.Sprintf("the note, up to %d characters", MaxNoteLen)),
 			textField("body.by", "By", MaxNameLen),
 			enum("body.audience", "Who reads it", Audiences),
 		},
@@ -353,7 +398,7 @@ var Registry = []Kind{
 		Name: KindFitnessTest, Screen: "/tests", Label: "fitness test", Plural: "fitness tests", Body: FitnessTest{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff},
 		Fields: []Field{
-			enum("body.protocol", "Test", FitnessProtocols),
+			needEnum("body.protocol", "Test", FitnessProtocols),
 			{Path: "body.stage", Label: "Last stage completed", Min: f64(1), Max: f64(float64(maxStage)), Whole: true,
 				Words: "must be between {min} and {max} (the stages of the test); got {got}"},
 			wholeRng("body.hr_peak", "Peak heart rate", "bpm", MinHR, MaxHR),
@@ -379,7 +424,7 @@ var Registry = []Kind{
 		Name: KindStrength, Screen: "/tests", Label: "strength test", Plural: "strength tests", Body: Strength{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff},
 		Fields: []Field{
-			textField("body.exercise", "Exercise", MaxShortLen),
+			textField("body.exercise", "Exercise", MaxShortLen).need("the exercise tested, e.g. " + strings.Join(Exercises[:3], ", ")),
 			{Path: "body.sets[].load_kg", Label: "Load", Unit: "kg", Min: f64(0), MinAbove: true, Max: f64(MaxLoadKg),
 				Words: "must be more than {min} and at most {max} kg; got {got}"},
 			wholeRng("body.sets[].reps", "Reps", "repetitions", 1, MaxStrengthReps),
@@ -400,8 +445,8 @@ var Registry = []Kind{
 		Name: KindWeighIn, Screen: "/fightweek", Label: "weigh-in", Plural: "weigh-ins", Body: WeighIn{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff}, Rules: []string{RuleWeighIn},
 		Fields: []Field{
-			enum("body.type", "Weigh-in", WeighInKinds),
-			rng("body.mass_kg", "Mass on the scale", "kg", MinMassKg, MaxMassKg),
+			needEnum("body.type", "Weigh-in", WeighInKinds),
+			rng("body.mass_kg", "Mass on the scale", "kg", MinMassKg, MaxMassKg).need(fmt.Sprintf("the mass on the scale, %d to %d kg", MinMassKg, MaxMassKg)),
 			textField("body.note", "Note", MaxNoteLen),
 		},
 		Example: `{"type":"check","mass_kg":70}`,
@@ -414,14 +459,22 @@ var Registry = []Kind{
 		Name: KindRTSStep, Screen: "/rts", Label: "return-to-sport step", Plural: "return-to-sport steps", Body: RTSStep{}, Scope: PerAthlete, Dated: true,
 		Writers: []string{RoleStaff},
 		Fields: []Field{
-			wholeRng("body.step", "Step", "", MinRTSStep, MaxRTSStep),
+			idField("body.incident", "Incident", "the id of the incident this step follows"),
+			wholeRng("body.step", "Step", "", MinRTSStep, MaxRTSStep).need(fmt.Sprintf("the return-to-sport step, %d to %d", MinRTSStep, MaxRTSStep)),
 			textField("body.symptoms", "Symptoms", MaxNoteLen),
-			textField("body.supervised_by", "Supervised by", MaxNameLen),
+			needName("body.supervised_by", "Supervised by", "who supervised the step"),
 			textField("body.note", "Note", MaxNoteLen),
 		},
 		Example:  `{"incident":"0190a0b0-0000-7000-8000-000000000001","step":1,"supervised_by":"Dr. A. Example"}`,
 		validate: validateRTSStep,
 	},
+}
+
+// attempts bounds a jump test's attempts: the hub's words name the list.
+func attempts(f Field) Field {
+	f.MinItems, f.MaxItems = MinAttempts, MaxAttempts
+	f.ItemsWords = "must hold {min} to {max} attempts; got {got}"
+	return f
 }
 
 func wellness(path, label string) Field {
@@ -534,6 +587,9 @@ type Vocabulary struct {
 	StandDownSets []string `json:"stand_down_sets"`
 	// WeighInKinds are the weigh-in record's types.
 	WeighInKinds []string `json:"weigh_in_kinds"`
+	// Rules are the flag rules and their parameters' names (a settings
+	// record's thresholds).
+	Rules []VocabRule `json:"rules"`
 }
 
 // VocabKind is one kind as the app sees it.
@@ -556,8 +612,9 @@ func Vocab() Vocabulary {
 		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
 			"max_emphasis_ids": MaxEmphasisIDs, "max_travel_hours": MaxTravelHours,
 			"max_check_days": MaxCheckDays, "max_over_limit_pct": MaxOverLimitPct, "max_fight_day_lb": MaxFightDayLb,
-			"max_fight_day_pct": MaxFightDayPct, "max_bout_after_hours": MaxBoutAfterHours, "max_stand_down_sets": MaxStandDownSets},
-		StandDownSets: StandDownSetIDs, WeighInKinds: WeighInKinds}
+			"max_fight_day_pct": MaxFightDayPct, "max_bout_after_hours": MaxBoutAfterHours, "max_stand_down_sets": MaxStandDownSets,
+			"min_attempts": MinAttempts, "max_attempts": MaxAttempts},
+		StandDownSets: StandDownSetIDs, WeighInKinds: WeighInKinds, Rules: vocabRules()}
 	for k, x := range testLimits {
 		v.Limits[k] = x
 	}
@@ -596,6 +653,11 @@ const (
 // EnumRefusal is the hub's words for a value not in the field's list.
 func (f Field) EnumRefusal(got string) string {
 	return strings.NewReplacer("{list}", strings.Join(f.Enum, ", "), "{got}", strconv.Quote(got)).Replace(EnumWords)
+}
+
+// ItemsRefusal is the hub's words for an array of n elements, too many or too few.
+func (f Field) ItemsRefusal(n int) string {
+	return strings.NewReplacer("{min}", strconv.Itoa(f.MinItems), "{max}", strconv.Itoa(f.MaxItems), "{got}", strconv.Itoa(n)).Replace(f.ItemsWords)
 }
 
 // LengthRefusal is the hub's words for a text of n characters, too long.

@@ -137,3 +137,16 @@ func TestSettingsLayer(t *testing.T) {
 		t.Errorf("default hour: got %v, want %v (PRODUCT.md: 10:00)", got, DefaultCheckinHour)
 	}
 }
+
+// Every flag rule has its name in the coach's words: the app's screens and
+// the refusals of a settings threshold read it.
+func TestEveryRuleHasItsName(t *testing.T) {
+	for _, r := range Rules {
+		if RuleNames[r.ID] == "" {
+			t.Errorf("%s has no name in words", r.ID)
+		}
+	}
+	if len(RuleNames) != len(Rules) {
+		t.Errorf("%d names for %d rules", len(RuleNames), len(Rules))
+	}
+}

@@ -2,25 +2,10 @@
 import { html } from '../ui.js';
 import { KG_PER_LB, localDay } from '../record.js';
 import { testLine } from '../testwords.js';
+import { VOCAB } from '../vocab.js';
 
-// Plain-words names of the hub's flag rules (rule ids are fixed).
-export const RULE_NAMES = {
-  jump_drop: 'Jump height under baseline',
-  mass_above_path: 'Mass above the planned path',
-  mass_loss_fast: 'Mass coming off quickly',
-  cut_at_risk: 'Large cut left for the final week',
-  spar_density: 'Sparring volume over the cap',
-  spar_spacing: 'Hard sparring close together',
-  spar_on_hold: 'Sparring stand-down',
-  load_spike: 'Load rising fast (acute:chronic)',
-  monotony: 'Little day-to-day variation in load',
-  wellness_drop: 'Wellness under usual',
-  hydration: 'Concentrated urine (USG)',
-  missing_checkin: 'No morning check-in',
-  off_plan: 'Week away from the planned load',
-  residual_gap: 'Quality not trained lately',
-  weigh_in: 'Weigh-in over its cap or large regain',
-};
+// Plain-words names of the hub's flag rules, from its registry (rule ids are fixed).
+export const RULE_NAMES = Object.fromEntries(VOCAB.rules.map((r) => [r.id, r.name]));
 export const ruleName = (id) => RULE_NAMES[id] || 'Finding';
 
 // paramOf: a rule's setting from the hub's tables (its words and unit).
