@@ -20,7 +20,7 @@ import (
 
 // History windows the flag rules need: the longest rolling window is the
 // 28-day baseline plus the 28-day chronic load, and residual gaps look
-// back up to ~40 days; incidents and clearances are read in full because a
+// back up to ~40 days; incidents, clearances and return-to-sport steps are read in full because a
 // stand-down can outlast any window.
 const flagWindowDays = FlagWindowDays
 
@@ -69,7 +69,7 @@ type athleteRecs struct {
 // windowedKinds are read over the rules' window; standDownKinds in full.
 var (
 	windowedKinds  = []string{records.KindCheckin, records.KindJump, records.KindRound, records.KindSession, records.KindIntervals, records.KindDecision, records.KindWeighIn}
-	standDownKinds = []string{records.KindIncident, records.KindClearance}
+	standDownKinds = []string{records.KindIncident, records.KindClearance, records.KindRTSStep}
 )
 
 // flagCacheSize bounds the cached athlete-days: a camp of 50 athletes

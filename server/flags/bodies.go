@@ -22,6 +22,7 @@ const (
 	kindClearance = "clearance"
 	kindDecision  = "decision"
 	kindWeighIn   = "weigh_in"
+	kindRTSStep   = "rts_step"
 	kindNote      = "note"
 )
 
@@ -63,6 +64,11 @@ type incidentBody struct {
 	Type         string `json:"type"`
 	LOC          *bool  `json:"loss_of_consciousness"`
 	ClinicianDay string `json:"clinician_day"`
+}
+
+type rtsStepBody struct {
+	Incident string `json:"incident"`
+	Step     int    `json:"step"`
 }
 
 type clearanceBody struct {

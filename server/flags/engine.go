@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"cornerbook/server/flags/day"
+	"cornerbook/server/medical"
 	devsync "cornerbook/sync"
 )
 
@@ -98,8 +99,12 @@ type engine struct {
 	incidents  []incident
 	clearances map[string]string // incident id → clearance record id (on or before today)
 	clearedBy  map[string]string
-	decisions  []decision  // every decision up to today (today's acknowledge flags; spar_on_hold ones answer rounds)
-	sparLog    []sparRound // every sparring round up to today
+	// rtsSteps are each incident's return-to-sport steps up to today.
+	rtsSteps map[string][]medical.LoggedStep
+	// birthYear is the athlete's, 0 when not recorded.
+	birthYear int
+	decisions []decision  // every decision up to today (today's acknowledge flags; spar_on_hold ones answer rounds)
+	sparLog   []sparRound // every sparring round up to today
 
 	bout     *plan
 	bouts    []*plan // every bout given, by camp start
@@ -115,10 +120,14 @@ func newEngine(in *Input) (*engine, bool) {
 	}
 	e := &engine{in: in, today: today, first: today, units: "kg"}
 	var ab struct {
-		Units string `json:"units"`
+		Units     string `json:"units"`
+		BirthYear int    `json:"birth_year"`
 	}
-	if json.Unmarshal(in.Athlete.Body, &ab) == nil && ab.Units == "lb" {
-		e.units = "lb"
+	if json.Unmarshal(in.Athlete.Body, &ab) == nil {
+		if ab.Units == "lb" {
+			e.units = "lb"
+		}
+		e.birthYear = ab.BirthYear
 	}
 	athlete := in.Athlete.ID
 	// Pass 1: find the first day, so the load series can be sized once.
@@ -228,6 +237,14 @@ func newEngine(in *Input) (*engine, bool) {
 			}
 		case kindWeighIn:
 			e.addWeighIn(r, d)
+		case kindRTSStep:
+			var b rtsStepBody
+			if json.Unmarshal(r.Body, &b) == nil && b.Incident != "" {
+				if e.rtsSteps == nil {
+					e.rtsSteps = map[string][]medical.LoggedStep{}
+				}
+				e.rtsSteps[b.Incident] = append(e.rtsSteps[b.Incident], medical.LoggedStep{ID: r.ID, Step: b.Step, At: r.At})
+			}
 		}
 	}
 	// Everything in one canonical order (day, time, id), so the flags do not

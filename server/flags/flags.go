@@ -56,6 +56,7 @@ import (
 	"sort"
 	"time"
 
+	"cornerbook/server/medical"
 	"cornerbook/server/records"
 	devsync "cornerbook/sync"
 )
@@ -177,6 +178,11 @@ type Restriction struct {
 	// (YYYY-MM-DD), "" when only a clearance ends it.
 	EarliestEnd string `json:"earliest_end"`
 	Until       string `json:"until"` // what ends it in every case
+	// RTS is the incident's graded return to sport so far (Patricios et
+	// al. 2023): the last step and when, the next and its earliest time,
+	// the early steps' heart-rate caps from the fighter's age. Every
+	// screen that shows the stand-down shows it from here.
+	RTS *medical.Ladder `json:"rts,omitempty"`
 }
 
 // Decision scopes.

@@ -1,6 +1,7 @@
 package flags
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -35,7 +36,12 @@ func TestRestrictionEveryDayOfTheStandDown(t *testing.T) {
 		wantLevel(t, f, LevelInfo, StatusFlag)
 		want := Restriction{Incident: ko, IncidentType: "knockout", StartedDay: d(3), StartedAt: d(3) + "T17:05:00+01:00",
 			Rule: "Knockout: at least 60 days", EarliestEnd: d(63), Until: "cleared in writing by a doctor"}
-		if *f.Restriction != want {
+		got := *f.Restriction
+		if got.RTS == nil || got.RTS.Current != 0 || got.RTS.Next != 1 {
+			t.Fatalf("%s: return to sport not started: %+v", d(off), got.RTS)
+		}
+		got.RTS = nil
+		if got != want {
 			t.Fatalf("%s: restriction %+v, want %+v", d(off), *f.Restriction, want)
 		}
 		if f.Rule != RuleSparOnHold || fs[0].Restriction == nil {
@@ -199,5 +205,54 @@ func TestWholeDayDecision(t *testing.T) {
 		if f.Decision != nil {
 			t.Errorf("decision leaked to the next day: %s %+v", f.Title, f.Decision)
 		}
+	}
+}
+
+// The stand-down carries the incident's return to sport, so every screen
+// that shows one shows the other: the last step and when, the next and its
+// earliest time (each step at least 24 h, Patricios et al. 2023), the
+// early steps' heart-rate caps at 55 % and 70 % of 220 − age (Patricios et
+// al. 2023; born 1994, in 2026 age 32: 188 bpm → 103.4 and 131.6 bpm,
+// arithmetic), and still "cleared in writing by a doctor".
+func TestRestrictionCarriesTheReturnToSport(t *testing.T) {
+	c := &camp{}
+	hk := c.add(kindIncident, d(0), map[string]any{"type": "head_knock"})
+	other := c.add(kindIncident, d(1), map[string]any{"type": "knockdown"})
+	c.add(kindRTSStep, d(1), map[string]any{"incident": hk, "step": 1, "supervised_by": "Dr. A. Example"})
+	c.last().At = d(1) + "T10:00:00+01:00"
+	c.add(kindRTSStep, d(2), map[string]any{"incident": hk, "step": 2, "supervised_by": "Dr. A. Example"})
+	c.last().At = d(2) + "T10:30:00+01:00"
+	in := c.input(d(2))
+	in.Athlete.Body = []byte(`{"name":"Test Fighter","units":"kg","birth_year":1994}`)
+	rs := restrictionsOf(Compute(in))
+	if len(rs) != 2 {
+		t.Fatalf("two stand-downs: %s", describe(rs))
+	}
+	l := rs[0].Restriction.RTS
+	if rs[0].Restriction.Incident != hk || l == nil {
+		t.Fatalf("first stand-down %+v", rs[0].Restriction)
+	}
+	if l.Current != 2 || l.CurrentAt != d(2)+"T10:30:00+01:00" || l.Next != 3 || l.NextFrom != d(3)+"T10:30:00+01:00" {
+		t.Errorf("ladder %+v", *l)
+	}
+	if l.Age != 32 || len(l.EarlyCapsBpm) != 2 || math.Abs(l.EarlyCapsBpm[0]-103.4) > 1e-9 || math.Abs(l.EarlyCapsBpm[1]-131.6) > 1e-9 {
+		t.Errorf("caps: age %d, %v", l.Age, l.EarlyCapsBpm)
+	}
+	if l.Until != UntilCleared {
+		t.Errorf("until %q", l.Until)
+	}
+	// The other incident's ladder is its own: not started.
+	if o := rs[1].Restriction; o.Incident != other || o.RTS == nil || o.RTS.Current != 0 || o.RTS.Next != 1 {
+		t.Errorf("second stand-down %+v", o)
+	}
+	// Steps after the evaluated day are not yet done on it.
+	in = c.input(d(1))
+	in.Athlete.Body = []byte(`{"name":"Test Fighter","birth_year":1994}`)
+	if rs := restrictionsOf(Compute(in)); len(rs) != 2 || rs[0].Restriction.RTS.Current != 1 {
+		t.Errorf("on %s: %s", d(1), describe(rs))
+	}
+	// No birth year: no caps.
+	if rs := restrictionsOf(c.run(d(2))); len(rs) != 2 || rs[0].Restriction.RTS.EarlyCapsBpm != nil {
+		t.Errorf("without a birth year: %+v", rs[0].Restriction.RTS)
 	}
 }

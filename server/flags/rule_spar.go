@@ -179,7 +179,7 @@ func capitalize(s string) string {
 }
 
 // UntilCleared is what ends every stand-down.
-const UntilCleared = "cleared in writing by a doctor"
+const UntilCleared = medical.UntilCleared
 
 // duringStandDown reports whether a sparring round falls inside the
 // stand-down that inc started: on a later day, or on the incident's day
@@ -260,6 +260,7 @@ func (e *engine) sparOnHold() {
 			res.Rule = capitalize(what) + ": treated as suspected concussion"
 			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (treated as suspected concussion), day %.0f: no sparring or contact until %s.", what, inc.day, since, UntilCleared)
 		}
+		res.RTS = e.ladder(&inc)
 		f.Restriction = res
 		e.add(f)
 	}
@@ -381,6 +382,18 @@ type standDown struct {
 	days           int        // end − the incident's day
 	rule           string     // what sets the end, in words
 	thresholdName  string     // the camp setting behind it, "" for a rule set or a clinician's date
+}
+
+// ladder is an incident's return to sport up to today, with the caps of
+// the fighter's age in the evaluated day's year (medical.Build).
+func (e *engine) ladder(inc *incident) *medical.Ladder {
+	age := 0
+	if e.birthYear > 0 {
+		y, _, _ := e.today.Civil()
+		age = medical.AgeOn(y, e.birthYear)
+	}
+	l := medical.Build(e.rtsSteps[inc.id], age)
+	return &l
 }
 
 // standDownOf is an incident's stand-down: the camp's minimum days per

@@ -260,3 +260,40 @@ func TestLadder_Words(t *testing.T) {
 		t.Errorf("empty ladder: %+v", l)
 	}
 }
+
+// The progress every stand-down strip shows: the last step and when, the
+// next step and its earliest time (Patricios et al. 2023: each step at
+// least 24 h), and the early steps' heart-rate caps at 55 % and 70 % of
+// 220 − age (Patricios et al. 2023, REFERENCES §14.6 [V]; the arithmetic
+// [D]: age 32 → 188 bpm → 103.4 and 131.6 bpm). Whatever the step, only a
+// written clearance ends the stand-down (REFERENCES §11.2 tool rule).
+func TestLadder_ProgressForTheStrip(t *testing.T) {
+	l := Build(steps("s1", 1, "2026-11-29T10:00:00+01:00", "s2", 2, "2026-11-30T10:30:00+01:00",
+		"s3", 3, "2026-12-02T10:30:00+01:00"), AgeOn(2026, 1994))
+	if l.Current != 3 || l.CurrentName != "Individual sport-specific exercise" || l.CurrentAt != "2026-12-02T10:30:00+01:00" {
+		t.Errorf("last step: %+v", l)
+	}
+	if l.Next != 4 || l.NextName != "Non-contact training drills at high intensity" || l.NextFrom != "2026-12-03T10:30:00+01:00" {
+		t.Errorf("next step: %+v", l)
+	}
+	if l.Age != 32 || l.HRMaxBpm != 188 || len(l.EarlyCapsBpm) != 2 ||
+		math.Abs(l.EarlyCapsBpm[0]-103.4) > 1e-9 || math.Abs(l.EarlyCapsBpm[1]-131.6) > 1e-9 {
+		t.Errorf("early caps: age %d, HRmax %v, caps %v", l.Age, l.HRMaxBpm, l.EarlyCapsBpm)
+	}
+	if l.Until != "cleared in writing by a doctor" {
+		t.Errorf("until %q", l.Until)
+	}
+	// Rounded down in words, so the number read is never above the cap.
+	if !strings.Contains(l.Words, "up to 103 bpm (light), 131 bpm (moderate), from 220 − age 32") {
+		t.Errorf("words: %q", l.Words)
+	}
+	// Not started: step 1 next, no earliest time, caps still known.
+	l = Build(nil, 25)
+	if l.Next != 1 || l.NextName != "Symptom-limited daily activity" || l.NextFrom != "" || len(l.EarlyCapsBpm) != 2 || l.Until == "" {
+		t.Errorf("not started: %+v", l)
+	}
+	// Without a birth year: no caps, no age.
+	if l := Build(nil, 0); l.Age != 0 || l.EarlyCapsBpm != nil || l.HRMaxBpm != 0 {
+		t.Errorf("no age: %+v", l)
+	}
+}

@@ -142,17 +142,35 @@ func CheckStep(incidentAt string, others []LoggedStep, s LoggedStep) *Problem {
 	return nil
 }
 
-// Ladder is an incident's return to sport so far.
+// Ladder is an incident's return to sport so far: what every screen that
+// shows the stand-down shows with it (the day board, the wall sheet,
+// ringside, the athlete's phone and the fight-week view read these same
+// numbers).
 type Ladder struct {
 	Current     int       `json:"current"` // the last logged step, 0 before step 1
+	CurrentName string    `json:"current_name,omitempty"`
 	CurrentAt   string    `json:"current_at,omitempty"`
 	Next        int       `json:"next,omitempty"` // 0 when step 6 is done
-	NextFrom    string    `json:"next_from,omitempty"`
+	NextName    string    `json:"next_name,omitempty"`
+	NextFrom    string    `json:"next_from,omitempty"` // RFC 3339: the last step's time + 24 h
 	NextCapsBpm []float64 `json:"next_caps_bpm,omitempty"`
 	// NextNeedsClearance: the next step carries head-impact risk.
-	NextNeedsClearance bool   `json:"next_needs_clearance,omitempty"`
-	Words              string `json:"words"`
+	NextNeedsClearance bool `json:"next_needs_clearance,omitempty"`
+	// Age is the age the caps are computed from (AgeOn), 0 when the
+	// fighter's birth year is not recorded; HRMaxBpm is 220 − age and
+	// EarlyCapsBpm the caps of the early (aerobic) steps, light then
+	// moderate, in bpm.
+	Age          int       `json:"age,omitempty"`
+	HRMaxBpm     float64   `json:"hr_max_bpm,omitempty"`
+	EarlyCapsBpm []float64 `json:"early_caps_bpm,omitempty"`
+	// Until is what ends the stand-down whatever the step: the same words
+	// as the stand-down's.
+	Until string `json:"until"`
+	Words string `json:"words"`
 }
+
+// UntilCleared is what ends every stand-down, whatever the ladder says.
+const UntilCleared = "cleared in writing by a doctor"
 
 // Build is the ladder (caps in words are rounded down, so the number a
 // coach reads is never above the cap) from an incident's logged steps and the fighter's
@@ -169,10 +187,14 @@ func Build(steps []LoggedStep, age int) Ladder {
 		}
 	}
 	sort.SliceStable(seq, func(i, j int) bool { return seq[i].t.Before(seq[j].t) })
-	l := Ladder{Next: 1}
+	l := Ladder{Next: 1, Until: UntilCleared}
+	if age > 0 {
+		l.Age, l.HRMaxBpm, l.EarlyCapsBpm = age, HRMaxAgePredicted(age), CapsBpm(2, age)
+	}
 	if len(seq) > 0 {
 		last := seq[len(seq)-1]
 		l.Current, l.CurrentAt = last.Step, last.At
+		l.CurrentName = Steps[last.Step-1].Name
 		l.Next = last.Step + 1
 		if l.Next > len(Steps) {
 			l.Next = 0
@@ -181,6 +203,7 @@ func Build(steps []LoggedStep, age int) Ladder {
 		}
 	}
 	if l.Next > 0 {
+		l.NextName = Steps[l.Next-1].Name
 		if age > 0 {
 			l.NextCapsBpm = CapsBpm(l.Next, age)
 		}
@@ -204,6 +227,10 @@ func Build(steps []LoggedStep, age int) Ladder {
 			l.Words += ", and only with a written clearance by a doctor"
 		}
 		l.Words += "."
+	}
+	if l.Next > 0 && l.Next != 2 && len(l.EarlyCapsBpm) == 2 {
+		l.Words += fmt.Sprintf(" Early steps: heart rate up to %.0f bpm (light), %.0f bpm (moderate), from 220 − age %d.",
+			math.Floor(l.EarlyCapsBpm[0]), math.Floor(l.EarlyCapsBpm[1]), l.Age)
 	}
 	return l
 }
