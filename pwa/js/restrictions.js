@@ -4,7 +4,9 @@
 // that sets its length, the earliest day it can end, and that only a
 // doctor's written clearance ends it. The hub decides what is running;
 // this module only words it.
-import { html } from './ui.js';
+import { html, useState, useEffect, useVersion } from './ui.js';
+import { getMeta } from './db.js';
+import { localDay } from './record.js';
 
 export const UNTIL = 'cleared in writing by a doctor';
 
@@ -40,7 +42,7 @@ function fromFlag(f) {
     return {
       athlete: f.athlete, incident: r.incident || (f.inputs || [])[0] || '', type: r.incident_type || '',
       started_day: r.started_day || '', started_at: r.started_at || '', rule: r.rule || '',
-      earliest_end: r.earliest_end || '', until: r.until || UNTIL,
+      earliest_end: r.earliest_end || '', until: r.until || UNTIL, rts: r.rts && typeof r.rts === 'object' ? r.rts : null,
     };
   }
   const why = f.reason || '';
@@ -50,7 +52,7 @@ function fromFlag(f) {
   return {
     athlete: f.athlete, incident: (f.inputs || [])[0] || '', type, started_day: m ? m[2] : '', started_at: '',
     rule: f.threshold ? `${incidentWords(type)}: at least ${f.threshold} days` : `${incidentWords(type)}: treated as a suspected concussion`,
-    earliest_end: end ? end[1] : '', until: UNTIL,
+    earliest_end: end ? end[1] : '', until: UNTIL, rts: null,
   };
 }
 
@@ -75,6 +77,36 @@ export function restrictionsOf(flags) {
   return out.sort((a, b) => (a.athlete < b.athlete ? -1 : a.athlete > b.athlete ? 1 : (a.started_day || '').localeCompare(b.started_day || '')));
 }
 
+// stampWords: "Sun 29 Nov 2026 at 10:00", the day and wall-clock time an
+// RFC 3339 stamp names, as written.
+function stampWords(at) {
+  const d = (at || '').slice(0, 10);
+  if (!isDay(d)) return '';
+  return `${dayWords(d)}${clockOf(at) ? ` at ${clockOf(at)}` : ''}`;
+}
+
+// rtsWords: the return to sport that goes with a stand-down, from the
+// numbers the hub computed (medical.Build): the last step and when, the
+// next step and the earliest time it may be taken, and the early steps'
+// heart-rate caps from the fighter's age (Patricios et al. 2023). Caps are
+// read rounded down, so the number read is never above the cap.
+export function rtsWords(l) {
+  if (!l || typeof l !== 'object') return null;
+  const done = l.current > 0
+    ? `step ${l.current} of 6 (${l.current_name || 'step ' + l.current}) done ${stampWords(l.current_at)}`
+    : 'not started';
+  let next = 'all six steps done';
+  if (l.next > 0) {
+    next = `next: step ${l.next} (${l.next_name || 'step ' + l.next})`;
+    if (l.next_from) next += `, not before ${stampWords(l.next_from)}`;
+    if (l.next_needs_clearance) next += ', only with a written clearance by a doctor';
+  }
+  const caps = Array.isArray(l.early_caps_bpm) && l.early_caps_bpm.length === 2
+    ? `Early steps: heart rate up to ${Math.floor(l.early_caps_bpm[0])} bpm (light), ${Math.floor(l.early_caps_bpm[1])} bpm (moderate), from 220 − age ${l.age}`
+    : "Early steps' heart-rate caps need the fighter's birth year (camp set-up)";
+  return { done: `Return to sport: ${done}`, next, caps: l.next > 0 ? caps : '' };
+}
+
 // restrictionLines: the words of one stand-down, for screen and paper.
 export function restrictionLines(r, day) {
   const start = `${incidentWords(r.type)} on ${dayWords(r.started_day)}${clockOf(r.started_at) ? ` at ${clockOf(r.started_at)}` : ''}`;
@@ -85,7 +117,7 @@ export function restrictionLines(r, day) {
   }
   const end = r.earliest_end ? `not before ${dayWords(r.earliest_end)}` : 'no earliest day: only the clearance ends it';
   const until = (r.until || UNTIL).replace(/^until\s+/i, '');
-  return { start, since, rule: r.rule, end, until: `Until ${until}` };
+  return { start, since, rule: r.rule, end, until: `Until ${until}`, rts: rtsWords(r.rts) };
 }
 
 // RestrictionStrip: the running stand-downs above everything else on a
@@ -98,7 +130,68 @@ export function RestrictionStrip({ list, names, day, testid, compact }) {
       return html`<div class="restriction" data-testid="restriction" data-athlete=${r.athlete} data-incident=${r.incident}>
         <p class="rx-head"><span class="rx-mark" aria-hidden="true"></span><strong>${names[r.athlete] || 'A fighter'}: stand-down — no sparring or contact</strong></p>
         <p class="rx-body"><span data-testid="restriction-start">${w.start}${w.since ? ` (${w.since})` : ''}</span>${' · '}<span data-testid="restriction-rule">Rule: ${w.rule}</span>${' · '}<span data-testid="restriction-end">Earliest end: ${w.end}</span>${' · '}<strong data-testid="restriction-until">${w.until}.</strong></p>
+        ${w.rts && html`<p class="rx-rts" data-testid="restriction-rts"><span data-testid="restriction-rts-done">${w.rts.done}</span>${' · '}<span data-testid="restriction-rts-next">${w.rts.next}</span>${w.rts.caps && html`${' · '}<span data-testid="restriction-rts-caps">${w.rts.caps}</span>`}.</p>`}
       </div>`;
     })}
   </section>`;
+}
+
+// useOwnStandDowns: on an athlete's phone, the fighter's own stand-downs in
+// force today as the hub computed them (GET /api/flags answers an
+// athlete's device with its own athlete's flags only), fetched again when
+// entries arrive. The last answer is kept on the phone, so the strip still
+// shows offline, saying which day the hub last reported. ready turns true
+// once an answer or the kept copy is in hand, or the hub has not answered
+// within WAIT_MS, so the screen first renders with its strip in place.
+// role is this device's role (null while unknown); other roles need none.
+const OWN_KEY = 'cb.own-standdowns';
+const WAIT_MS = 2500;
+export function useOwnStandDowns(role) {
+  const v = useVersion();
+  const [st, setSt] = useState({ ready: false, list: [], names: {}, day: '', failed: false });
+  useEffect(() => {
+    if (role === null || role === undefined) return undefined; // not known yet
+    if (role !== 'athlete') {
+      setSt((o) => (o.ready ? o : { ...o, ready: true }));
+      return undefined;
+    }
+    let alive = true;
+    setSt((o) => {
+      if (o.ready) return o;
+      try {
+        const c = JSON.parse(localStorage.getItem(OWN_KEY) || 'null');
+        if (c && Array.isArray(c.list)) return { ready: true, list: c.list, names: c.names || {}, day: c.day || '', failed: false };
+      } catch (_) { /* no kept copy */ }
+      return o;
+    });
+    const timer = setTimeout(() => { if (alive) setSt((o) => (o.ready ? o : { ...o, ready: true })); }, WAIT_MS);
+    (async () => {
+      try {
+        const token = await getMeta('token');
+        const headers = { Accept: 'application/json' };
+        if (token) headers.Authorization = `Bearer ${token}`;
+        const res = await fetch(`/api/flags?day=${localDay()}`, { headers, cache: 'no-store' });
+        if (!res.ok) throw new Error(`the hub answered ${res.status}`);
+        const data = await res.json();
+        const names = {};
+        for (const a of data.athletes || []) names[a.id] = a.name;
+        const got = { list: restrictionsOf(data.flags), names, day: data.day || localDay() };
+        try { localStorage.setItem(OWN_KEY, JSON.stringify(got)); } catch (_) { /* not kept */ }
+        if (alive) setSt({ ready: true, failed: false, ...got });
+      } catch (_) {
+        if (alive) setSt((o) => ({ ...o, ready: true, failed: true }));
+      }
+    })();
+    return () => { alive = false; clearTimeout(timer); };
+  }, [role, v]);
+  return st;
+}
+
+// OwnStandDowns: the athlete's own strip (nothing when none runs).
+export function OwnStandDowns({ st }) {
+  if (!st.list.length) return null;
+  return html`<div data-testid="home-standdowns">
+    <${RestrictionStrip} list=${st.list} names=${st.names} day=${st.day} testid="home-restrictions" />
+    ${st.failed && html`<p class="muted small" data-testid="home-standdowns-copy">As the hub last reported it (${dayWords(st.day)}); the hub cannot be reached now.</p>`}
+  </div>`;
 }

@@ -7,6 +7,7 @@ import { save, getRecord, byKind, byAthleteDay, getMeta } from './db.js';
 import { VOCAB } from './vocab.js';
 import { checkBody, fieldOf } from './checks.js';
 import { localDay, toKg, fromKg, roundTo, parseNum } from './record.js';
+import { useOwnStandDowns, OwnStandDowns } from './restrictions.js';
 
 
 // useEditing loads the record named by ?edit=, if any.
@@ -49,7 +50,8 @@ export function Home() {
   const role = useAsync(() => getMeta('role').then((r) => r || ''), [], null);
   const Glance = useAsync(() => (role !== null && role !== 'athlete' ? import('./coach/glance.js').then((m) => ({ C: m.CampGlance })) : Promise.resolve(null)), [role], null);
   const pick = (id) => { setPicked(id); setP(id); };
-  if (role === null || list === null) return html`<section data-testid="screen-home" data-ready="false"><p class="muted">Loading…</p></section>`;
+  const own = useOwnStandDowns(role);
+  if (role === null || list === null || !own.ready) return html`<section data-testid="screen-home" data-ready="false"><p class="muted">Loading…</p></section>`;
   const coach = role !== 'athlete';
   const picker = !list.length ? html`<${NoAthletes} />` : html`
       <div class="chips" data-testid="athlete-picker" role="group" aria-label="Athlete">
@@ -69,6 +71,7 @@ export function Home() {
     </section>`;
   }
   return html`<section data-testid="screen-home" data-ready="true" data-home="athlete">
+    <${OwnStandDowns} st=${own} />
     <h1>Who is logging?</h1>
     ${picker}
     <h2>Log</h2>
