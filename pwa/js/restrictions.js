@@ -127,10 +127,13 @@ export function RestrictionStrip({ list, names, day, testid, compact }) {
   return html`<section class=${`restrictions${compact ? ' compact' : ''}`} data-testid=${testid} aria-label="Stand-downs in force">
     ${list.map((r) => {
       const w = restrictionLines(r, day);
+      // The return to sport: its own line on screen; on the wall sheet
+      // (compact) it runs on in the same paragraph, to keep to one page.
+      const rts = w.rts && html`<${compact ? 'span' : 'p'} class="rx-rts" data-testid="restriction-rts">${compact ? ' ' : ''}<span data-testid="restriction-rts-done">${w.rts.done}</span>${' · '}<span data-testid="restriction-rts-next">${w.rts.next}</span>${w.rts.caps && html`${' · '}<span data-testid="restriction-rts-caps">${w.rts.caps}</span>`}.</${compact ? 'span' : 'p'}>`;
       return html`<div class="restriction" data-testid="restriction" data-athlete=${r.athlete} data-incident=${r.incident}>
         <p class="rx-head"><span class="rx-mark" aria-hidden="true"></span><strong>${names[r.athlete] || 'A fighter'}: stand-down — no sparring or contact</strong></p>
-        <p class="rx-body"><span data-testid="restriction-start">${w.start}${w.since ? ` (${w.since})` : ''}</span>${' · '}<span data-testid="restriction-rule">Rule: ${w.rule}</span>${' · '}<span data-testid="restriction-end">Earliest end: ${w.end}</span>${' · '}<strong data-testid="restriction-until">${w.until}.</strong></p>
-        ${w.rts && html`<p class="rx-rts" data-testid="restriction-rts"><span data-testid="restriction-rts-done">${w.rts.done}</span>${' · '}<span data-testid="restriction-rts-next">${w.rts.next}</span>${w.rts.caps && html`${' · '}<span data-testid="restriction-rts-caps">${w.rts.caps}</span>`}.</p>`}
+        <p class="rx-body"><span data-testid="restriction-start">${w.start}${w.since ? ` (${w.since})` : ''}</span>${' · '}<span data-testid="restriction-rule">Rule: ${w.rule}</span>${' · '}<span data-testid="restriction-end">Earliest end: ${w.end}</span>${' · '}<strong data-testid="restriction-until">${w.until}.</strong>${compact && rts}</p>
+        ${!compact && rts}
       </div>`;
     })}
   </section>`;

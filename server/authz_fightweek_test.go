@@ -1,0 +1,78 @@
+package server_test
+
+import (
+	"encoding/json"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+// TestAuthorization_FightWeekAndMedical: the fight-week, stand-down and
+// preset routes for every caller — the coach, staff, an athlete's own
+// phone, another athlete's phone, a revoked phone and a device never
+// paired. Coach and staff read every fighter; an athlete's phone reads
+// only its own fighter's fight week and stand-downs (403 for another's,
+// and 403 too for an id that names no athlete, so a phone cannot probe
+// which ids exist); the presets are the published rule sets, readable by
+// any paired device; nothing without a valid pass (401).
+func TestAuthorization_FightWeekAndMedical(t *testing.T) {
+	c := newCampHub(t)
+	a, b := c.athleteA.ID, c.athleteB.ID
+	const nobody = "01900000-0000-7000-8000-000000000000"
+	roles := []string{"coach", "staff", "athleteA", "athleteB", "revoked", "none"}
+	all := func(coach, staff, own, other int) map[string]int {
+		return map[string]int{"coach": coach, "staff": staff, "athleteA": own, "athleteB": other, "revoked": 401, "none": 401}
+	}
+	routes := []struct {
+		path string
+		want map[string]int
+	}{
+		{"/api/athletes/" + a + "/fightweek", all(200, 200, 200, 403)},
+		{"/api/athletes/" + a + "/fightweek?day=2026-11-20", all(200, 200, 200, 403)},
+		{"/api/athletes/" + b + "/fightweek", all(200, 200, 403, 200)},
+		{"/api/athletes/" + nobody + "/fightweek", all(404, 404, 403, 403)},
+		{"/api/athletes/" + a + "/fightweek?day=20-11-2026", all(400, 400, 400, 403)},
+		{"/api/athletes/" + a + "/medical", all(200, 200, 200, 403)},
+		{"/api/athletes/" + a + "/medical?day=2026-11-20", all(200, 200, 200, 403)},
+		{"/api/athletes/" + b + "/medical", all(200, 200, 403, 200)},
+		{"/api/athletes/" + nobody + "/medical", all(404, 404, 403, 403)},
+		{"/api/athletes/" + a + "/medical?day=yesterday", all(400, 400, 400, 403)},
+		{"/api/fightweek/presets", all(200, 200, 200, 200)},
+	}
+	for _, rt := range routes {
+		for _, role := range roles {
+			st, out := c.do(role, "GET", rt.path, nil)
+			assert.Equal(t, rt.want[role], st, "GET %s as %s: %s", rt.path, role, truncate(out))
+		}
+	}
+
+	// What an athlete's phone is answered is its own fighter's, by name.
+	for _, tc := range []struct{ as, id, name string }{{"athleteA", a, "Athlete A"}, {"athleteB", b, "Athlete B"}} {
+		st, out := c.do(tc.as, "GET", "/api/athletes/"+tc.id+"/fightweek", nil)
+		require.Equal(t, 200, st)
+		var fw struct{ Athlete, Name string }
+		require.NoError(t, json.Unmarshal(out, &fw))
+		assert.Equal(t, tc.id, fw.Athlete)
+		assert.Equal(t, tc.name, fw.Name)
+		st, out = c.do(tc.as, "GET", "/api/athletes/"+tc.id+"/medical", nil)
+		require.Equal(t, 200, st)
+		var med struct{ Athlete string }
+		require.NoError(t, json.Unmarshal(out, &med))
+		assert.Equal(t, tc.id, med.Athlete)
+	}
+	// A refusal names the field and says why, in words.
+	_, out := c.do("athleteA", "GET", "/api/athletes/"+b+"/medical", nil)
+	var e struct{ Code, Field, Reason string }
+	require.NoError(t, json.Unmarshal(out, &e))
+	assert.Equal(t, "FORBIDDEN", e.Code)
+	assert.Equal(t, "id", e.Field)
+	assert.Contains(t, e.Reason, "its own athlete")
+	// Only reads: the routes take no writes from anyone.
+	for _, p := range []string{"/api/athletes/" + a + "/fightweek", "/api/athletes/" + a + "/medical", "/api/fightweek/presets"} {
+		for _, role := range roles {
+			st, _ := c.do(role, "POST", p, map[string]any{})
+			assert.Contains(t, []int{401, 404, 405}, st, "POST %s as %s", p, role)
+		}
+	}
+}
