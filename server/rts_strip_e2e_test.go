@@ -181,3 +181,36 @@ func TestStandDownShowsItsReturnToSport(t *testing.T) {
 	require.NoError(t, pwatest.Eval(phone, `document.querySelector('#screen').innerText`, &body))
 	assert.False(t, strings.Contains(body, "Sami"), "another fighter's name on Mateo's phone")
 }
+
+// TestAthletePhoneSeesOwnFightWeek: on Sami's own phone (360 × 740) the
+// fight-week view is Sami's — day by day to the bout, the check weights,
+// the hours to the bout, the cautions — with no choice of fighter and no
+// weigh-in form (a coach's or staff's entry); asking it for another
+// fighter still shows Sami's own, and nothing of the other fighter's.
+func TestAthletePhoneSeesOwnFightWeek(t *testing.T) {
+	h, accounts := startDemoPairingHub(t)
+	ids := h.ids()
+	sami, mateo := ids["Sami Arkwright"], ids["Mateo Lindqvist"]
+	phone := athletePhone(t, h, accounts, sami, "Sami")
+	for _, path := range []string{"/fightweek", "/fightweek?athlete=" + mateo} {
+		require.NoError(t, pwatest.Route(phone, path))
+		require.NoError(t, pwatest.Poll(phone, `document.querySelector('[data-testid="screen-fightweek"][data-ready="true"]') && document.querySelectorAll('[data-testid="fw-day"]').length >= 8`, 20*time.Second), path)
+		var screen string
+		require.NoError(t, pwatest.Eval(phone, `document.querySelector('#screen').innerText`, &screen))
+		assert.Contains(t, screen, "Fight week — Sami Arkwright", path)
+		assert.NotContains(t, screen, "Mateo", path)
+		assert.NotContains(t, screen, "Stand-down", "%s: Sami has no stand-down; Mateo's is not shown", path)
+		for _, id := range []string{sami, mateo, "check_weights", "over_limit"} {
+			assert.NotContains(t, screen, id, "%s: ids on screen", path)
+		}
+		var parts map[string]bool
+		require.NoError(t, pwatest.Eval(phone, `({ picker: !!document.querySelector('[data-testid="fw-athlete"]'), form: !!document.querySelector('[data-testid="fw-weighin-form"]'),
+			checks: document.querySelectorAll('[data-testid="fw-check"]').length > 0, hours: !!document.querySelector('[data-testid="fw-hours"]'),
+			cautions: !!document.querySelector('[data-testid="fw-cautions"]'), error: !!document.querySelector('[data-testid="fw-error"]'),
+			wide: document.documentElement.scrollWidth > window.innerWidth + 1 })`, &parts))
+		assert.Equal(t, map[string]bool{"picker": false, "form": false, "checks": true, "hours": true, "cautions": true, "error": false, "wide": false}, parts, path)
+		rules, _ := pwatest.Text(phone, "fw-rules")
+		assert.Contains(t, rules, "30 days out ≤ 10 % over the limit", path)
+	}
+	shot(t, phone, filepath.Join(pwatest.ShotDir(t), "fightweek-athlete-phone.png"))
+}

@@ -10,6 +10,7 @@ import { toKg, roundTo, parseNum } from '../record.js';
 import { hubGet, hubPost, getTables } from './api.js';
 import { onStatus } from '../sync.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
+import { BoutRules, usePresets, rulesForm, rulesBody } from './boutrules.js';
 
 const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 'Medium–heavy', heavy: 'Heavy', taper: 'Taper' };
 // The emphases of each group and their words come from the hub's
@@ -81,8 +82,9 @@ function formFromBout(b, units) {
     wi_date: wall.date, wi_time: wall.time, zone,
     weigh_in_type: b.weigh_in_type || 'day_before', weight_class: b.weight_class || (b.limit_kg ? 'custom' : ''),
     limit: b.weight_class === 'custom' || !b.weight_class ? (b.limit_kg ? fmtN(massNum(b.limit_kg, units), 1) : '') : '',
-    start_mass: b.start_mass_kg ? fmtN(massNum(b.start_mass_kg, units), 1) : '', ref_load: b.reference_load_au ? String(b.reference_load_au) : '',
+    start_mass: b.start_mass_kg ? fmtN(massNum(b.start_mass_kg, units), 1) : '', start_mass_kg: b.start_mass_kg, limit_kg: b.limit_kg, ref_load: b.reference_load_au ? String(b.reference_load_au) : '',
     weeks: (b.weeks || []).map(weekForm), knots: (b.path || []).map((k) => ({ day: k.day, mass: fmtN(massNum(k.mass_kg, units), 1) })),
+    bout_time: b.bout_at ? wallClock(b.bout_at, zone).time : '', rules: rulesForm(b.rules), stand_down_sets: b.stand_down_sets || [],
   };
 }
 
@@ -98,7 +100,15 @@ function weekForm(w) {
 
 function blank() {
   const start = addDays(today(), 7);
-  return { name: '', camp_start: start, bout_day: '', wi_date: '', wi_time: '09:00', zone: deviceZone(), weigh_in_type: 'day_before', weight_class: '', limit: '', start_mass: '', ref_load: '', weeks: [], knots: [] };
+  return { name: '', camp_start: start, bout_day: '', wi_date: '', wi_time: '09:00', zone: deviceZone(), weigh_in_type: 'day_before', weight_class: '', limit: '', start_mass: '', ref_load: '', weeks: [], knots: [], bout_time: '', rules: null, stand_down_sets: [] };
+}
+
+// keptKg is a mass typed in the form in kg: the stored value itself while
+// the text still reads as it was shown, so saving a plan never moves a
+// mass nobody touched by a round trip through the displayed decimals.
+function keptKg(text, storedKg, units) {
+  if (storedKg && text === fmtN(massNum(storedKg, units), 1)) return storedKg;
+  return roundTo(toKg(parseNum(text), units), 3);
 }
 
 // bodyFromForm builds the bout body, or lists what is missing.
@@ -113,14 +123,18 @@ function bodyFromForm(f, units) {
     try { b.weigh_in = weighInRFC3339(f.zone, f.wi_date, f.wi_time); b.weigh_in_zone = f.zone; } catch (_) { errs.push(`Weigh-in time zone: "${f.zone}" is not a time zone this device knows (e.g. Europe/Lisbon).`); }
   }
   b.weigh_in_type = f.weigh_in_type;
+  if (f.bout_time && b.weigh_in && b.bout_day) {
+    if (!/^\d{2}:\d{2}$/.test(f.bout_time)) errs.push('Bout start: pick the time the bout starts, or leave it empty.');
+    else b.bout_at = weighInRFC3339(f.zone, b.bout_day, f.bout_time);
+  }
   if (!f.weight_class) errs.push('Weight class: pick a class or "custom limit".');
   else if (f.weight_class === 'custom') {
     const v = parseNum(f.limit);
     if (!Number.isFinite(v)) errs.push(`Custom limit: type the weigh-in limit in ${units}.`);
-    else { b.weight_class = 'custom'; b.limit_kg = roundTo(toKg(v, units), 3); }
+    else { b.weight_class = 'custom'; b.limit_kg = keptKg(f.limit, f.limit_kg, units); }
   } else b.weight_class = f.weight_class;
   const sm = parseNum(f.start_mass);
-  if (!Number.isFinite(sm)) errs.push(`Start mass: type the morning mass at camp start in ${units}.`); else b.start_mass_kg = roundTo(toKg(sm, units), 3);
+  if (!Number.isFinite(sm)) errs.push(`Start mass: type the morning mass at camp start in ${units}.`); else b.start_mass_kg = keptKg(f.start_mass, f.start_mass_kg, units);
   if (f.ref_load !== '') {
     const r = parseNum(f.ref_load);
     if (!Number.isFinite(r) || r < 0) errs.push('Reference weekly load: a number of AU per week (session RPE × minutes, summed over a usual heavy week).');
@@ -151,6 +165,9 @@ function bodyFromForm(f, units) {
     });
     b.path = ks;
   }
+  const rules = rulesBody(f.rules, errs);
+  if (rules) b.rules = rules;
+  if (f.stand_down_sets && f.stand_down_sets.length) b.stand_down_sets = [...f.stand_down_sets];
   return { body: b, errs };
 }
 
@@ -186,6 +203,7 @@ export function Plan() {
   const [f, setF] = useState(blank);
   const [loadedFor, setLoadedFor] = useState('');
   const tables = useAsync(() => getTables().catch(() => null), [], null);
+  const presets = usePresets();
   const [check, setCheck] = useState(null);
   const [state, setState] = useState(null);
   const [gen, setGen] = useState(null);
@@ -292,6 +310,7 @@ export function Plan() {
       </div></div>
       <div><label for="plan-wi-date">Weigh-in date</label><input id="plan-wi-date" type="date" data-testid="plan-wi-date" value=${f.wi_date} onInput=${(e) => set('wi_date', e.target.value)} /></div>
       <div><label for="plan-wi-time">Weigh-in time (venue clock)</label><input id="plan-wi-time" type="time" data-testid="plan-wi-time" value=${f.wi_time} onInput=${(e) => set('wi_time', e.target.value)} /></div>
+      <div><label for="plan-bout-time">Bout start (venue clock, optional)</label><input id="plan-bout-time" type="time" data-testid="plan-bout-time" value=${f.bout_time} onInput=${(e) => set('bout_time', e.target.value)} /></div>
       <div><label for="plan-zone">Venue time zone</label><input id="plan-zone" data-testid="plan-zone" list="plan-zones" value=${f.zone} onInput=${(e) => set('zone', e.target.value.trim())} />
         <datalist id="plan-zones">${zones().map((z) => html`<option value=${z} />`)}</datalist></div>
       <div><label for="plan-class">Weight class</label>
@@ -327,6 +346,9 @@ export function Plan() {
 
     <h2>Checks</h2>
     <${Checks} check=${check} errs=${errs} />
+
+    <h2>Weigh-in and stand-down rules</h2>
+    <${BoutRules} f=${f} set=${set} presets=${presets} />
 
     <button class="primary" type="submit" data-testid="plan-save" disabled=${state && state.saving}>${boutId && boutId !== 'new' ? 'Save the changes' : 'Save the plan'}</button>
     <${SaveLine} state=${state} />
