@@ -11,13 +11,13 @@ import { useOwnStandDowns, OwnStandDowns } from './restrictions.js';
 
 
 // useEditing loads the record named by ?edit=, if any.
-function useEditing(kind) {
+export function useEditing(kind) {
   const id = new URLSearchParams(location.search).get('edit');
   const rec = useAsync(async () => (id ? getRecord(id) : null), [id], null);
   return id ? (rec && rec.kind === kind && !rec.deleted ? rec : (rec === null ? undefined : null)) : null;
 }
 
-function EditNote({ rec }) {
+export function EditNote({ rec }) {
   if (!rec) return null;
   return html`<p class="muted small" data-testid="editing">Correcting the entry of ${rec.day}. The earlier version is kept in the hub's history.</p>`;
 }

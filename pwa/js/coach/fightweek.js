@@ -4,9 +4,10 @@
 // caps, the official weigh-in, the hours to the bout and the regain. A
 // stand-down in force comes first, with its return-to-sport steps. Coach
 // and staff log weigh-ins here; an athlete's phone shows its own week.
-import { html, useState, useEffect, useAthletes, Link, SaveLine, savedState, Choice } from '../ui.js';
+import { html, useState, useEffect, useRef, useAthletes, Link, SaveLine, savedState, Choice } from '../ui.js';
 import { save, getMeta } from '../db.js';
-import { toKg, parseNum, localDay } from '../record.js';
+import { toKg, fromKg, roundTo, parseNum, localDay } from '../record.js';
+import { useEditing, EditNote } from '../screens.js';
 import { hubGet, remember, recall, onData } from './api.js';
 import { mass, fmtN, query, shortDay, isDay } from './common.js';
 
@@ -80,13 +81,29 @@ export function StandDowns({ med, units }) {
     </div>`)}</div>`;
 }
 
-function WeighInForm({ athlete, units, onSaved }) {
+// WeighInForm logs a weigh-in, or corrects one (editing: the record opened
+// from Today, its values in the form).
+function WeighInForm({ athlete, units, onSaved, editing }) {
   const [type, setType] = useState('check');
   const [massText, setMass] = useState('');
   const [date, setDate] = useState(localDay());
   const [time, setTime] = useState('09:00');
   const [offset, setOffset] = useState(localOffset());
   const [state, setState] = useState(null);
+  const prefilled = useRef('');
+  const shown = (kg) => fromKg(kg, units).toFixed(1);
+  useEffect(() => {
+    // Prefill once per corrected weigh-in: later syncs never overwrite typing.
+    if (!editing || prefilled.current === editing.id) return;
+    prefilled.current = editing.id;
+    const b = editing.body || {};
+    setType(b.type || 'check');
+    setMass(b.mass_kg != null ? shown(b.mass_kg) : '');
+    setDate(editing.at.slice(0, 10));
+    setTime(editing.at.slice(11, 16));
+    const off = editing.at.slice(19);
+    setOffset(off === 'Z' || off === '' ? '+00:00' : off);
+  }, [editing]);
   const submit = async (e) => {
     e.preventDefault();
     const m = parseNum(massText);
@@ -94,14 +111,31 @@ function WeighInForm({ athlete, units, onSaved }) {
     if (!/^[+-]\d\d:\d\d$/.test(offset)) return setState({ error: 'Type the venue\'s offset from UTC, e.g. -07:00 or +01:00.' });
     setState({ saving: true });
     try {
+      if (editing) {
+        const b = editing.body || {};
+        // A mass still reading as it was shown keeps its stored value; the
+        // time keeps its seconds unless the day, time or offset changed.
+        const massKg = b.mass_kg != null && massText === shown(b.mass_kg) ? b.mass_kg : roundTo(toKg(m, units), 3);
+        const off = editing.at.slice(19) === 'Z' ? '+00:00' : editing.at.slice(19);
+        const same = editing.at.slice(0, 10) === date && editing.at.slice(11, 16) === time && off === offset;
+        const body = { ...b, type, mass_kg: massKg };
+        // "made" is derived by the hub when absent: kept only if nothing it depends on changed.
+        if (massKg !== b.mass_kg || type !== b.type) delete body.made;
+        await save({ id: editing.id, kind: 'weigh_in', athlete: athlete.id, day: date, at: same ? editing.at : `${date}T${time}:00${offset}`, body });
+        setState(savedState('Correction saved on this device'));
+        onSaved();
+        return undefined;
+      }
       await save({ kind: 'weigh_in', athlete: athlete.id, day: date, at: `${date}T${time}:00${offset}`, body: { type, mass_kg: toKg(m, units) } });
       setState(savedState('Saved on this phone'));
       setMass('');
       onSaved();
     } catch (err) { setState({ error: `Not saved: ${err.message}` }); }
+    return undefined;
   };
-  return html`<form class="card no-print" onSubmit=${submit} data-testid="fw-weighin-form" novalidate>
-    <h2>Log a weigh-in</h2>
+  return html`<form class="card no-print" onSubmit=${submit} data-testid="fw-weighin-form" data-editing=${editing ? editing.id : ''} novalidate>
+    <h2>${editing ? 'Correct a weigh-in' : 'Log a weigh-in'}</h2>
+    <${EditNote} rec=${editing} />
     <div class="row" role="group" aria-label="Weigh-in">
       ${TYPES.map(([v, l]) => html`<${Choice} value=${v} current=${type} onPick=${setType} testid=${`fw-type-${v}`}>${l}</${Choice}>`)}
     </div>
@@ -115,7 +149,7 @@ function WeighInForm({ athlete, units, onSaved }) {
       <div class="field narrow"><label for="fw-offset">Venue's offset from UTC</label>
         <input id="fw-offset" data-testid="fw-offset" value=${offset} onInput=${(e) => setOffset(e.target.value.trim())} /></div>
     </div>
-    <button class="primary" type="submit" data-testid="fw-save" disabled=${state && state.saving}>Save weigh-in</button>
+    <button class="primary" type="submit" data-testid="fw-save" disabled=${state && state.saving}>${editing ? 'Save correction' : 'Save weigh-in'}</button>
     <${SaveLine} state=${state} />
   </form>`;
 }
@@ -127,10 +161,14 @@ export function FightWeek() {
   const [own, setOwn] = useState('');
   useEffect(() => { Promise.all([getMeta('role'), getMeta('athlete')]).then(([r, a]) => { setRole(r || 'coach'); setOwn(a || ''); }); }, []);
   const [id, setId] = useState(p.get('athlete') || '');
+  // Correcting a weigh-in from Today opens its fighter and the form with
+  // its values, first on the screen.
+  const editing = useEditing('weigh_in');
+  useEffect(() => { if (editing && editing.athlete !== id) setId(editing.athlete); }, [editing]);
   const [v, setV] = useState(0);
   useEffect(() => onData(() => setV((x) => x + 1), 400), []);
   const athleteID = role === 'athlete' && own ? own : id;
-  useEffect(() => { if (role && role !== 'athlete') history.replaceState(null, '', query('/fightweek', { athlete: id, day })); }, [id, role]);
+  useEffect(() => { if (role && role !== 'athlete') history.replaceState(null, '', query('/fightweek', { athlete: id, day, edit: new URLSearchParams(location.search).get('edit') || '' })); }, [id, role]);
   const a = (list || []).find((x) => x.id === athleteID);
   const day = isDay(p.get('day')) ? p.get('day') : '';
   const st = useFightWeek(athleteID, day, v);
@@ -152,9 +190,10 @@ export function FightWeek() {
     ${st.error && html`<p class="error" data-testid="fw-error">${fw ? `Showing the last copy: ${st.error}.` : `No fight week: ${st.error}. It is computed by the hub and appears once the hub can be reached.`}</p>`}
     ${athleteID && !st.loaded && html`<p class="muted" data-testid="fw-loading">Loading…</p>`}
     ${fw && html`<${StandDowns} med=${st.med} units=${units} />`}
+    ${editing && a && role && role !== 'athlete' && html`<${WeighInForm} athlete=${a} units=${units} editing=${editing} onSaved=${() => setV((x) => x + 1)} />`}
     ${fw && !fw.bout && html`<p data-testid="fw-nobout">No bout is planned for this fighter.</p>`}
     ${fw && fw.bout && html`<${Week} fw=${fw} units=${units} />`}
-    ${fw && fw.bout && a && role && role !== 'athlete' && html`<${WeighInForm} athlete=${a} units=${units} onSaved=${() => setV((x) => x + 1)} />`}
+    ${fw && fw.bout && a && role && role !== 'athlete' && !editing && html`<${WeighInForm} athlete=${a} units=${units} onSaved=${() => setV((x) => x + 1)} />`}
     ${fw && html`<div class="card muted small" data-testid="fw-cautions">${fw.cautions.map((c) => html`<p>${c}</p>`)}</div>`}
   </section>`;
 }
