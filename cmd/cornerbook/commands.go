@@ -160,6 +160,9 @@ func writeFlagsText(w io.Writer, fl []flags.Flag, names map[string]string) {
 				end = "not before " + r.EarliestEnd
 			}
 			fmt.Fprintf(w, "%-19s  Since %s. %s; %s; until %s.\n", "", r.StartedDay, r.Rule, end, r.Until)
+			if r.RTS != nil {
+				fmt.Fprintf(w, "%-19s  %s\n", "", r.RTS.Words)
+			}
 		}
 		if d := f.Decision; d != nil {
 			who := ""

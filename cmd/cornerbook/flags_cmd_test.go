@@ -50,6 +50,8 @@ func TestCommands_FlagsInWords(t *testing.T) {
 	assert.Contains(t, out, "Ivo Testa — Stand-down after a head knock")
 	assert.Contains(t, out, "Head knock: treated as suspected concussion")
 	assert.Contains(t, out, "until cleared in writing by a doctor")
+	// With the stand-down, its return to sport (Patricios et al. 2023: six steps).
+	assert.Contains(t, out, "Return to sport: step 1 of 6 (Symptom-limited daily activity) not started.")
 	assert.Regexp(t, `\nAct today +Ivo Testa — Sparring during a stand-down\n`, out)
 	assert.Contains(t, out, "1 sparring round logged on 2026-11-03 during a stand-down", "the round before the knock is not counted")
 	assert.Contains(t, out, "Decision for the whole day (S&C coach): no contact, bike session only")
