@@ -82,7 +82,7 @@ const VocabPath = "js/vocab.js"
 // levels and refusal words of every record kind, generated from
 // records.Vocab. The app never keeps a copy of its own.
 func Vocab() []byte {
-	j, err := json.MarshalIndent(records.Vocab(), "", " ")
+	j, err := json.Marshal(records.Vocab())
 	if err != nil {
 		panic("pwa: vocabulary: " + err.Error()) // fixed Go data; tests cover it
 	}

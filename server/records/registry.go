@@ -1,7 +1,6 @@
 package records
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"reflect"
@@ -578,9 +577,8 @@ type Vocabulary struct {
 	Levels         []string   `json:"levels"`
 	// Emphases are the training emphases a plan week and a session's
 	// focus name, in the product's words.
-	Emphases []EmphasisDef     `json:"emphases"`
-	CR10     []Anchor          `json:"cr10"`
-	Cases    map[string][]Case `json:"cases"`
+	Emphases []EmphasisDef `json:"emphases"`
+	CR10     []Anchor      `json:"cr10"`
 	// Limits are the numbers the checks of one field against another use.
 	Limits map[string]float64 `json:"limits"`
 	// StandDownSets are the ids a bout's stand_down_sets may name.
@@ -594,21 +592,24 @@ type Vocabulary struct {
 
 // VocabKind is one kind as the app sees it.
 type VocabKind struct {
-	Label   string          `json:"label"`
-	Plural  string          `json:"plural"`
-	Writers []string        `json:"writers"`
-	Scope   Scope           `json:"scope"`
-	Dated   bool            `json:"dated"`
-	Screen  string          `json:"screen,omitempty"`
-	Fields  []Field         `json:"fields"`
-	Example json.RawMessage `json:"example"`
+	Label   string   `json:"label"`
+	Plural  string   `json:"plural"`
+	Writers []string `json:"writers"`
+	Scope   Scope    `json:"scope"`
+	Dated   bool     `json:"dated"`
+	Screen  string   `json:"screen,omitempty"`
+	Fields  []Field  `json:"fields"`
 }
+
+// The registry's examples and cases are not part of the vocabulary: they
+// feed the tests that hold the app to the hub (the generated probes),
+// which read the registry itself, and a phone has no use for them.
 
 // Vocab builds the app's vocabulary from the registry.
 func Vocab() Vocabulary {
 	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, InvisibleWords: InvisibleWords, MinYear: MinYear,
 		MaxNameLen: MaxNameLen, MaxNoteLen: MaxNoteLen, Protocols: Protocols, Modalities: ModalityOptions,
-		Levels: Levels, Emphases: Emphases, CR10: CR10, Cases: map[string][]Case{},
+		Levels: Levels, Emphases: Emphases, CR10: CR10,
 		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
 			"max_emphasis_ids": MaxEmphasisIDs, "max_travel_hours": MaxTravelHours,
 			"max_check_days": MaxCheckDays, "max_over_limit_pct": MaxOverLimitPct, "max_fight_day_lb": MaxFightDayLb,
@@ -625,11 +626,8 @@ func Vocab() Vocabulary {
 			w = []string{}
 		}
 		v.Kinds[k.Name] = VocabKind{Label: k.Label, Plural: k.Plural, Writers: w, Scope: k.Scope, Dated: k.Dated, Screen: k.Screen,
-			Fields: k.Fields, Example: json.RawMessage(k.Example)}
+			Fields: k.Fields}
 		v.Order = append(v.Order, k.Name)
-		if len(k.Cases) > 0 {
-			v.Cases[k.Name] = k.Cases
-		}
 	}
 	return v
 }
