@@ -155,7 +155,7 @@ func TestBuildHashFollowsContent(t *testing.T) {
 	h1again, _, _ := hashFS(a, "tmpl")
 	assert.Equal(t, h1, h1again, "same content, same hash")
 
-	a["js/main.js"] = &fstest.MapFile{Data: []byte("export { x }")}
+	a["js/main.js"] = &fstest.MapFile{Data: []byte("export const x = 1")}
 	h2, _, _ := hashFS(a, "tmpl")
 	assert.NotEqual(t, h1, h2, "a changed file changes the hash")
 
@@ -277,4 +277,21 @@ func withGeneratedApp(t *testing.T) fs.FS {
 	fsys, err := withGenerated(app)
 	require.NoError(t, err)
 	return fsys
+}
+
+// TestScriptsServedMinified: a script is served without its comments and
+// spacing, names kept; one that does not parse stops the build with its
+// file and line instead of reaching a phone.
+func TestScriptsServedMinified(t *testing.T) {
+	src, err := fs.ReadFile(app, "js/sync.js")
+	require.NoError(t, err)
+	served := load().assets["/js/sync.js"].body
+	assert.Contains(t, string(src), "// The sync loop")
+	assert.NotContains(t, string(served), "// The sync loop", "comments are left out")
+	assert.Contains(t, string(served), "function pushAlongside(", "names stay as written")
+	assert.Less(t, len(served), len(src)*8/10)
+
+	_, err = build(fstest.MapFS{"index.html": {Data: []byte("<p>x</p>")}, "js/main.js": {Data: []byte("export const a = 1;\nconst = 2;\n")}}, "x")
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "js/main.js:2")
 }
