@@ -62,13 +62,34 @@ type bundle struct {
 	sw     *asset
 }
 
-func load() *bundle {
-	once.Do(func() {
+// The generated tree (the embedded files and the vocabulary) and its hash
+// are cheap and made apart from the bundle, so the hub's status answers
+// with the build's hash before the scripts are minified and compressed.
+var (
+	genOnce  sync.Once
+	genFS    fs.FS
+	hashOnce sync.Once
+	hash     string
+)
+
+func generated() fs.FS {
+	genOnce.Do(func() {
 		fsys, err := withGenerated(app)
 		if err != nil {
 			panic("pwa: " + err.Error())
 		}
-		b, err := build(fsys, swTemplate)
+		genFS = fsys
+	})
+	return genFS
+}
+
+// Prepare builds the bundle in the background, so the hub's first answer
+// does not wait for it; the first request for a file waits if it must.
+func Prepare() { go load() }
+
+func load() *bundle {
+	once.Do(func() {
+		b, err := build(generated(), swTemplate)
 		if err != nil {
 			panic("pwa: " + err.Error()) // the embedded tree is fixed at compile time; tests cover it
 		}
@@ -121,7 +142,16 @@ func withGenerated(base fs.FS) (fs.FS, error) {
 // BuildHash identifies this build of the app: a SHA-256 over every embedded
 // file's path and bytes and the service-worker template, shortened to 16
 // hex digits. It names the service worker's cache.
-func BuildHash() string { return load().hash }
+func BuildHash() string {
+	hashOnce.Do(func() {
+		h, _, err := hashFS(generated(), swTemplate)
+		if err != nil {
+			panic("pwa: " + err.Error()) // the embedded tree is fixed at compile time; tests cover it
+		}
+		hash = h
+	})
+	return hash
+}
 
 // Files is the service worker's precache list: the URL path of every shell
 // file fetched at install, sorted.
@@ -419,7 +449,9 @@ func mimeOf(p string) string {
 
 // Handler serves the app. Mount it under "/" after the /api routes: it
 // answers /api/* with 404 so a missing API route never returns the app.
-func Handler() http.Handler { return load().handler() }
+func Handler() http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) { load().handler().ServeHTTP(w, r) })
+}
 
 func (b *bundle) handler() http.Handler {
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {

@@ -135,6 +135,7 @@ func New(cfg Config) (*Server, error) {
 	s.hub.seq.Store(seq)
 	s.clock.Restore(devsync.HLC{L: s.now().UnixMilli()})
 	s.flags = newFlagService(s)
+	pwa.Prepare() // the app's files are built while the hub starts answering
 	s.stop = make(chan struct{})
 	s.flags.work.Add(1)
 	go func() {
