@@ -3,6 +3,7 @@ package server_test
 import (
 	"context"
 	"encoding/json"
+	"path/filepath"
 	"testing"
 	"time"
 
@@ -76,6 +77,7 @@ func TestPlanPicksTheBoutsRules(t *testing.T) {
 	// And the national board's stand-downs besides the ringside minimums.
 	require.NoError(t, pwatest.Click(ctx, "plan-standdown-pro_board_28_45"))
 	require.NoError(t, pwatest.Poll(ctx, pwatest.Pressed("plan-standdown-pro_board_28_45"), 5*time.Second))
+	shot(t, ctx, filepath.Join(pwatest.ShotDir(t), "plan-rules.png"))
 	sets, _ := pwatest.Text(ctx, "plan-standdown-sets")
 	assert.Contains(t, sets, "always applied")
 	assert.Contains(t, sets, "How sure:")

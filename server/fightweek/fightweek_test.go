@@ -267,6 +267,9 @@ func TestPresets(t *testing.T) {
 		if p.Source == "" || p.Caution == "" || p.Summary == "" || SureWords(p.Sure) == "source not checked" {
 			t.Errorf("preset %s lacks its source, how sure, caution or summary: %+v", p.ID, p)
 		}
+		if strings.Contains(p.Source, "REFERENCES") {
+			t.Errorf("preset %s: the source a coach reads names the project's notes: %q", p.ID, p.Source)
+		}
 		if err := records.CheckRules("body.rules", &p.Rules); err != nil {
 			t.Errorf("preset %s fails the bout's check: %v", p.ID, err)
 		}

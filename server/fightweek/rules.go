@@ -74,7 +74,7 @@ var Presets = []Preset{
 		Rules: Rules{Preset: "check_weights_30_14_7", CheckWeights: []CheckWeight{
 			{DaysBefore: 30, OverLimitPct: 10}, {DaysBefore: 14, OverLimitPct: 5}, {DaysBefore: 7, OverLimitPct: 3}},
 			FightDay: &FightDayCap{OverOfficialPct: pct(10)}},
-		Source: "A professional body's check-weight programme announced in 2019 (REFERENCES §14.1); " +
+		Source: "A professional body's check-weight programme announced in 2019; " + // REFERENCES §14.1
 			"the fight-day cap is 10 % over the official weigh-in mass.",
 		Sure: SureVerified,
 	},
@@ -82,7 +82,7 @@ var Presets = []Preset{
 		ID: "fight_day_10lb", Name: "Second weigh-in on fight day, at most 10 lb over the limit",
 		WeighInType: "day_before",
 		Rules:       Rules{Preset: "fight_day_10lb", FightDay: &FightDayCap{OverLimitLb: pct(10)}},
-		Source:      "A professional body's rule: a second weigh-in 08:00–10:00 on the day of the bout (REFERENCES §14.1, §6.3).",
+		Source:      "A professional body's rule: a second weigh-in 08:00–10:00 on the day of the bout.", // REFERENCES §14.1, §6.3
 		Sure:        SureSecondary,
 	},
 	{
@@ -90,14 +90,14 @@ var Presets = []Preset{
 		WeighInType: "day_before",
 		Rules:       Rules{Preset: "fight_night_10pct", FightDay: &FightDayCap{OverOfficialPct: pct(10)}},
 		Source: "A state commission's plan of 2017: a fight-night weight check; a gain above 10 % may lead to a " +
-			"recommendation to move up a class; IV rehydration banned since 2016 (REFERENCES §14.1).",
+			"recommendation to move up a class; IV rehydration banned since 2016.", // REFERENCES §14.1
 		Sure: SureVerified,
 	},
 	{
 		ID: "amateur_same_day", Name: "Amateur: weigh-in on the day of the bout",
 		WeighInType: "same_day",
 		Rules:       Rules{Preset: "amateur_same_day"},
-		Source:      "Amateur boxing weighs in on the day of the bout (REFERENCES §14.1; Reale et al. 2017: 3–24 h before competition).",
+		Source:      "Amateur boxing weighs in on the day of the bout (Reale et al. 2017: weigh-ins 3–24 h before competition in Olympic combat sports).", // REFERENCES §14.1, §6.2
 		Sure:        SureVerified,
 	},
 }

@@ -151,6 +151,9 @@ func TestSets_HaveSources(t *testing.T) {
 		if s.Name == "" || s.Source == "" || s.Caution == "" || (s.Sure != "verified" && s.Sure != "secondary") || len(s.Rules) == 0 {
 			t.Errorf("set %s incomplete: %+v", s.ID, s)
 		}
+		if strings.Contains(s.Source, "REFERENCES") {
+			t.Errorf("set %s: the source a coach reads names the project's notes: %q", s.ID, s.Source)
+		}
 	}
 }
 

@@ -124,7 +124,7 @@ var Sets = []Set{
 	{
 		ID: "pro_board_28_45", Name: "National professional board: 28 or 45 days",
 		Source: "A national professional board's rule: any stoppage at least 28 days; a knockout or heavy punishment at " +
-			"least 45 days including sparring, then the board's own doctor's clearance (REFERENCES §14.6).",
+			"least 45 days including sparring, then the board's own doctor's clearance.", // REFERENCES §14.6
 		Sure: "secondary",
 		Rules: []Minimum{
 			{Severities: []Severity{TKO}, Days: 28, Words: "28 days after a stoppage"},
@@ -135,7 +135,7 @@ var Sets = []Set{
 		ID: "amateur_4w_3m_12m", Name: "Amateur: 4 weeks, 3 months, 12 months",
 		Source: "Amateur rules derived from the former world body's (as adopted by Amateur Boxing Scotland's technical " +
 			"rules, 2013): one knockout or stoppage for head blows 4 weeks; two within 3 months, 3 months; three " +
-			"within 12 months, 1 year; medical certification before resuming (REFERENCES §11.2, §14.6).",
+			"within 12 months, 1 year; medical certification before resuming.", // REFERENCES §11.2, §14.6
 		Sure:   "verified",
 		Counts: []Severity{TKO, KO, KOLOC},
 		Rules: []Minimum{
@@ -147,7 +147,7 @@ var Sets = []Set{
 	{
 		ID: "state_pro_30_60_6m", Name: "State professional regulation: 30 days, 60 days, 6 months",
 		Source: "Wisconsin Admin. Code SPS 192.31, as an example of a US state's professional regulation: knockout 60 days, " +
-			"technical knockout 30 days, two knockouts in 3 months 6 months, no competition or sparring (REFERENCES §11.2).",
+			"technical knockout 30 days, two knockouts in 3 months 6 months, no competition or sparring.", // REFERENCES §11.2
 		Sure:   "verified",
 		Counts: []Severity{KO, KOLOC},
 		Rules: []Minimum{

@@ -130,13 +130,14 @@ function CustomRules({ fr, onEdit, own }) {
   const putCheck = (i, k, v) => put('checks', fr.checks.map((c, j) => (j === i ? { ...c, [k]: v } : c)));
   return html`<div class="card" data-testid="plan-rules-custom">
     <p class="small muted">${own ? 'The numbers of this bout\'s rules.' : 'The preset\'s numbers; changing one makes the set your own.'}</p>
-    ${fr.checks.map((c, i) => html`<div class="knot" data-testid=${`plan-check-${i + 1}`}>
-      <div><label for=${`chk-d-${i}`}>Check weight ${i + 1}: days before the weigh-in</label>
+    ${fr.checks.map((c, i) => html`<fieldset class="chkrow" data-testid=${`plan-check-${i + 1}`}>
+      <legend>Check weight ${i + 1}</legend>
+      <div><label for=${`chk-d-${i}`}>Days before the weigh-in</label>
         <input id=${`chk-d-${i}`} inputmode="numeric" data-testid=${`plan-check-${i + 1}-days`} value=${c.days} onInput=${(e) => putCheck(i, 'days', e.target.value)} /></div>
       <div><label for=${`chk-p-${i}`}>At most % over the limit</label>
         <input id=${`chk-p-${i}`} inputmode="decimal" data-testid=${`plan-check-${i + 1}-pct`} value=${c.pct} onInput=${(e) => putCheck(i, 'pct', e.target.value)} /></div>
       <button type="button" class="secondary" aria-label=${`Remove check weight ${i + 1}`} data-testid=${`plan-check-${i + 1}-remove`} onClick=${() => put('checks', fr.checks.filter((_, j) => j !== i))}>✕</button>
-    </div>`)}
+    </fieldset>`)}
     <div class="row"><button type="button" class="secondary" data-testid="plan-check-add" onClick=${() => put('checks', [...fr.checks, { days: '', pct: '' }])}>Add a check weight</button></div>
     <span class="label">Fight-day weigh-in</span>
     <div class="row" role="group" aria-label="Fight-day weigh-in">
