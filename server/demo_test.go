@@ -34,6 +34,9 @@ func demoHub(t *testing.T) *server.Server {
 	require.Greater(t, n, 1000)
 	srv, err := server.New(server.Config{Store: db, Now: now, Location: time.UTC})
 	require.NoError(t, err)
+	// Closed before the store (cleanups run last first): its background
+	// work ends with the test instead of outliving it.
+	t.Cleanup(func() { srv.Close() })
 	return srv
 }
 

@@ -173,7 +173,8 @@ export function useOwnStandDowns(role) {
         const token = await getMeta('token');
         const headers = { Accept: 'application/json' };
         if (token) headers.Authorization = `Bearer ${token}`;
-        const res = await fetch(`/api/flags?day=${localDay()}`, { headers, cache: 'no-store' });
+        // Today as the hub counts it (the camp's time zone, not the phone's).
+        const res = await fetch('/api/flags', { headers, cache: 'no-store' });
         if (!res.ok) throw new Error(`the hub answered ${res.status}`);
         const data = await res.json();
         const names = {};
