@@ -125,7 +125,7 @@ func TestRTSStepLoggedOfflineThenSynced(t *testing.T) {
 
 func shot(t *testing.T, ctx context.Context, path string) {
 	t.Helper()
-	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(80))
+	png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100)) // 100: PNG (below it, JPEG)
 	require.NoError(t, err)
 	require.NoError(t, os.WriteFile(path, png, 0o644))
 }

@@ -138,7 +138,7 @@ func TestCoachPlanTenWeeksWithTravelOnPhoneAndLaptop(t *testing.T) {
 
 			// The camp at a glance shows the journey with its clock change.
 			require.NoError(t, pwatest.Poll(ctx, `(document.querySelector('[data-testid="plan-done-2-travel"]') || {}).textContent?.includes('Europe/Lisbon → Asia/Tokyo') && document.querySelector('[data-testid="plan-done-2-travel"]').textContent.includes('clock +9 h')`, 10*time.Second))
-			png, err := chromedp.Run(ctx, chromedp.FullScreenshot(90))
+			png, err := chromedp.Run(ctx, chromedp.FullScreenshot(100)) // 100: PNG (below it, JPEG)
 			require.NoError(t, err)
 			require.NoError(t, os.WriteFile(filepath.Join(pwatest.ShotDir(t), fmt.Sprintf("coach-plan-travel-%dx%d.png", vp.w, vp.h)), png, 0o644))
 		})
