@@ -180,6 +180,17 @@ func TestStandDownShowsItsReturnToSport(t *testing.T) {
 	var body string
 	require.NoError(t, pwatest.Eval(phone, `document.querySelector('#screen').innerText`, &body))
 	assert.False(t, strings.Contains(body, "Sami"), "another fighter's name on Mateo's phone")
+
+	// The hub out of reach: the phone still shows the stand-down it was
+	// last told of, and says it is the last copy.
+	h.srv.SetDown(true)
+	require.NoError(t, pwatest.Route(phone, "/today"))
+	require.NoError(t, pwatest.Poll(phone, `document.querySelector('[data-testid="screen-today"]')`, 10*time.Second))
+	require.NoError(t, pwatest.Route(phone, "/"))
+	require.NoError(t, pwatest.Poll(phone, `document.querySelector('[data-testid="home-standdowns-copy"]') && document.querySelector('[data-testid="home-restrictions"] [data-testid="restriction-rts"]')`, 20*time.Second))
+	check("Mateo's phone with the hub out of reach", "home-restrictions", phone)
+	copyNote, _ := pwatest.Text(phone, "home-standdowns-copy")
+	assert.Contains(t, copyNote, "the hub cannot be reached now")
 }
 
 // TestAthletePhoneSeesOwnFightWeek: on Sami's own phone (360 × 740) the
