@@ -176,7 +176,11 @@ func fightWeekWords(v *FightWeekView) []string {
 		out = append(out, line+".")
 	}
 	if v.Mass7dBeforeKg != nil {
-		line := fmt.Sprintf("Morning mass 7 days before the weigh-in (%s): %s", v.Mass7dBeforeDay, m(*v.Mass7dBeforeKg))
+		day := v.Mass7dBeforeDay
+		if t, err := time.Parse(time.DateOnly, day); err == nil {
+			day = t.Format("Mon 2 Jan")
+		}
+		line := fmt.Sprintf("Morning mass 7 days before the weigh-in (%s): %s", day, m(*v.Mass7dBeforeKg))
 		if v.AcuteLossPct != nil {
 			line += fmt.Sprintf("; %.1f %% lost to the official weigh-in", *v.AcuteLossPct)
 		}

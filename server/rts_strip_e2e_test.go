@@ -218,8 +218,14 @@ func TestAthletePhoneSeesOwnFightWeek(t *testing.T) {
 		require.NoError(t, pwatest.Eval(phone, `({ picker: !!document.querySelector('[data-testid="fw-athlete"]'), form: !!document.querySelector('[data-testid="fw-weighin-form"]'),
 			checks: document.querySelectorAll('[data-testid="fw-check"]').length > 0, hours: !!document.querySelector('[data-testid="fw-hours"]'),
 			cautions: !!document.querySelector('[data-testid="fw-cautions"]'), error: !!document.querySelector('[data-testid="fw-error"]'),
+			plan: !!document.querySelector('[data-testid="fw-to-plan"]'),
 			wide: document.documentElement.scrollWidth > window.innerWidth + 1 })`, &parts))
-		assert.Equal(t, map[string]bool{"picker": false, "form": false, "checks": true, "hours": true, "cautions": true, "error": false, "wide": false}, parts, path)
+		assert.Equal(t, map[string]bool{"picker": false, "form": false, "checks": true, "hours": true, "cautions": true, "error": false, "plan": false, "wide": false}, parts, path)
+		// The table's headings are whole words at 360 px: no heading is
+		// taller than one line.
+		var split []string
+		require.NoError(t, pwatest.Eval(phone, `[...document.querySelectorAll('[data-testid="fw-days"] thead th')].filter((e) => e.getClientRects().length > 1 || e.querySelector('*') || (() => { const r = document.createRange(); r.selectNodeContents(e); return r.getClientRects().length > 1 })()).map((e) => e.innerText)`, &split))
+		assert.Empty(t, split, "%s: headings broken over lines", path)
 		rules, _ := pwatest.Text(phone, "fw-rules")
 		assert.Contains(t, rules, "30 days out ≤ 10 % over the limit", path)
 	}

@@ -192,13 +192,13 @@ export function FightWeek() {
     ${fw && html`<${StandDowns} med=${st.med} units=${units} />`}
     ${editing && a && role && role !== 'athlete' && html`<${WeighInForm} athlete=${a} units=${units} editing=${editing} onSaved=${() => setV((x) => x + 1)} />`}
     ${fw && !fw.bout && html`<p data-testid="fw-nobout">No bout is planned for this fighter.</p>`}
-    ${fw && fw.bout && html`<${Week} fw=${fw} units=${units} />`}
+    ${fw && fw.bout && html`<${Week} fw=${fw} units=${units} staff=${!!role && role !== 'athlete'} />`}
     ${fw && fw.bout && a && role && role !== 'athlete' && !editing && html`<${WeighInForm} athlete=${a} units=${units} onSaved=${() => setV((x) => x + 1)} />`}
     ${fw && html`<div class="card muted small" data-testid="fw-cautions">${fw.cautions.map((c) => html`<p>${c}</p>`)}</div>`}
   </section>`;
 }
 
-function Week({ fw, units }) {
+function Week({ fw, units, staff }) {
   const checks = {};
   for (const c of fw.checks) checks[c.id] = c;
   const official = fw.official;
@@ -218,7 +218,8 @@ function Week({ fw, units }) {
       ${fw.preset && html`<p class="muted small" data-testid="fw-preset">${fw.preset.source} How sure: ${fw.preset.sure}. ${fw.preset.caution}</p>`}
     </div>
     <table class="fw-days" data-testid="fw-days">
-      <thead><tr><th scope="col">Day</th><th scope="col">Morning</th><th scope="col">Path</th><th scope="col">Weigh-ins</th></tr></thead>
+      <caption class="muted small">Morning mass against the planned path, and each weigh-in</caption>
+      <thead><tr><th scope="col">Day</th><th scope="col">Mass</th><th scope="col">Path</th><th scope="col">Weigh-ins</th></tr></thead>
       <tbody>${fw.days.map((d) => html`<tr data-testid="fw-day" data-day=${d.day} class=${d.is_weigh_in_day || d.is_bout_day ? 'fw-key' : ''}>
         <th scope="row">${shortDay(d.day)}<span class="muted small"> ${d.is_weigh_in_day && d.is_bout_day ? 'weigh-in and bout' : d.is_weigh_in_day ? 'weigh-in day' : d.is_bout_day ? 'bout day' : `${d.days_to_weigh_in} days out`}</span></th>
         <td>${d.morning_kg != null ? mass(d.morning_kg, units) : '–'}</td>
@@ -239,5 +240,5 @@ function Week({ fw, units }) {
         ${fw.checks.filter((c) => !(fw.days || []).some((d) => (d.weigh_ins || []).includes(c.id))).map((c) => html`
           <p data-testid="fw-check" data-pass=${String(c.pass)}>${c.pass === null || c.pass === undefined ? '' : c.pass ? '✓ ' : '✗ '}${c.reason}</p>`)}
       </div>`}
-    <p class="row no-print"><${Link} to=${query('/plan', { athlete: fw.athlete })} class="secondary linkbtn" data-testid="fw-to-plan">Camp plan and weigh-in rules</${Link}></p>`;
+    ${staff && html`<p class="row no-print"><${Link} to=${query('/plan', { athlete: fw.athlete })} class="secondary linkbtn" data-testid="fw-to-plan">Camp plan and weigh-in rules</${Link}></p>`}`;
 }
