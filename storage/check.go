@@ -154,11 +154,6 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 			}
 			continue
 		}
-		if id := changes.Get(s); !bytes.Equal(id, k) {
-			if !add("record %q: change %d names %q", k, binary.BigEndian.Uint64(s), id) {
-				return
-			}
-		}
 		prefix := append(bytes.Clone(k), '|')
 		if vk, _ := lastWithPrefix(versions.Cursor(), prefix); vk != nil && bytes.Compare(vk[len(prefix):], s) >= 0 {
 			if !add("record %q: an earlier version (seq %d) is not below the winner's sequence %d", k, binary.BigEndian.Uint64(vk[len(prefix):]), binary.BigEndian.Uint64(s)) {
@@ -174,9 +169,22 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 			}
 		}
 	}
+	// Every change entry names a record whose sequence it is (above), so
+	// no two entries name one record; as many entries as records then
+	// means every record has its entry. Only when the counts differ is
+	// each record looked up, to say which.
 	if nChanges != nRecords {
 		if !add("%d change entries for %d records", nChanges, nRecords) {
 			return
+		}
+		for k, v := rc.First(); k != nil; k, v = rc.Next() {
+			if s, _ := lay.split(k, v); s != nil {
+				if id := changes.Get(s); !bytes.Equal(id, k) {
+					if !add("record %q: change %d names %q", k, binary.BigEndian.Uint64(s), id) {
+						return
+					}
+				}
+			}
 		}
 	}
 
@@ -202,38 +210,18 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 		}
 	}
 
-	// Index entries → live records with matching keys.
+	// Index entries → live records with matching keys. Every live record's
+	// own key is in the index (above) and no two records share a key (it
+	// ends in the id), so as many entries as live records means the index
+	// holds exactly those keys. Only when the counts differ is each entry
+	// read against its record, to say which is wrong.
 	nIndex := 0
 	ic := index.Cursor()
 	for k, _ := ic.First(); k != nil; k, _ = ic.Next() {
 		nIndex++
-		a, kind, day, id, ok := parseIndexKey(k)
-		if !ok {
-			if !add("index key %q is malformed", k) {
-				return
-			}
-			continue
-		}
-		v := records.Get([]byte(id))
-		if v == nil {
-			if !add("index entry %q names a missing record", k) {
-				return
-			}
-			continue
-		}
-		_, js := lay.split([]byte(id), v)
-		r, err := decode(js)
-		if err != nil {
-			continue // reported above
-		}
-		if r.Deleted || r.Athlete != a || r.Kind != kind || r.Day != day {
-			if !add("index entry %q does not match record %q (athlete %q, kind %q, day %q, deleted %v)", k, id, r.Athlete, r.Kind, r.Day, r.Deleted) {
-				return
-			}
-		}
 	}
 	if nIndex != nLive {
-		if !add("%d index entries for %d live records", nIndex, nLive) {
+		if !add("%d index entries for %d live records", nIndex, nLive) || !indexDetail(index, records, lay, add) {
 			return
 		}
 	}
@@ -248,6 +236,39 @@ func checkInvariants(tx *bolt.Tx, add func(string, ...any) bool) {
 			}
 		}
 	}
+}
+
+// indexDetail reads every index entry against its record and reports the
+// wrong ones; false when the report is full.
+func indexDetail(index, records *bolt.Bucket, lay storedLayout, add func(string, ...any) bool) bool {
+	ic := index.Cursor()
+	for k, _ := ic.First(); k != nil; k, _ = ic.Next() {
+		a, kind, day, id, ok := parseIndexKey(k)
+		if !ok {
+			if !add("index key %q is malformed", k) {
+				return false
+			}
+			continue
+		}
+		v := records.Get([]byte(id))
+		if v == nil {
+			if !add("index entry %q names a missing record", k) {
+				return false
+			}
+			continue
+		}
+		_, js := lay.split([]byte(id), v)
+		r, err := decode(js)
+		if err != nil {
+			continue // reported with the records
+		}
+		if r.Deleted || r.Athlete != a || r.Kind != kind || r.Day != day {
+			if !add("index entry %q does not match record %q (athlete %q, kind %q, day %q, deleted %v)", k, id, r.Athlete, r.Kind, r.Day, r.Deleted) {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // lastWithPrefix returns the last version key/value of prefix (id "|").
