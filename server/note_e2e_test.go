@@ -98,6 +98,17 @@ func TestE2ENoteAudienceReachesOnlyWhoMayReadIt(t *testing.T) {
 	var page string
 	require.NoError(t, pwatest.Eval(phone, `document.body.textContent`, &page))
 	assert.NotContains(t, page, "left knee")
+	// Ana's phone changes only what it wrote: the coach's note offers no Edit or Delete.
+	var offers struct{ Theirs, Edit, Delete bool }
+	require.NoError(t, pwatest.Eval(phone, `({ Theirs: !!document.querySelector('[data-testid="theirs-`+shared+`"]'),
+		Edit: !!document.querySelector('[data-testid="edit-`+shared+`"]'), Delete: !!document.querySelector('[data-testid="delete-`+shared+`"]') })`, &offers))
+	assert.Equal(t, struct{ Theirs, Edit, Delete bool }{true, false, false}, offers)
+	// Her home offers what her phone may log, not the staff's screens.
+	require.NoError(t, pwatest.Route(phone, "/"))
+	require.NoError(t, pwatest.Poll(phone, `document.querySelector('[data-testid="screen-home"][data-ready="true"]')`, 10*time.Second))
+	var tiles []string
+	require.NoError(t, pwatest.Eval(phone, `[...document.querySelectorAll('.tiles [data-testid]')].map((e) => e.dataset.testid)`, &tiles))
+	assert.Equal(t, []string{"nav-checkin", "nav-session", "nav-note", "nav-rts", "nav-fightweek", "nav-today"}, tiles)
 	// The athlete's own note form has nothing to choose: their notes are read by staff.
 	require.NoError(t, pwatest.Route(phone, "/note"))
 	require.NoError(t, pwatest.WaitText(phone, "note-audience-own", "Your coach and staff read your notes."))

@@ -487,6 +487,48 @@ export function checkBody(kind, body, year = correctedNow().getFullYear()) {
   return cross[kind] ? cross[kind](body || {}) : null;
 }
 
+// ---- who may write what (the hub's write policy, server/auth) ----
+
+const pluralOf = (k) => (VOCAB.kinds[k] ? VOCAB.kinds[k].plural : k === '' ? 'entries without a kind' : `${JSON.stringify(k)} records`);
+const writtenBy = (role) => VOCAB.order.filter((k) => VOCAB.kinds[k].writers.includes(role));
+function listWords(ws) {
+  return ws.length < 2 ? ws.join('') : `${ws.slice(0, -1).join(', ')} and ${ws[ws.length - 1]}`;
+}
+
+function contentTrouble(role, athlete, rec, prefix) {
+  if (role === 'staff' && !writtenBy('staff').includes(rec.kind)) {
+    return { field: 'kind', label: 'Kind', reason: `${prefix}a staff device cannot write ${pluralOf(rec.kind)}; ask a coach` };
+  }
+  if (role === 'athlete') {
+    const mine = writtenBy('athlete');
+    if (!mine.includes(rec.kind)) {
+      return { field: 'kind', label: 'Kind', reason: `${prefix}an athlete's device can write ${listWords(mine.map(pluralOf))}, not ${pluralOf(rec.kind)}` };
+    }
+    if (!athlete) return { field: 'athlete', label: 'Athlete', reason: `${prefix}this device is joined to no athlete; ask the coach to join it again` };
+    if ((rec.athlete || '') !== athlete) {
+      return { field: 'athlete', label: 'Athlete', reason: `${prefix}this device belongs to one athlete; it cannot write ${rec.athlete ? "another athlete's" : "the whole camp's"} entries` };
+    }
+  }
+  return null;
+}
+
+// rightsTrouble answers as the hub's write policy would for this device
+// (role and athlete as the hub issued them at join; '' on the coach's
+// laptop or a device not joined, which the hub does not limit by kind):
+// null when it may write rec over old (the version it replaces, if any),
+// else {field, reason, label} in the hub's words.
+export function rightsTrouble(role, athlete, rec, old) {
+  if (role !== 'staff' && role !== 'athlete') return null;
+  const bad = contentTrouble(role, athlete, rec, '');
+  if (bad || !old) return bad;
+  const was = contentTrouble(role, athlete, old, 'the stored version of this record: ');
+  if (was) return was;
+  if (role === 'athlete' && old.device !== rec.device) {
+    return { field: 'id', label: 'Entry', reason: `this ${kindLabel(old.kind)} was last written by another device; an athlete's device changes only its own entries — ask the coach` };
+  }
+  return null;
+}
+
 // CheckError is a refusal on this device, before anything was saved.
 export class CheckError extends Error {
   constructor(kind, bad) {

@@ -12,7 +12,7 @@ import { openDB } from '/vendor/idb/index.js';
 import { Clock } from './hlc.js';
 import { hubWins, localDay, rfc3339, setClockOffset } from './record.js';
 import { uuidv7 } from './uuid.js';
-import { checkBody, CheckError } from './checks.js';
+import { checkBody, rightsTrouble, CheckError } from './checks.js';
 
 export const DB_NAME = 'cornerbook';
 const DB_VERSION = 1;
@@ -156,6 +156,14 @@ async function write(id, change, op) {
   if (!rec.athlete) delete rec.athlete;
   if (!rec.gen) delete rec.gen;
   if (!rec.deleted) delete rec.deleted;
+  // What the hub's policy would refuse from this device is refused here,
+  // in its words, before anything is saved (the transaction is abandoned).
+  const denied = rightsTrouble((await meta.get('role')) || '', (await meta.get('athlete')) || '', rec, old);
+  if (denied) {
+    tx.done.catch(() => {});
+    tx.abort();
+    throw new CheckError(rec.kind, denied);
+  }
   const n = await nextN(meta);
   await records.put(rec);
   await tx.objectStore('outbox').put({ n, op: op || opOf(rec), record: rec });

@@ -41,6 +41,10 @@ const TILES = [
   ['/camp', 'Camp set-up', 'athletes, devices, backup', 'nav-camp'],
 ];
 
+// An athlete's phone logs what the athlete reports (the kinds the hub lets
+// it write) and shows its own return to sport, fight week and day.
+const ATHLETE_TILES = new Set([...Object.values(VOCAB.kinds).filter((k) => k.writers.includes('athlete') && k.screen).map((k) => k.screen), '/rts', '/fightweek', '/today']);
+
 // Home: on a coach's or staff device (or a hub without pairing) the camp
 // at a glance comes first, with the logging tiles right below; on an
 // athlete's phone, who is logging and the tiles.
@@ -59,7 +63,7 @@ export function Home() {
           aria-pressed=${picked === a.id ? 'true' : 'false'} onClick=${() => pick(a.id)}>${a.name}</button>`)}
       </div>`;
   const tiles = html`<nav class="tiles">
-      ${TILES.map(([to, t, sub, id]) => html`<${Link} to=${to} class="tile" data-testid=${id}>${t}<span>${sub}</span></${Link}>`)}
+      ${TILES.filter(([to]) => coach || ATHLETE_TILES.has(to)).map(([to, t, sub, id]) => html`<${Link} to=${to} class="tile" data-testid=${id}>${t}<span>${sub}</span></${Link}>`)}
     </nav>`;
   if (coach) {
     return html`<section data-testid="screen-home" data-ready="true" data-home="camp">

@@ -104,6 +104,9 @@ export function Today() {
   const [err, setErr] = useState('');
   const [open, setOpen] = useState('');
   const me = useAsync(() => getMeta('deviceId'), [], '');
+  // An athlete's phone changes only what it wrote (the hub refuses the rest).
+  const role = useAsync(() => getMeta('role').then((x) => x || ''), [], null);
+  const mayChange = (r) => role !== 'athlete' || r.device === me;
   const groups = new Map();
   for (const r of recs.filter((x) => x.kind !== 'athlete').sort((a, b) => (a.at < b.at ? -1 : 1))) {
     const k = r.athlete || '';
@@ -123,8 +126,8 @@ export function Today() {
     </div>
     ${err && html`<p class="error">${err}</p>`}
     <div data-testid="today-list">
-    ${groups.size === 0 && html`<p class="muted" data-testid="today-empty">Nothing logged on ${day} on this device yet.</p>`}
-    ${[...groups.entries()].map(([aid, rs]) => {
+    ${role !== null && groups.size === 0 && html`<p class="muted" data-testid="today-empty">Nothing logged on ${day} on this device yet.</p>`}
+    ${role !== null && [...groups.entries()].map(([aid, rs]) => {
       const a = athleteOf(aid);
       return html`<div class="card" data-testid=${`today-athlete-${aid || 'camp'}`}>
         <h2>${a ? a.name : aid ? 'Unknown athlete' : 'Camp'}</h2>
@@ -135,7 +138,7 @@ export function Today() {
               ${pending.waiting.has(r.id) && html`<span class="tag" data-testid=${`waiting-${r.id}`}>waiting to sync</span>`}
               ${rej && html`<span class="tag warn" data-testid=${`rejected-tag-${r.id}`}>${rej.code === 'OVERTAKEN' ? 'your correction was overtaken' : `rejected: ${rej.reason}`}</span>`}
               ${r.deleted && html`<span class="tag">deleted</span>`}</div>
-            ${r.deleted
+            ${!mayChange(r) ? html`<span class="muted small" data-testid=${`theirs-${r.id}`}>Logged by staff</span>` : r.deleted
               ? html`<button class="secondary" type="button" data-testid=${`restore-${r.id}`} onClick=${() => undel(r.id)}>Restore</button>`
               : html`${editRoute(r) && html`<button class="secondary" type="button" data-testid=${`edit-${r.id}`} onClick=${() => navigate(`${editRoute(r)}?edit=${r.id}`)}>Edit</button>`}
                 <button class="secondary danger" type="button" data-testid=${`delete-${r.id}`} onClick=${() => del(r.id)}>Delete</button>`}

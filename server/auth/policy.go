@@ -143,19 +143,22 @@ func canWriteContent(d Device, rec *devsync.Record, prefix string) error {
 		return nil // kinds and bodies are the validator's business
 	case RoleStaff:
 		if !slices.Contains(staffKinds, rec.Kind) {
-			return forbid("kind", "%sa staff device cannot write %s records; ask a coach", prefix, kindName(rec.Kind))
+			return forbid("kind", "%sa staff device cannot write %s; ask a coach", prefix, kindPlural(rec.Kind))
 		}
 		return nil
 	case RoleAthlete:
 		if !slices.Contains(athleteKinds, rec.Kind) {
-			return forbid("kind", "%san athlete's device can write %s, not %s records", prefix, pluralsOf(athleteKinds), kindName(rec.Kind))
+			return forbid("kind", "%san athlete's device can write %s, not %s", prefix, pluralsOf(athleteKinds), kindPlural(rec.Kind))
 		}
-		if d.Athlete == "" || rec.Athlete != d.Athlete {
-			who := "the whole camp"
+		if d.Athlete == "" {
+			return forbid("athlete", "%sthis device is joined to no athlete; ask the coach to join it again", prefix)
+		}
+		if rec.Athlete != d.Athlete {
+			who := "the whole camp's"
 			if rec.Athlete != "" {
-				who = "athlete " + rec.Athlete
+				who = "another athlete's"
 			}
-			return forbid("athlete", "%sthis device belongs to athlete %s; it cannot write records of %s", prefix, d.Athlete, who)
+			return forbid("athlete", "%sthis device belongs to one athlete; it cannot write %s entries", prefix, who)
 		}
 		return nil
 	}
@@ -170,11 +173,16 @@ func kindWords(k string) string {
 	return "entry"
 }
 
-func kindName(k string) string {
-	if k == "" {
-		return "kindless"
+// kindPlural is a kind's words for several entries ("jump tests"); an
+// unknown kind is named as sent.
+func kindPlural(k string) string {
+	if kind, ok := records.KindOf(k); ok {
+		return kind.Plural
 	}
-	return fmt.Sprintf("%q", k)
+	if k == "" {
+		return "entries without a kind"
+	}
+	return fmt.Sprintf("%q records", k)
 }
 
 // article is "a" or "an" for a role name.

@@ -157,11 +157,13 @@ func TestPolicyUnknownKind(t *testing.T) {
 
 func TestPolicyErrorsReadWell(t *testing.T) {
 	err := CanWrite(athA, rec(athA, records.KindCheckin, "other"))
-	assert.EqualError(t, err, "athlete: this device belongs to athlete ath-A; it cannot write records of athlete ath-B")
+	assert.EqualError(t, err, "athlete: this device belongs to one athlete; it cannot write another athlete's entries")
 	err = CanWrite(athA, rec(athA, records.KindJump, "own"))
-	assert.EqualError(t, err, `kind: an athlete's device can write check-ins, sessions and notes, not "jump" records`)
+	assert.EqualError(t, err, `kind: an athlete's device can write check-ins, sessions and notes, not jump tests`)
 	err = CanWrite(staff, rec(staff, records.KindDecision, "own"))
-	assert.EqualError(t, err, `kind: a staff device cannot write "decision" records; ask a coach`)
+	assert.EqualError(t, err, `kind: a staff device cannot write decisions; ask a coach`)
+	err = CanWrite(staff, rec(staff, "potion", "own"))
+	assert.EqualError(t, err, `kind: a staff device cannot write "potion" records; ask a coach`)
 }
 
 func TestCanOverwrite(t *testing.T) {
