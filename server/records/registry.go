@@ -387,8 +387,8 @@ var Registry = []Kind{
 		Writers: []string{RoleStaff, RoleAthlete},
 		Fields: []Field{
 			textField("body.text", "Note", MaxNoteLen).need(fmt.Sprintf("the note, up to %d characters", MaxNoteLen)),
-			textField("body.by", "By", MaxNameLen),
 			enum("body.audience", "Who reads it", Audiences),
+			textField("body.by", "By", MaxNameLen),
 		},
 		Example:  `{"text":"Left hand sore after pads.","audience":"athlete"}`,
 		validate: validateNote,
