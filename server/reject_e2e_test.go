@@ -25,8 +25,13 @@ func TestE2EOneBadEntryNeverTakesOthersWithIt(t *testing.T) {
 	require.NoError(t, pwatest.Open(ctx, h.url("/")))
 	require.NoError(t, pwatest.WaitSynced(ctx))
 
-	// Hold the sync lock so the four entries go in one push.
-	require.NoError(t, pwatest.Eval(ctx, `(navigator.locks.request('cornerbook-sync', () => new Promise((r) => { window.__release = r; })), true)`, nil))
+	// Hold the sync and push locks so the four entries go in one push (a
+	// save otherwise pushes at once under the push lock alone).
+	require.NoError(t, pwatest.Eval(ctx, `(() => { const held = [];
+		for (const name of ['cornerbook-sync', 'cornerbook-push']) navigator.locks.request(name, () => new Promise((r) => held.push(r)));
+		window.__release = () => held.forEach((r) => r());
+		return navigator.locks.query().then((q) => q.held.length) })()`, nil))
+	require.NoError(t, pwatest.Poll(ctx, `navigator.locks.query().then((q) => ['cornerbook-sync', 'cornerbook-push'].every((n) => q.held.some((l) => l.name === n)))`, 5*time.Second))
 	day := time.Now().Format("2006-01-02")
 	note := func(text string) {
 		require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((m) => m.save({ kind: 'note', athlete: '`+ids["Ana Pereira"]+`', day: '`+day+`', body: { text: '`+text+`' } })).then(() => true)`, nil))

@@ -138,7 +138,7 @@ export function Today() {
               ${pending.waiting.has(r.id) && html`<span class="tag" data-testid=${`waiting-${r.id}`}>waiting to sync</span>`}
               ${rej && html`<span class="tag warn" data-testid=${`rejected-tag-${r.id}`}>${rej.code === 'OVERTAKEN' ? 'your correction was overtaken' : `rejected: ${rej.reason}`}</span>`}
               ${r.deleted && html`<span class="tag">deleted</span>`}</div>
-            ${!mayChange(r) ? html`<span class="muted small" data-testid=${`theirs-${r.id}`}>Logged by staff</span>` : r.deleted
+            ${!mayChange(r) ? html`<span class="muted small" data-testid=${`theirs-${r.id}`}>Logged by the coach or staff</span>` : r.deleted
               ? html`<button class="secondary" type="button" data-testid=${`restore-${r.id}`} onClick=${() => undel(r.id)}>Restore</button>`
               : html`${editRoute(r) && html`<button class="secondary" type="button" data-testid=${`edit-${r.id}`} onClick=${() => navigate(`${editRoute(r)}?edit=${r.id}`)}>Edit</button>`}
                 <button class="secondary danger" type="button" data-testid=${`delete-${r.id}`} onClick=${() => del(r.id)}>Delete</button>`}
