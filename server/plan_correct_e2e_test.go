@@ -56,9 +56,14 @@ func TestE2EPlanCorrectsABoutTheHubRefused(t *testing.T) {
 	var picked string
 	require.NoError(t, pwatest.Eval(ctx, `document.querySelector('[data-testid="plan-bout"]').value`, &picked))
 	assert.Equal(t, bout.ID, picked)
+	// Saved at once after typing: the hub's check of the plan as it was
+	// (900 kg) must not refuse the plan as it is now.
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "71.5"))
 	require.NoError(t, pwatest.Click(ctx, "plan-save"))
-	require.NoError(t, pwatest.WaitText(ctx, "saved", "Plan saved on this device"))
+	if err := pwatest.WaitText(ctx, "saved", "Plan saved on this device"); err != nil {
+		msg, _ := pwatest.Text(ctx, "save-error")
+		t.Fatalf("the corrected plan was not saved: %q (%v)", msg, err)
+	}
 	require.NoError(t, pwatest.WaitSynced(ctx))
 
 	var left int

@@ -265,7 +265,9 @@ export function Plan() {
     e.preventDefault();
     if (!a) return setState({ error: 'Choose the athlete first.' });
     if (errs.length) return setState({ error: errs.join(' ') });
-    if (check && check.invalid) return setState({ error: `The hub would refuse this bout: ${check.field ? fieldWords('bout', check.field) + ' ' : ''}${check.invalid}` });
+    // The hub's answer counts only for the plan as it is now: one asked
+    // before the last keystroke is not about what is saved.
+    if (check && check.invalid && check.for === JSON.stringify(body)) return setState({ error: `The hub would refuse this bout: ${check.field ? fieldWords('bout', check.field) + ' ' : ''}${check.invalid}` });
     setState({ saving: true });
     try {
       const rec = await save({ id: boutId && boutId !== 'new' ? boutId : undefined, kind: 'bout', athlete: a.id, body });
