@@ -17,6 +17,7 @@ import (
 	"path"
 	"regexp"
 	"runtime"
+	"runtime/debug"
 	"sort"
 	"strconv"
 	"strings"
@@ -90,6 +91,9 @@ func Prepare() { go load() }
 func load() *bundle {
 	once.Do(func() {
 		b, err := build(generated(), swTemplate)
+		// Minifying parses every script: its garbage is handed back to
+		// the system at once, not kept in the hub's resident memory.
+		debug.FreeOSMemory()
 		if err != nil {
 			panic("pwa: " + err.Error()) // the embedded tree is fixed at compile time; tests cover it
 		}
