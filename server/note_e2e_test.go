@@ -113,8 +113,11 @@ func TestE2ENoteAudienceReachesOnlyWhoMayReadIt(t *testing.T) {
 	require.NoError(t, pwatest.Route(phone, "/note"))
 	require.NoError(t, pwatest.WaitText(phone, "note-audience-own", "Your coach and staff read your notes."))
 
-	// The coach corrects the shared note to staff only, from Today's Edit.
+	// The coach corrects the shared note to staff only, from Today's Edit;
+	// Today says who reads each note.
 	require.NoError(t, pwatest.Route(coach, "/today"))
+	require.NoError(t, pwatest.WaitText(coach, "entry-"+staffOnly, "Watch the left knee. (staff only)"))
+	require.NoError(t, pwatest.WaitText(coach, "entry-"+shared, "Great pads today. (shared with the athlete)"))
 	require.NoError(t, pwatest.Click(coach, "edit-"+shared))
 	require.NoError(t, pwatest.Poll(coach, `document.querySelector('[data-testid="note-text"]') && document.querySelector('[data-testid="note-text"]').value === 'Great pads today.'`, 10*time.Second), "the form opens with the note as written")
 	require.NoError(t, pwatest.Poll(coach, pwatest.Pressed("note-audience-athlete"), 2*time.Second))

@@ -51,7 +51,8 @@ export function summary(r, units) {
     case 'session': return `${b.type}, ${b.minutes} min, RPE ${b.rpe}${CR10[b.rpe] ? ` (${CR10[b.rpe]})` : ''} = ${fmt(b.rpe * b.minutes, 0)} AU`;
     case 'incident': return (INCIDENTS.find(([v]) => v === b.type) || [b.type, b.type])[1] + (b.note ? ` — ${b.note}` : '');
     case 'clearance': return `cleared by ${b.by}`;
-    case 'note': return b.text || '';
+    // Who reads a note, in words: a note without an audience is staff only.
+    case 'note': return `${b.text || ''} (${b.audience === 'athlete' ? 'shared with the athlete' : 'staff only'})`;
     default: return fieldSummary(r.kind, b);
   }
 }
