@@ -18,18 +18,15 @@ func TestCoachScreensWarmOnAStaffDevice(t *testing.T) {
 	_, ctx, _ := start(t, "")
 	require.NoError(t, pwatest.Open(ctx, s.URL("/")))
 	require.NoError(t, pwatest.WaitControlled(ctx))
-	cached := func(p string) string {
-		return `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('` + p + `')).then((r) => !!r)`
-	}
 	var has bool
 	for _, p := range []string{"/js/coach/intervals.js", "/js/camp.js"} {
-		require.NoError(t, pwatest.Eval(ctx, cached(p), &has))
+		require.NoError(t, pwatest.Eval(ctx, pwatest.Cached(p), &has))
 		require.False(t, has, "%s not fetched at install", p)
 	}
 
 	require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((m) => m.setMeta('role', 'staff')).then(() => true)`, nil))
 	require.NoError(t, pwatest.Reload(ctx))
 	for _, p := range []string{"/js/coach/intervals.js", "/js/coach/tests.js", "/js/coach/plan.js", "/js/camp.js", "/vendor/uplot/uPlot.esm.js"} {
-		require.NoError(t, pwatest.Poll(ctx, cached(p), 10*time.Second), p)
+		require.NoError(t, pwatest.Poll(ctx, pwatest.Cached(p), 10*time.Second), p)
 	}
 }

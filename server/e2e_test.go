@@ -191,6 +191,19 @@ func (h *e2eHub) all() map[string][]devsync.Record {
 	}
 }
 
+// anaOnAFreshPhone is the real hub with one athlete, Ana Pereira, and a
+// fresh browser profile that has opened the app and finished its first
+// sync.
+func anaOnAFreshPhone(t *testing.T) (*e2eHub, map[string]string, context.Context) {
+	t.Helper()
+	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
+	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
+	_, ctx, _ := e2eBrowser(t, "")
+	require.NoError(t, pwatest.Open(ctx, h.url("/")))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	return h, ids, ctx
+}
+
 func TestE2ELogThroughTheScreensLandsOnTheHub(t *testing.T) {
 	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
 	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg", "Beto Lindqvist": "lb"})
@@ -226,11 +239,7 @@ func TestE2ELogThroughTheScreensLandsOnTheHub(t *testing.T) {
 // beside the pull, instead of queueing behind it; when the pull ends,
 // nothing is lost or sent twice.
 func TestE2ESaveDuringASlowPullIsPushedAtOnce(t *testing.T) {
-	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
-	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
-	_, ctx, _ := e2eBrowser(t, "")
-	require.NoError(t, pwatest.Open(ctx, h.url("/")))
-	require.NoError(t, pwatest.WaitSynced(ctx))
+	h, ids, ctx := anaOnAFreshPhone(t)
 
 	// Every pull from here on waits until the test lets it through.
 	require.NoError(t, pwatest.Eval(ctx, `(() => {
@@ -277,11 +286,8 @@ func TestE2EStaffDeviceKeepsCoachScreensOnceJoined(t *testing.T) {
 	_, ctx, _ := e2eBrowser(t, "")
 	require.NoError(t, pwatest.Open(ctx, h.url("/")))
 	require.NoError(t, pwatest.WaitControlled(ctx))
-	cached := func(p string) string {
-		return `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('` + p + `')).then((r) => !!r)`
-	}
 	var has bool
-	require.NoError(t, pwatest.Eval(ctx, cached("/js/camp.js"), &has))
+	require.NoError(t, pwatest.Eval(ctx, pwatest.Cached("/js/camp.js"), &has))
 	require.False(t, has, "camp set-up is not part of a phone's install")
 
 	// Within the page, as from Settings: the page has long started and
@@ -291,7 +297,7 @@ func TestE2EStaffDeviceKeepsCoachScreensOnceJoined(t *testing.T) {
 	require.NoError(t, pwatest.Click(ctx, "join-submit"))
 	require.NoError(t, pwatest.WaitText(ctx, "join-done", "joined"))
 	for _, p := range []string{"/js/camp.js", "/js/coach/plan.js", "/js/coach/sheet.js"} {
-		require.NoError(t, pwatest.Poll(ctx, cached(p), 10*time.Second), "%s kept after joining as staff", p)
+		require.NoError(t, pwatest.Poll(ctx, pwatest.Cached(p), 10*time.Second), "%s kept after joining as staff", p)
 	}
 }
 
@@ -359,11 +365,7 @@ func TestE2ESecondDeviceSeesTheEntryWithoutReload(t *testing.T) {
 }
 
 func TestE2EClockSkewRestampsAndRejectionsAreShown(t *testing.T) {
-	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
-	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
-	_, ctx, _ := e2eBrowser(t, "")
-	require.NoError(t, pwatest.Open(ctx, h.url("/")))
-	require.NoError(t, pwatest.WaitSynced(ctx))
+	h, ids, ctx := anaOnAFreshPhone(t)
 
 	// A stale clock offset puts this phone's stamps two hours ahead of the
 	// hub: the hub refuses the push with CLOCK_SKEW, the phone takes the
@@ -433,11 +435,7 @@ func TestE2EClockSkewRestampsAndRejectionsAreShown(t *testing.T) {
 }
 
 func TestE2EReplacedHubGetsThisDevicesEntriesAgain(t *testing.T) {
-	h := startE2EHub(t, "127.0.0.1:0", filepath.Join(t.TempDir(), "hub.db"))
-	ids := h.pushAthletes(map[string]string{"Ana Pereira": "kg"})
-	_, ctx, _ := e2eBrowser(t, "")
-	require.NoError(t, pwatest.Open(ctx, h.url("/")))
-	require.NoError(t, pwatest.WaitSynced(ctx))
+	h, ids, ctx := anaOnAFreshPhone(t)
 	require.NoError(t, pwatest.LogCheckin(ctx, "Ana Pereira", 64.2))
 	require.NoError(t, pwatest.WaitSynced(ctx))
 	var epoch1 string

@@ -230,7 +230,7 @@ func TestE2EFirstLoadFitsTheBudgetAndOfflineReloadIsFree(t *testing.T) {
 	require.NoError(t, pwatest.Eval(ctx, `caches.keys().then((k) => caches.open(k[0])).then((c) => c.keys()).then((r) => r.length)`, &cached))
 	assert.Greater(t, cached, 20, "the worker holds the shell")
 	var coachCached bool
-	require.NoError(t, pwatest.Eval(ctx, `caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('/js/coach/review.js')).then((r) => !!r)`, &coachCached))
+	require.NoError(t, pwatest.Eval(ctx, pwatest.Cached("/js/coach/review.js"), &coachCached))
 	assert.False(t, coachCached, "a phone that never opens the coach's screens never downloads them")
 
 	// Offline: the hub is out of reach; the reload renders from the
@@ -259,7 +259,7 @@ func TestE2ECoachScreensStayOfflineOnceOneOpens(t *testing.T) {
 	ctx := coachBrowser(t, h, "/review")
 	require.NoError(t, pwatest.WaitControlled(ctx))
 	for _, m := range []string{"review", "athlete", "plan", "sheet"} {
-		require.NoError(t, pwatest.Poll(ctx, `await caches.keys().then((k) => caches.open(k[0])).then((c) => c.match('/js/coach/`+m+`.js')).then((r) => !!r)`, 15*time.Second), m)
+		require.NoError(t, pwatest.Poll(ctx, pwatest.Cached("/js/coach/"+m+".js"), 15*time.Second), m)
 	}
 	h.srv.SetDown(true)
 	defer h.srv.SetDown(false)

@@ -240,6 +240,13 @@ func Poll(ctx context.Context, expr string, timeout time.Duration) error {
 	}
 }
 
+// Cached is an expression for Eval or Poll: whether the service worker's
+// cache holds path.
+func Cached(path string) string {
+	b, _ := json.Marshal(path)
+	return fmt.Sprintf(`caches.keys().then((k) => caches.open(k[0])).then((c) => c.match(%s)).then((r) => !!r)`, b)
+}
+
 // Q is a CSS selector for a data-testid.
 func Q(testid string) string { return fmt.Sprintf(`[data-testid=%q]`, testid) }
 
