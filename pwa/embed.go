@@ -12,6 +12,7 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
+	"io"
 	"io/fs"
 	"net/http"
 	"path"
@@ -410,6 +411,14 @@ func minify(name string, body []byte) ([]byte, error) {
 	return r.Code, nil
 }
 
+// gzipWriters are reused across the files of a build: a writer at the
+// best level sets up close to a megabyte of tables, which sixty files
+// would otherwise each allocate at start.
+var gzipWriters = sync.Pool{New: func() any {
+	w, _ := gzip.NewWriterLevel(io.Discard, gzip.BestCompression)
+	return w
+}}
+
 // newAsset precompresses a file once, when the bundle is built, with gzip
 // at its best level; nothing is compressed per request. zstd at its best
 // level was measured at 0.7 % fewer bytes than this over the whole shell
@@ -420,9 +429,11 @@ func newAsset(body []byte, mime string) *asset {
 	a := &asset{body: body, mime: mime, etag: `"` + hex.EncodeToString(sum[:8]) + `"`}
 	if compressible(mime) && len(body) > 512 {
 		var buf bytes.Buffer
-		zw, _ := gzip.NewWriterLevel(&buf, gzip.BestCompression)
+		zw := gzipWriters.Get().(*gzip.Writer)
+		zw.Reset(&buf)
 		zw.Write(body)
 		zw.Close()
+		gzipWriters.Put(zw)
 		if buf.Len() < len(body) {
 			a.gz = buf.Bytes()
 		}
