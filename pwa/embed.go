@@ -465,38 +465,40 @@ func mimeOf(p string) string {
 // Handler serves the app. Mount it under "/" after the /api routes: it
 // answers /api/* with 404 so a missing API route never returns the app.
 func Handler() http.Handler {
-	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) { load().handler().ServeHTTP(w, r) })
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) { load().route(w, r) })
 }
 
-func (b *bundle) handler() http.Handler {
-	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
-		p := path.Clean("/" + r.URL.Path)
-		if p == "/api" || strings.HasPrefix(p, "/api/") {
-			http.NotFound(w, r)
-			return
-		}
-		if r.Method != http.MethodGet && r.Method != http.MethodHead {
-			w.Header().Set("Allow", "GET, HEAD")
-			http.Error(w, "method not allowed", http.StatusMethodNotAllowed)
-			return
-		}
-		if p == "/sw.js" {
-			b.serve(w, r, b.sw)
-			return
-		}
-		if a, ok := b.assets[p]; ok {
-			b.serve(w, r, a)
-			return
-		}
-		// An app navigation: any path without a file extension (vendor
-		// paths are files, e.g. the licences).
-		if path.Ext(p) == "" && !strings.HasPrefix(p, "/vendor/") {
-			b.serve(w, r, b.assets["/index.html"])
-			return
-		}
+// route answers one request for the app's files.
+func (b *bundle) route(w http.ResponseWriter, r *http.Request) {
+	p := path.Clean("/" + r.URL.Path)
+	if p == "/api" || strings.HasPrefix(p, "/api/") {
 		http.NotFound(w, r)
-	})
+		return
+	}
+	if r.Method != http.MethodGet && r.Method != http.MethodHead {
+		w.Header().Set("Allow", "GET, HEAD")
+		http.Error(w, "method not allowed", http.StatusMethodNotAllowed)
+		return
+	}
+	if p == "/sw.js" {
+		b.serve(w, r, b.sw)
+		return
+	}
+	if a, ok := b.assets[p]; ok {
+		b.serve(w, r, a)
+		return
+	}
+	// An app navigation: any path without a file extension (vendor
+	// paths are files, e.g. the licences).
+	if path.Ext(p) == "" && !strings.HasPrefix(p, "/vendor/") {
+		b.serve(w, r, b.assets["/index.html"])
+		return
+	}
+	http.NotFound(w, r)
 }
+
+// handler serves b (a test compares two builds side by side).
+func (b *bundle) handler() http.Handler { return http.HandlerFunc(b.route) }
 
 func (b *bundle) serve(w http.ResponseWriter, r *http.Request, a *asset) {
 	h := w.Header()
