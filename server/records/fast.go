@@ -7,7 +7,9 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"unicode/utf8"
+	"unsafe"
 
 	"cornerbook/sync/jscan"
 )
@@ -36,6 +38,7 @@ const (
 type fieldPlan struct {
 	name      string
 	index     int
+	offset    uintptr // of the field in its struct: read and written through it, without reflect
 	kind      fieldKind
 	omitEmpty bool
 	key       string // `"name":`
@@ -48,14 +51,36 @@ type bodyPlan struct {
 	nFloatPtr, nIntPtr, nBoolPtr int
 }
 
-var plans sync.Map // reflect.Type → *bodyPlan (nil: not flat)
+// plans maps reflect.Type → *bodyPlan (nil: not flat). Readers load the
+// map without a lock; a new type copies it under plansMu (a handful of
+// body types, each planned once).
+var (
+	plans   atomic.Pointer[map[reflect.Type]*bodyPlan]
+	plansMu sync.Mutex
+)
 
 // planOf returns the plan of a struct whose fields all have a kind above,
 // or nil.
 func planOf(t reflect.Type) *bodyPlan {
-	if p, ok := plans.Load(t); ok {
-		return p.(*bodyPlan)
+	if m := plans.Load(); m != nil {
+		if p, ok := (*m)[t]; ok {
+			return p
+		}
 	}
+	p := makePlan(t)
+	plansMu.Lock()
+	defer plansMu.Unlock()
+	next := map[reflect.Type]*bodyPlan{t: p}
+	if m := plans.Load(); m != nil {
+		for k, v := range *m {
+			next[k] = v
+		}
+	}
+	plans.Store(&next)
+	return p
+}
+
+func makePlan(t reflect.Type) *bodyPlan {
 	p := &bodyPlan{byName: map[string]int{}}
 	for i := 0; i < t.NumField(); i++ {
 		f := t.Field(i)
@@ -64,7 +89,7 @@ func planOf(t reflect.Type) *bodyPlan {
 			p = nil
 			break
 		}
-		fp := fieldPlan{name: name, index: i, omitEmpty: opts == "omitempty", key: strconv.Quote(name) + ":"}
+		fp := fieldPlan{name: name, index: i, offset: f.Offset, omitEmpty: opts == "omitempty", key: strconv.Quote(name) + ":"}
 		switch ft := f.Type; {
 		case ft.Kind() == reflect.String:
 			fp.kind = fString
@@ -100,7 +125,6 @@ func planOf(t reflect.Type) *bodyPlan {
 			p.nBoolPtr++
 		}
 	}
-	plans.Store(t, p)
 	return p
 }
 
@@ -115,46 +139,68 @@ func builtin(t reflect.Type) bool {
 // fastDecode decodes a plain flat body into the struct dst points to and
 // returns the top-level fields present; ok is false when the body is not
 // in the plain form (dst is then left partly filled).
+//
+// Fields are written through the offsets of the type's plan: the plan
+// was made from the type by reflect, and each kind below is written only
+// as the Go type planOf matched it to, so every store has the field's own
+// type.
 func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
-	v := reflect.ValueOf(dst).Elem()
-	p := planOf(v.Type())
+	rv := reflect.ValueOf(dst)
+	if rv.Kind() != reflect.Pointer || rv.IsNil() {
+		return fieldSet{}, false
+	}
+	p := planOf(rv.Type().Elem())
 	if p == nil || !utf8.Valid(raw) {
 		return fieldSet{}, false // encoding/json replaces bad UTF-8; leave it to it
 	}
+	base := rv.UnsafePointer()
 	s := jscan.Scanner{Buf: raw}
 	var seen uint64
 	var slab []float64 // backing for the pointer fields (slabbed)
 	var islab []int
 	var bslab []bool
+	next := 0 // bodies written by the app list fields in struct order: try that one first
 	ok = s.Object(func(k []byte) bool {
-		i, known := p.byName[string(k)]
-		if !known || seen&(1<<i) != 0 {
+		i := next
+		if i >= len(p.fields) || p.fields[i].name != string(k) {
+			var known bool
+			if i, known = p.byName[string(k)]; !known {
+				return false
+			}
+		}
+		if seen&(1<<i) != 0 {
 			return false
 		}
 		seen |= 1 << i
+		next = i + 1
 		f := &p.fields[i]
-		fv := v.Field(f.index)
+		at := unsafe.Add(base, f.offset)
 		var ok bool
 		switch f.kind {
 		case fString:
-			var x string
-			if x, ok = s.String(); ok {
-				fv.SetString(x)
-			}
-		case fBool, fBoolPtr:
+			*(*string)(at), ok = s.String()
+		case fBool:
+			*(*bool)(at), ok = s.Bool()
+		case fBoolPtr:
 			var x bool
 			if x, ok = s.Bool(); ok {
-				setField(fv, f.kind == fBoolPtr, &bslab, p.nBoolPtr, x)
+				*(**bool)(at) = slabbed(&bslab, p.nBoolPtr, x)
 			}
 		case fInt, fIntPtr:
 			var x int64
 			if x, ok = s.Int(strconv.IntSize); ok {
-				setField(fv, f.kind == fIntPtr, &islab, p.nIntPtr, int(x))
+				if f.kind == fInt {
+					*(*int)(at) = int(x)
+				} else {
+					*(**int)(at) = slabbed(&islab, p.nIntPtr, int(x))
+				}
 			}
-		case fFloat, fFloatPtr:
+		case fFloat:
+			*(*float64)(at), ok = s.Float()
+		case fFloatPtr:
 			var x float64
 			if x, ok = s.Float(); ok {
-				setField(fv, f.kind == fFloatPtr, &slab, p.nFloatPtr, x)
+				*(**float64)(at) = slabbed(&slab, p.nFloatPtr, x)
 			}
 		case fFloats:
 			xs := make([]float64, 0, 8)
@@ -163,22 +209,12 @@ func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 				xs = append(xs, x)
 				return ok
 			}); ok {
-				fv.Set(reflect.ValueOf(xs))
+				*(*[]float64)(at) = xs
 			}
 		}
 		return ok
 	})
 	return fieldSet{plan: p, bits: seen}, ok && s.End()
-}
-
-// setField stores x in the addressable field fv of type T, or, when ptr,
-// of type *T, pointing into the body's slab of Ts (slabbed).
-func setField[T any](fv reflect.Value, ptr bool, slab *[]T, n int, x T) {
-	if ptr {
-		*fv.Addr().Interface().(**T) = slabbed(slab, n, x)
-		return
-	}
-	*fv.Addr().Interface().(*T) = x
 }
 
 // slabbed appends x to *slab (made with room for n the first time) and
@@ -195,24 +231,25 @@ func slabbed[T any](slab *[]T, n int, x T) *T {
 
 // fastCanonical writes v (a pointer to a flat struct) as canonical would:
 // struct order, omitempty, no HTML escaping. ok is false when a value
-// needs what only encoding/json does (escapes, NaN, infinities).
+// needs what only encoding/json does (escapes, NaN, infinities). Fields
+// are read through the plan's offsets, as fastDecode writes them.
 func fastCanonical(v any) (json.RawMessage, bool) {
 	rv := reflect.ValueOf(v)
 	if rv.Kind() != reflect.Pointer || rv.IsNil() || rv.Elem().Kind() != reflect.Struct {
 		return nil, false
 	}
-	rv = rv.Elem()
-	p := planOf(rv.Type())
+	p := planOf(rv.Type().Elem())
 	if p == nil {
 		return nil, false
 	}
+	base := rv.UnsafePointer()
 	out := make([]byte, 0, 160)
 	out = append(out, '{')
 	first := true
 	for i := range p.fields {
 		f := &p.fields[i]
-		fv := rv.Field(f.index)
-		if f.omitEmpty && emptyField(f.kind, fv) {
+		at := unsafe.Add(base, f.offset)
+		if f.omitEmpty && emptyField(f.kind, at) {
 			continue
 		}
 		if !first {
@@ -221,33 +258,39 @@ func fastCanonical(v any) (json.RawMessage, bool) {
 		first = false
 		out = append(out, f.key...)
 		var ok bool
-		if out, ok = appendField(out, f.kind, fv); !ok {
+		if out, ok = appendField(out, f.kind, at); !ok {
 			return nil, false
 		}
 	}
 	return append(out, '}'), true
 }
 
-func emptyField(k fieldKind, v reflect.Value) bool {
+// emptyField: the field at at, of kind k, is what omitempty leaves out.
+func emptyField(k fieldKind, at unsafe.Pointer) bool {
 	switch k {
 	case fString:
-		return v.Len() == 0
+		return len(*(*string)(at)) == 0
 	case fBool:
-		return !v.Bool()
+		return !*(*bool)(at)
 	case fInt:
-		return v.Int() == 0
+		return *(*int)(at) == 0
 	case fFloat:
-		return v.Float() == 0
+		return *(*float64)(at) == 0
 	case fFloats:
-		return v.Len() == 0
+		return len(*(*[]float64)(at)) == 0
+	case fIntPtr:
+		return *(**int)(at) == nil
+	case fFloatPtr:
+		return *(**float64)(at) == nil
 	}
-	return v.IsNil()
+	return *(**bool)(at) == nil
 }
 
-func appendField(out []byte, k fieldKind, v reflect.Value) ([]byte, bool) {
+// appendField writes the field at at, of kind k.
+func appendField(out []byte, k fieldKind, at unsafe.Pointer) ([]byte, bool) {
 	switch k {
 	case fString:
-		s := v.String()
+		s := *(*string)(at)
 		if !plainText(s) {
 			return nil, false
 		}
@@ -255,37 +298,41 @@ func appendField(out []byte, k fieldKind, v reflect.Value) ([]byte, bool) {
 		out = append(out, s...)
 		return append(out, '"'), true
 	case fBool:
-		return strconv.AppendBool(out, v.Bool()), true
+		return strconv.AppendBool(out, *(*bool)(at)), true
 	case fInt:
-		return strconv.AppendInt(out, v.Int(), 10), true
+		return strconv.AppendInt(out, int64(*(*int)(at)), 10), true
 	case fFloat:
-		return appendFloat(out, v.Float())
+		return appendFloat(out, *(*float64)(at))
 	case fFloats:
-		if v.IsNil() {
+		xs := *(*[]float64)(at)
+		if xs == nil {
 			return append(out, "null"...), true
 		}
 		out = append(out, '[')
-		for i := 0; i < v.Len(); i++ {
+		for i, x := range xs {
 			if i > 0 {
 				out = append(out, ',')
 			}
 			var ok bool
-			if out, ok = appendFloat(out, v.Index(i).Float()); !ok {
+			if out, ok = appendFloat(out, x); !ok {
 				return nil, false
 			}
 		}
 		return append(out, ']'), true
-	}
-	if v.IsNil() {
-		return append(out, "null"...), true
-	}
-	switch k {
 	case fIntPtr:
-		return appendField(out, fInt, v.Elem())
+		if x := *(**int)(at); x != nil {
+			return appendField(out, fInt, unsafe.Pointer(x))
+		}
 	case fFloatPtr:
-		return appendField(out, fFloat, v.Elem())
+		if x := *(**float64)(at); x != nil {
+			return appendField(out, fFloat, unsafe.Pointer(x))
+		}
+	case fBoolPtr:
+		if x := *(**bool)(at); x != nil {
+			return appendField(out, fBool, unsafe.Pointer(x))
+		}
 	}
-	return appendField(out, fBool, v.Elem())
+	return append(out, "null"...), true
 }
 
 // appendFloat formats a float64 exactly as encoding/json does: the
