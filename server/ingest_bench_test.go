@@ -5,8 +5,10 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"net/http"
 	"net/http/httptest"
+	"os"
 	"path/filepath"
 	"sync"
 	"testing"
@@ -47,10 +49,7 @@ import (
 // is judged on: what a push costs end to end), and "in-process", the
 // same requests handed to the same handler chain (routing, middleware,
 // decoding, validation, store) without the socket, which shows the
-// hub's own share. On a 2-vCPU VM a bare 33 KB POST answered by an
-// empty handler costs about 0.1 ms when requests follow each other and
-// 0.22 ms when each follows an fsync, as here (DEVELOPERS.md,
-// Performance).
+// hub's own share. BenchmarkLoopbackPost measures the socket alone.
 func BenchmarkPushHandlerVsRawBolt(b *testing.B) {
 	for _, shape := range []struct {
 		name              string
@@ -252,4 +251,62 @@ func postRaw(url string, payload []byte, want int) error {
 		return fmt.Errorf("push: %d %v, %d applied of %d, rejected %+v", resp.StatusCode, err, out.Applied, want, out.Rejected)
 	}
 	return nil
+}
+
+// BenchmarkLoopbackPost: what the loopback socket alone costs a push of
+// the ingest benchmark's size — a 33 KB POST answered by a handler that
+// only reads it — back to back, and with an fsync of a 33 KB write
+// between requests, as the ingest benchmark's raw side puts one between
+// pushes. The difference is the socket's wake-up after the disk, which
+// the end-to-end ingest figure carries and the in-process one does not.
+//
+//	go test ./server -run '^$' -bench LoopbackPost -benchtime 2000x -count 3
+func BenchmarkLoopbackPost(b *testing.B) {
+	for _, gap := range []bool{false, true} {
+		name := "back-to-back"
+		if gap {
+			name = "after-fsync"
+		}
+		b.Run(name, func(b *testing.B) {
+			ts := httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+				if _, err := io.Copy(io.Discard, r.Body); err != nil {
+					http.Error(w, err.Error(), http.StatusBadRequest)
+					return
+				}
+				w.Header().Set("Content-Type", "application/json")
+				fmt.Fprint(w, `{"acked_through":100,"rejected":[],"applied":100}`)
+			}))
+			defer ts.Close()
+			f, err := os.Create(filepath.Join(b.TempDir(), "gap"))
+			if err != nil {
+				b.Fatal(err)
+			}
+			defer f.Close()
+			payload := bytes.Repeat([]byte("x"), 33_000)
+			var posting time.Duration
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				t0 := time.Now()
+				resp, err := benchClient.Post(ts.URL, "application/json", bytes.NewReader(payload))
+				if err != nil {
+					b.Fatal(err)
+				}
+				_, err = io.Copy(io.Discard, resp.Body)
+				resp.Body.Close()
+				if err != nil || resp.StatusCode != 200 {
+					b.Fatal(resp.StatusCode, err)
+				}
+				posting += time.Since(t0)
+				if gap {
+					if _, err := f.WriteAt(payload, 0); err != nil {
+						b.Fatal(err)
+					}
+					if err := f.Sync(); err != nil {
+						b.Fatal(err)
+					}
+				}
+			}
+			b.ReportMetric(float64(posting.Microseconds())/float64(b.N), "µs/post")
+		})
+	}
 }
