@@ -150,11 +150,11 @@ const cross = {
       if (wiDay < b.camp_start) return { field: 'body.weigh_in', label: 'Weigh-in', reason: `is on ${wiDay}, before the camp starts on ${b.camp_start}` };
       const gap = Math.round((bout - dayNum(wiDay)) / DAY);
       if (b.weigh_in_type === 'same_day' && gap !== 0) {
-        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is same_day, but the weigh-in is on ${wiDay} and the bout on ${b.bout_day}; use day_before or move the weigh-in` };
+        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is set to "Same day", but it is on ${wiDay} and the bout on ${b.bout_day}; choose "Day before" or move the weigh-in` };
       }
       const most = VOCAB.limits.max_day_before_days;
       if (b.weigh_in_type === 'day_before' && (gap < 1 || gap > most)) {
-        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is day_before, so the weigh-in must be 1 to ${most} days before the bout on ${b.bout_day}; it is on ${wiDay}` };
+        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is set to "Day before", so it must be 1 to ${most} days before the bout on ${b.bout_day}; it is on ${wiDay}` };
       }
     }
     let prev = '';

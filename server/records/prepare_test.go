@@ -228,11 +228,11 @@ func badCases(t *testing.T) []badCase {
 		{"bout weigh-in after bout", bt(map[string]any{"weigh_in": "2026-03-29T10:00:00+01:00"}), "body.weigh_in", []string{"after the bout day", "2026-03-28"}},
 		{"bout weigh-in before camp", bt(map[string]any{"weigh_in": "2026-01-29T10:00:00+01:00"}), "body.weigh_in", []string{"before the camp"}},
 		// 23:30 UTC on the 27th is already the 28th in Tokyo: the venue's zone decides the day.
-		{"bout weigh-in zone shifts day", bt(map[string]any{"weigh_in": "2026-03-27T23:30:00Z", "weigh_in_zone": "Asia/Tokyo"}), "body.weigh_in_type", []string{"day_before", "2026-03-28"}},
+		{"bout weigh-in zone shifts day", bt(map[string]any{"weigh_in": "2026-03-27T23:30:00Z", "weigh_in_zone": "Asia/Tokyo"}), "body.weigh_in_type", []string{`"Day before"`, "2026-03-28"}},
 		{"bout weigh-in zone bad", bt(map[string]any{"weigh_in_zone": "Madrid"}), "body.weigh_in_zone", []string{"IANA"}},
 		{"bout weigh-in type missing", bt(map[string]any{"weigh_in_type": nil}), "body.weigh_in_type", []string{"day_before, same_day"}},
 		{"bout weigh-in type unknown", bt(map[string]any{"weigh_in_type": "morning"}), "body.weigh_in_type", []string{"day_before, same_day"}},
-		{"bout same day mismatch", bt(map[string]any{"weigh_in_type": "same_day"}), "body.weigh_in_type", []string{"same_day", "2026-03-27"}},
+		{"bout same day mismatch", bt(map[string]any{"weigh_in_type": "same_day"}), "body.weigh_in_type", []string{`"Same day"`, `choose "Day before"`, "2026-03-27"}},
 		{"bout day before on bout day", bt(map[string]any{"weigh_in": "2026-03-28T08:00:00+01:00"}), "body.weigh_in_type", []string{"1 to 3 days"}},
 		{"bout day before a week early", bt(map[string]any{"weigh_in": "2026-03-21T08:00:00+01:00"}), "body.weigh_in_type", []string{"1 to 3 days"}},
 		{"bout class unknown", bt(map[string]any{"weight_class": "pro_superheavy"}), "body.weight_class", []string{"custom"}},

@@ -215,10 +215,10 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 	gap := int(boutDay.Sub(wiDay).Hours() / 24)
 	switch {
 	case b.WeighInType == "same_day" && gap != 0:
-		return nil, fe("body.weigh_in_type", "is same_day, but the weigh-in is on %s and the bout on %s; use day_before or move the weigh-in",
+		return nil, fe("body.weigh_in_type", "is set to \"Same day\", but it is on %s and the bout on %s; choose \"Day before\" or move the weigh-in",
 			wiDay.Format(time.DateOnly), b.BoutDay)
 	case b.WeighInType == "day_before" && (gap < 1 || gap > MaxDayBeforeDays):
-		return nil, fe("body.weigh_in_type", "is day_before, so the weigh-in must be 1 to %d days before the bout on %s; it is on %s",
+		return nil, fe("body.weigh_in_type", "is set to \"Day before\", so it must be 1 to %d days before the bout on %s; it is on %s",
 			MaxDayBeforeDays, b.BoutDay, wiDay.Format(time.DateOnly))
 	}
 	if err := boutLimit(&b, present); err != nil {
