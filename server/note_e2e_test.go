@@ -186,7 +186,7 @@ func TestE2ERefusedNoteAndDecisionAreCorrected(t *testing.T) {
 		switch r.ID {
 		case noteID:
 			assert.Equal(t, "body.audience", r.Field)
-			assert.Contains(t, r.Text, "Note of Ana Pereira, "+day+" — Who reads it: must be one of athlete, staff")
+			assert.Contains(t, r.Text, "Note of Ana Pereira, "+day+" — Who reads it: is not one of the choices")
 		case decID:
 			assert.Equal(t, "body.note", r.Field)
 			assert.Contains(t, r.Text, "Decision of Ana Pereira, "+day+" — What was decided: must be at most 2000 characters")

@@ -82,7 +82,7 @@ function checkField(f, body, year) {
       if (f.step > 0 && Math.abs(v / f.step - Math.round(v / f.step)) > 1e-9 && f.step_words) return bad(fill(f.step_words, f, v, year));
     }
     if (f.enum && typeof v === 'string' && v !== '' && !f.enum.includes(v)) {
-      return bad(`must be one of ${f.enum.join(', ')}; got ${JSON.stringify(v)}`);
+      return bad(VOCAB.not_a_choice_words);
     }
     if (f.max_len && typeof v === 'string') {
       if ([...v].length > f.max_len) return bad(`must be at most ${f.max_len} characters; got ${[...v].length}`);
@@ -113,7 +113,7 @@ const cross = {
   checkin(b) {
     const any = ['mass_kg', 'sleep_h', 'sleep', 'fatigue', 'soreness', 'stress', 'mood', 'rhr_bpm', 'usg'].some((k) => b[k] !== undefined && b[k] !== null) ||
       (typeof b.note === 'string' && b.note.trim() !== '');
-    if (!any) return { field: 'body', reason: 'a check-in needs at least one entry: mass_kg, sleep_h, the wellness items, rhr_bpm, usg or a note', label: 'Check-in' };
+    if (!any) return { field: 'body', reason: 'a check-in needs at least one entry: body mass, hours of sleep, the wellness items, resting heart rate, USG or a note', label: 'Check-in' };
     return null;
   },
   intervals(b) {
@@ -178,7 +178,7 @@ const cross = {
       return { field: f, label, reason: 'is false, but the incident is a knockout with loss of consciousness' };
     }
     if (b.loc_seconds !== undefined && b.loc_seconds !== null && b.loss_of_consciousness !== true && b.type !== 'knockout_loc') {
-      return { field: f, label, reason: 'is not true, but loc_seconds (how long consciousness was lost) is given' };
+      return { field: f, label, reason: 'is not marked, but how long consciousness was lost is given' };
     }
     if (b.loss_of_consciousness === true && b.type === 'injury') {
       return { field: f, label, reason: 'goes with a head incident; record a head knock, knockdown, stoppage or knockout' };
@@ -197,9 +197,9 @@ const cross = {
     if (!t || typeof t !== 'object') return null;
     for (const id of Object.keys(t).sort()) {
       const rule = VOCAB.rules.find((r) => r.id === id);
-      if (!rule) return { field: `body.thresholds.${id}`, label: 'Flag', reason: `is not a flag rule; use one of ${VOCAB.rules.map((r) => r.id).join(', ')}` };
+      if (!rule) return { field: `body.thresholds.${id}`, label: 'Flag', reason: 'is not a flag rule' };
       for (const k of Object.keys(t[id] || {}).sort()) {
-        if (!rule.params.includes(k)) return { field: `body.thresholds.${id}.${k}`, label: 'Setting', reason: `is not a setting of ${id}; use one of ${rule.params.join(', ')}` };
+        if (!rule.params.includes(k)) return { field: `body.thresholds.${id}.${k}`, label: 'Setting', reason: 'is not a setting of this flag rule' };
       }
     }
     return null;
@@ -230,7 +230,7 @@ function checkWeek(f, w, start) {
     if (e.ids.length > VOCAB.limits.max_emphasis_ids) return { field, label: group, reason: `has ${e.ids.length} emphases; at most ${VOCAB.limits.max_emphasis_ids} a week` };
     const seen = new Set();
     for (const [j, id] of e.ids.entries()) {
-      if (id === '') return { field: `${field}[${j}]`, label: group, reason: `is required: one of ${allowed.join(', ')}` };
+      if (id === '') return { field: `${field}[${j}]`, label: group, reason: VOCAB.choose_one_words };
       if (seen.has(id)) return { field: `${field}[${j}]`, label: group, reason: `${JSON.stringify(id)} is listed twice` };
       seen.add(id);
     }
@@ -284,7 +284,7 @@ const BELONGS = [['start_kmh', 'ift_30_15'], ['stage', 'ift_30_15'], ['vift_kmh'
 function fitnessTest(b) {
   const l = L();
   const protocols = Object.keys(TEST_WORDS);
-  if (!b.protocol) return { field: 'body.protocol', label: 'Test', reason: `is required: one of ${protocols.join(', ')}` };
+  if (!b.protocol) return { field: 'body.protocol', label: 'Test', reason: VOCAB.choose_one_words };
   for (const [k, p] of BELONGS) {
     if (has(b, k) && p !== b.protocol) return { field: `body.${k}`, label: 'Test', reason: `belongs to ${TEST_WORDS[p]}, not ${TEST_WORDS[b.protocol]}` };
   }
@@ -323,7 +323,7 @@ function fitnessTest(b) {
     if (!has(b, 'hr_max_bpm')) return { field: 'body.hr_max_bpm', label: 'Maximal heart rate', reason: `is required: the highest heart rate measured, ${l.min_hr_max} to ${l.max_hr_max} bpm` };
     const bad = between('body.hr_max_bpm', 'Maximal heart rate', b.hr_max_bpm, l.min_hr_max, l.max_hr_max, 'bpm');
     if (bad) return bad;
-    if (has(b, 'hr_peak')) return { field: 'body.hr_peak', label: 'Peak heart rate', reason: 'belongs to a 30-15 IFT or repeated-sprint test; a measured maximum goes in hr_max_bpm' };
+    if (has(b, 'hr_peak')) return { field: 'body.hr_peak', label: 'Peak heart rate', reason: 'belongs to a 30-15 IFT or repeated-sprint test; a maximum measured on its own is a maximal heart rate test' };
   }
   return null;
 }
@@ -365,7 +365,7 @@ function attemptsGiven(b) {
   const some = (a) => Array.isArray(a) && a.length > 0;
   if (some(b.flight_ms) || some(b.heights_cm)) return null;
   const l = L();
-  return { field: 'body.heights_cm', label: 'Jump height', reason: `is required: ${l.min_attempts} to ${l.max_attempts} attempts as heights in cm (heights_cm) or flight times in ms (flight_ms)` };
+  return { field: 'body.heights_cm', label: 'Jump height', reason: `is required: ${l.min_attempts} to ${l.max_attempts} attempts, as jump heights in cm or flight times in ms` };
 }
 
 function dropJump(b) {
@@ -440,10 +440,10 @@ function boutFightWeek(b) {
       const label = 'Fight-day cap';
       const lb = fd.over_limit_lb !== undefined && fd.over_limit_lb !== null;
       const pct = fd.over_official_pct !== undefined && fd.over_official_pct !== null;
-      if (lb && pct) return { field: p, label, reason: 'give either pounds over the limit (over_limit_lb) or percent over the official weigh-in mass (over_official_pct), not both' };
+      if (lb && pct) return { field: p, label, reason: 'give either pounds over the limit or percent over the official weigh-in mass, not both' };
       if (lb) return between(p + '.over_limit_lb', label, fd.over_limit_lb, 0, L.max_fight_day_lb, 'lb over the limit');
       if (pct) return between(p + '.over_official_pct', label, fd.over_official_pct, 0, L.max_fight_day_pct, '% over the official weigh-in mass');
-      return { field: p, label, reason: 'give pounds over the limit (over_limit_lb) or percent over the official weigh-in mass (over_official_pct)' };
+      return { field: p, label, reason: 'give pounds over the limit or percent over the official weigh-in mass' };
     }
   }
   const sets = b.stand_down_sets || [];
@@ -451,8 +451,8 @@ function boutFightWeek(b) {
   for (const [i, id] of sets.entries()) {
     if (!VOCAB.stand_down_sets.includes(id)) {
       const field = `body.stand_down_sets[${i}]`;
-      if (id === '') return { field, label: 'Stand-down rules', reason: `is required: one of ${VOCAB.stand_down_sets.join(', ')}` };
-      return { field, label: 'Stand-down rules', reason: `must be one of ${VOCAB.stand_down_sets.join(', ')}; got ${JSON.stringify(id)}` };
+      if (id === '') return { field, label: 'Stand-down rules', reason: VOCAB.choose_one_words };
+      return { field, label: 'Stand-down rules', reason: VOCAB.not_a_choice_words };
     }
   }
   return null;
@@ -460,11 +460,11 @@ function boutFightWeek(b) {
 
 function prescription(b) {
   const l = L();
-  if (has(b, 'pct_vift') && !has(b, 'vift_kmh')) return { field: 'body.vift_kmh', label: 'V_IFT', reason: "is required with pct_vift: the fighter's V_IFT from a 30-15 IFT, in km/h" };
-  if (!has(b, 'pct_vift') && has(b, 'vift_kmh')) return { field: 'body.pct_vift', label: 'Share of V_IFT', reason: `is required with vift_kmh: the share of V_IFT to run at, ${l.min_pct_vift} to ${l.max_pct_vift} %` };
+  if (has(b, 'pct_vift') && !has(b, 'vift_kmh')) return { field: 'body.vift_kmh', label: 'V_IFT', reason: "is required with a share of V_IFT: the fighter's V_IFT from a 30-15 IFT, in km/h" };
+  if (!has(b, 'pct_vift') && has(b, 'vift_kmh')) return { field: 'body.pct_vift', label: 'Share of V_IFT', reason: `is required with a V_IFT: the share of it to run at, ${l.min_pct_vift} to ${l.max_pct_vift} %` };
   const band = has(b, 'hr_lo_pct') || has(b, 'hr_hi_pct') || has(b, 'hr_max_bpm');
   if (!band) {
-    if (b.hr_max_from) return { field: 'body.hr_max_from', label: 'HRmax from', reason: 'belongs to a heart-rate band (hr_lo_pct, hr_hi_pct, hr_max_bpm)' };
+    if (b.hr_max_from) return { field: 'body.hr_max_from', label: 'HRmax from', reason: "belongs to a heart-rate band: give the band's lower and upper ends and the maximal heart rate too" };
     return null;
   }
   if (!has(b, 'hr_lo_pct')) return { field: 'body.hr_lo_pct', label: 'Heart-rate band', reason: `is required for a heart-rate band: its lower end, ${l.min_pct_hrmax} to ${l.max_pct_hrmax} % of HRmax` };

@@ -114,13 +114,13 @@ func CheckRules(prefix string, r *WeighInRules) error {
 		p := prefix + ".fight_day"
 		switch {
 		case f.OverLimitLb != nil && f.OverOfficialPct != nil:
-			return fe(p, "give either pounds over the limit (over_limit_lb) or percent over the official weigh-in mass (over_official_pct), not both")
+			return fe(p, "give either pounds over the limit or percent over the official weigh-in mass, not both")
 		case f.OverLimitLb != nil:
 			return between(p+".over_limit_lb", *f.OverLimitLb, 0, MaxFightDayLb, "lb over the limit")
 		case f.OverOfficialPct != nil:
 			return between(p+".over_official_pct", *f.OverOfficialPct, 0, MaxFightDayPct, "% over the official weigh-in mass")
 		default:
-			return fe(p, "give pounds over the limit (over_limit_lb) or percent over the official weigh-in mass (over_official_pct)")
+			return fe(p, "give pounds over the limit or percent over the official weigh-in mass")
 		}
 	}
 	return nil
@@ -172,7 +172,7 @@ func checkIncidentMedical(b *Incident) error {
 			return err
 		}
 		if (b.LOC == nil || !*b.LOC) && b.Type != "knockout_loc" {
-			return fe("body.loss_of_consciousness", "is not true, but loc_seconds (how long consciousness was lost) is given")
+			return fe("body.loss_of_consciousness", "is not marked, but how long consciousness was lost is given")
 		}
 	}
 	if b.LOC != nil && *b.LOC && b.Type == "injury" {

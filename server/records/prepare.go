@@ -225,9 +225,9 @@ func oneOf(field, v string, allowed []string) error {
 		}
 	}
 	if v == "" {
-		return fe(field, "is required: one of %s", strings.Join(allowed, ", "))
+		return fe(field, "%s", ChooseOneWords)
 	}
-	return fe(field, "must be one of %s; got %q", strings.Join(allowed, ", "), v)
+	return fe(field, "%s", NotAChoiceWords)
 }
 
 // text checks a text field (CheckText): length in characters, control

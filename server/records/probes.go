@@ -94,7 +94,7 @@ func Probes(now time.Time) ([]Probe, error) {
 				}
 			}
 			if len(f.Enum) > 0 {
-				add(f.Path+" not in its list", with(base, f.Path, "zzz"), index0(f.Path), f.EnumRefusal("zzz"))
+				add(f.Path+" not in its list", with(base, f.Path, "zzz"), index0(f.Path), NotAChoiceWords)
 			}
 			if f.MaxLen > 0 {
 				long := strings.Repeat("a", f.MaxLen+1)

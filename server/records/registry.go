@@ -98,10 +98,21 @@ func (f Field) need(words string) Field {
 	return f
 }
 
-// needEnum makes a list field required: "is required: one of …".
+// needEnum makes a list field required: "is required: choose one".
 func needEnum(path, label string, values []string) Field {
-	return enum(path, label, values).need("one of " + strings.Join(values, ", "))
+	f := enum(path, label, values)
+	f.Required = ChooseOneWords
+	return f
 }
+
+// The refusals of a choice left empty and of a value that is not one of
+// the choices. They name no choice: the form shows the choices in its
+// own words, and the ids belong to the JSON (the field's path says which
+// list). The app reads them from the vocabulary.
+const (
+	ChooseOneWords  = "is required: choose one"
+	NotAChoiceWords = "is not one of the choices"
+)
 
 // needName is a required name: "is required: who …, 1 to 80 characters".
 func needName(path, label, what string) Field {
@@ -567,14 +578,18 @@ type Vocabulary struct {
 	Order      []string             `json:"order"`
 	RangeWords string               `json:"range_words"`
 	// InvisibleWords refuses a text of only invisible characters.
-	InvisibleWords string     `json:"invisible_words"`
-	MinYear        int        `json:"min_year"`
-	MaxNameLen     int        `json:"max_name_len"`
-	MaxNoteLen     int        `json:"max_note_len"`
-	Protocols      []Protocol `json:"protocols"`
-	Exercises      []string   `json:"exercises"`
-	Modalities     []Option   `json:"modalities"`
-	Levels         []string   `json:"levels"`
+	InvisibleWords string `json:"invisible_words"`
+	// ChooseOneWords and NotAChoiceWords refuse a choice left empty and a
+	// value that is not one of the choices.
+	ChooseOneWords  string     `json:"choose_one_words"`
+	NotAChoiceWords string     `json:"not_a_choice_words"`
+	MinYear         int        `json:"min_year"`
+	MaxNameLen      int        `json:"max_name_len"`
+	MaxNoteLen      int        `json:"max_note_len"`
+	Protocols       []Protocol `json:"protocols"`
+	Exercises       []string   `json:"exercises"`
+	Modalities      []Option   `json:"modalities"`
+	Levels          []string   `json:"levels"`
 	// Emphases are the training emphases a plan week and a session's
 	// focus name, in the product's words.
 	Emphases []EmphasisDef `json:"emphases"`
@@ -607,7 +622,8 @@ type VocabKind struct {
 
 // Vocab builds the app's vocabulary from the registry.
 func Vocab() Vocabulary {
-	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, InvisibleWords: InvisibleWords, MinYear: MinYear,
+	v := Vocabulary{Kinds: map[string]VocabKind{}, RangeWords: RangeWords, InvisibleWords: InvisibleWords,
+		ChooseOneWords: ChooseOneWords, NotAChoiceWords: NotAChoiceWords, MinYear: MinYear,
 		MaxNameLen: MaxNameLen, MaxNoteLen: MaxNoteLen, Protocols: Protocols, Modalities: ModalityOptions,
 		Levels: Levels, Emphases: Emphases, CR10: CR10,
 		Limits: map[string]float64{"max_camp_days": MaxCampDays, "max_day_before_days": MaxDayBeforeDays, "max_session_min": MaxSessionMin,
@@ -641,17 +657,8 @@ func kindNames() []string {
 	return out
 }
 
-// EnumWords and LengthWords are the refusals of a value not in a list and
-// of a text too long.
-const (
-	EnumWords   = "must be one of {list}; got {got}"
-	LengthWords = "must be at most {max} characters; got {got}"
-)
-
-// EnumRefusal is the hub's words for a value not in the field's list.
-func (f Field) EnumRefusal(got string) string {
-	return strings.NewReplacer("{list}", strings.Join(f.Enum, ", "), "{got}", strconv.Quote(got)).Replace(EnumWords)
-}
+// LengthWords is the refusal of a text too long.
+const LengthWords = "must be at most {max} characters; got {got}"
 
 // ItemsRefusal is the hub's words for an array of n elements, too many or too few.
 func (f Field) ItemsRefusal(n int) string {

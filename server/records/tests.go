@@ -206,7 +206,7 @@ func validateFitnessTest(c *check, raw json.RawMessage) (any, error) {
 		}
 	}
 	if b.HRPeak != nil && b.Protocol == ProtocolHRMax {
-		return nil, fe("body.hr_peak", "belongs to a 30-15 IFT or repeated-sprint test; a measured maximum goes in hr_max_bpm")
+		return nil, fe("body.hr_peak", "belongs to a 30-15 IFT or repeated-sprint test; a maximum measured on its own is a maximal heart rate test")
 	}
 	if err := note("body.note", b.Note); err != nil {
 		return nil, err
@@ -369,16 +369,16 @@ func intervalTargets(b *Intervals, present fieldSet) error {
 	// Then what goes together.
 	switch {
 	case b.PctVIFT != nil && !present.has("vift_kmh"):
-		return fe("body.vift_kmh", "is required with pct_vift: the fighter's V_IFT from a 30-15 IFT, in km/h")
+		return fe("body.vift_kmh", "is required with a share of V_IFT: the fighter's V_IFT from a 30-15 IFT, in km/h")
 	case b.PctVIFT == nil && present.has("vift_kmh"):
-		return fe("body.pct_vift", "is required with vift_kmh: the share of V_IFT to run at, %d to %d %%", MinPctVIFT, MaxPctVIFT)
+		return fe("body.pct_vift", "is required with a V_IFT: the share of it to run at, %d to %d %%", MinPctVIFT, MaxPctVIFT)
 	case b.PctVIFT != nil:
 		b.TargetRepM = round4(fitness.RepDistanceM(b.VIFTKmh, *b.PctVIFT, b.WorkS))
 	}
 	band := b.HRLoPct != nil || b.HRHiPct != nil || present.has("hr_max_bpm")
 	switch {
 	case !band && b.HRMaxFrom != "":
-		return fe("body.hr_max_from", "belongs to a heart-rate band (hr_lo_pct, hr_hi_pct, hr_max_bpm)")
+		return fe("body.hr_max_from", "belongs to a heart-rate band: give the band's lower and upper ends and the maximal heart rate too")
 	case !band:
 	case b.HRLoPct == nil:
 		return fe("body.hr_lo_pct", "is required for a heart-rate band: its lower end, %d to %d %% of HRmax", MinPctHRMax, MaxPctHRMax)

@@ -121,7 +121,7 @@ func TestTestsRefused(t *testing.T) {
 		field string
 		words []string
 	}{
-		{"no protocol", ft(`{"stage":12}`), "body.protocol", []string{"required", "ift_30_15"}},
+		{"no protocol", ft(`{"stage":12}`), "body.protocol", []string{ChooseOneWords}},
 		{"unknown protocol", ft(`{"protocol":"beep"}`), "body.protocol", []string{"one of"}},
 		{"stage the protocol lacks", ft(`{"protocol":"ift_30_15","stage":36}`), "body.stage", []string{"must be between 1 and 35 (the stages of the test); got 36"}},
 		{"stage 0", ft(`{"protocol":"ift_30_15","stage":0}`), "body.stage", []string{"between 1 and 35", "got 0"}},

@@ -102,7 +102,7 @@ func validateSettings(c *check, raw json.RawMessage) (any, error) {
 	for _, id := range rules {
 		rule, ok := RuleByID(id)
 		if !ok {
-			return nil, fe("body.thresholds."+id, "is not a flag rule; use one of %s", strings.Join(RuleIDs, ", "))
+			return nil, fe("body.thresholds."+id, "is not a flag rule")
 		}
 		names := make([]string, 0, len(b.Thresholds[id]))
 		for k := range b.Thresholds[id] {
@@ -120,7 +120,7 @@ func validateSettings(c *check, raw json.RawMessage) (any, error) {
 				for i, q := range rule.Params {
 					known[i] = q.Name
 				}
-				return nil, fe(field, "is not a setting of %s; use one of %s", id, strings.Join(known, ", "))
+				return nil, fe(field, "is not a setting of this flag rule")
 			}
 			v := b.Thresholds[id][k]
 			if err := between(field, v, prm.Min, prm.Max, prm.Unit); err != nil {
@@ -293,7 +293,7 @@ func boutLimit(b *Bout, present fieldSet) error {
 		}
 		if cl.Unlimited() {
 			if hasLimit {
-				return fe("body.limit_kg", "must be left out: %s has no upper limit; use \"custom\" for a catchweight", cl.Label)
+				return fe("body.limit_kg", "must be left out: %s has no upper limit; choose a custom limit for a catchweight", cl.Label)
 			}
 			b.LimitKg = 0
 			return nil
@@ -303,7 +303,7 @@ func boutLimit(b *Bout, present fieldSet) error {
 			return nil
 		}
 		if math.Abs(b.LimitKg-cl.LimitKg()) > limitMatchKg {
-			return fe("body.limit_kg", "is %s kg, but %s is %s %s (%.3f kg); use weight_class \"custom\" for a catchweight",
+			return fe("body.limit_kg", "is %s kg, but %s is %s %s (%.3f kg); choose a custom limit for a catchweight",
 				fmtNum(b.LimitKg), cl.Label, fmtNum(cl.Limit), cl.Unit, cl.LimitKg())
 		}
 		b.LimitKg = cl.LimitKg()
@@ -322,7 +322,7 @@ func validateCheckin(c *check, raw json.RawMessage) (any, error) {
 	}
 	if b.MassKg == nil && b.SleepH == nil && b.Sleep == nil && b.Fatigue == nil && b.Soreness == nil &&
 		b.Stress == nil && b.Mood == nil && b.RHR == nil && b.USG == nil && strings.TrimSpace(b.Note) == "" {
-		return nil, fe("body", "a check-in needs at least one entry: mass_kg, sleep_h, the wellness items, rhr_bpm, usg or a note")
+		return nil, fe("body", "a check-in needs at least one entry: body mass, hours of sleep, the wellness items, resting heart rate, USG or a note")
 	}
 	if b.MassKg != nil {
 		if err := between("body.mass_kg", *b.MassKg, MinMassKg, MaxMassKg, "kg"); err != nil {
@@ -405,7 +405,7 @@ func validateJump(c *check, raw json.RawMessage) (any, error) {
 			}
 		}
 	default:
-		return nil, fe("body.heights_cm", "is required: %d to %d attempts as heights in cm (heights_cm) or flight times in ms (flight_ms)",
+		return nil, fe("body.heights_cm", "is required: %d to %d attempts, as jump heights in cm or flight times in ms",
 			MinAttempts, MaxAttempts)
 	}
 	b.BestCm, b.MeanCm = b.HeightsCm[0], 0
