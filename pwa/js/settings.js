@@ -16,6 +16,7 @@ function correctURL(r) {
   const rec = r.record;
   if (rec.kind === 'bout' && rec.athlete) return `/plan?athlete=${encodeURIComponent(rec.athlete)}&bout=${encodeURIComponent(rec.id)}`;
   if (rec.kind === 'athlete') return '/camp';
+  if (rec.kind === 'settings' && rec.athlete) return `/thresholds?athlete=${encodeURIComponent(rec.athlete)}`;
   const route = editRouteOf(rec);
   return route ? `${route}?edit=${encodeURIComponent(r.id)}` : '';
 }

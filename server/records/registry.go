@@ -176,7 +176,7 @@ var Registry = []Kind{
 		validate: validateAthlete,
 	},
 	{
-		Name: KindSettings, Label: "settings", Plural: "settings", Body: Settings{}, Scope: CampOrAthlete,
+		Name: KindSettings, Screen: "/thresholds", Label: "settings", Plural: "settings", Body: Settings{}, Scope: CampOrAthlete,
 		Rules: RuleIDs,
 		// Every flag rule's thresholds (the Rules table), then the camp's own.
 		Fields: append(thresholdFields(),

@@ -114,11 +114,7 @@ func validateSettings(c *check, raw json.RawMessage) (any, error) {
 			prm, ok := ParamOf(id, k)
 			if !ok {
 				if len(rule.Params) == 0 {
-					return nil, fe(field, "is not a setting: %s has no thresholds of its own", id)
-				}
-				known := make([]string, len(rule.Params))
-				for i, q := range rule.Params {
-					known[i] = q.Name
+					return nil, fe(field, "is not a setting: this flag rule has no thresholds of its own")
 				}
 				return nil, fe(field, "is not a setting of this flag rule")
 			}

@@ -76,7 +76,8 @@ export function AthletePage() {
     </div>
     ${id && html`<p class="muted">${shortDay(addDays(day, -(SPAN_DAYS - 1)))} to ${longDay(day)} · masses in ${units}</p>
       <p class="row no-print"><${Link} to=${query('/review', { day, athlete: id })} class="secondary linkbtn" data-testid="athlete-to-review">Flags of the day</${Link}>
-      <${Link} to=${query('/plan', { athlete: id })} class="secondary linkbtn" data-testid="athlete-to-plan">Camp plan</${Link}></p>`}
+      <${Link} to=${query('/plan', { athlete: id })} class="secondary linkbtn" data-testid="athlete-to-plan">Camp plan</${Link}>
+      <${Link} to=${query('/thresholds', { athlete: id })} class="secondary linkbtn" data-testid="athlete-to-thresholds">Flag thresholds</${Link}></p>`}
     ${!id && html`<p class="muted">Choose an athlete to see the charts.</p>`}
     ${st.error && html`<p class="error" data-testid="athlete-error">${st.s ? `Showing the last copy: ${st.error}.` : `No charts: ${st.error}. Charts are drawn from the hub's numbers; they appear once it can be reached.`}</p>`}
     ${id && !st.s && !st.error && html`<p class="muted">Asking the hub for the numbers…</p>`}

@@ -24,7 +24,7 @@ export function settingWords(f, tables, units) {
   const p = paramOf(tables, f.threshold_name);
   const v = num(f.threshold, f.unit, units);
   if (!p || !p.help) return '';
-  return `Threshold: ${p.help}, ${v}. Each fighter's thresholds can be changed in their settings.`;
+  return `Threshold: ${p.help}, ${v}. Each fighter's thresholds can be changed under Flag thresholds, from their charts.`;
 }
 
 // flagTitles gives each flag of one fighter's day a heading of its own:

@@ -47,4 +47,5 @@ export const COACH_ROUTES = {
   // Camp set-up (athletes, their names and units) is the coach's alone.
   '/camp': lazy(() => import('../camp.js'), 'Camp'),
   '/decision': lazy(() => import('./decision.js'), 'Decision'),
+  '/thresholds': lazy(() => import('./thresholds.js'), 'Thresholds'),
 };
