@@ -283,6 +283,8 @@ func TestCoachScreensSpeakWords(t *testing.T) {
 		{"/today", `document.querySelector('[data-testid="screen-today"]')`},
 		{"/plan?athlete=" + ids["Mateo Lindqvist"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`},
 		{"/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`},
+		{"/thresholds?athlete=" + ids["Kofi Brandt"], `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]')`},
+		{"/thresholds?camp=1", `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]')`},
 	}
 	for _, day := range coveringDays(t, h) {
 		screens = append(screens,
@@ -292,8 +294,10 @@ func TestCoachScreensSpeakWords(t *testing.T) {
 	for _, s := range screens {
 		require.NoError(t, pwatest.Route(ctx, s.path))
 		require.NoError(t, pwatest.Poll(ctx, s.ready, 15*time.Second), s.path)
-		// Open every card's entries too: they are words on screen as well.
-		require.NoError(t, pwatest.Eval(ctx, `(() => { document.querySelectorAll('[data-testid="flag-inputs"]').forEach((b) => b.click()); return true })()`, nil))
+		// Open every card's entries and every folded part too: they are
+		// words on screen as well.
+		require.NoError(t, pwatest.Eval(ctx, `(() => { document.querySelectorAll('[data-testid="flag-inputs"]').forEach((b) => b.click());
+			document.querySelectorAll('#screen details').forEach((d) => { d.open = true; }); return true })()`, nil))
 		time.Sleep(300 * time.Millisecond)
 		var text string
 		require.NoError(t, pwatest.Eval(ctx, `document.querySelector('#screen').innerText`, &text))

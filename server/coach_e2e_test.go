@@ -611,6 +611,7 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`, `[data-testid^="review-athlete-"]`},
 		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart:not(.test-chart)')].length === 6 && [...document.querySelectorAll('figure.chart:not(.test-chart)')].every((e) => Number(e.dataset.points) > 0) && document.querySelector('[data-testid="test-charts"]')`, `[data-testid="chart-load"]`},
 		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`, `[data-testid="plan-weeks"]`},
+		{"thresholds", "/thresholds?athlete=" + ids["Kofi Brandt"], `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]') && (document.querySelector('[data-testid="thresholds-rule-jump_drop"]').open = true)`, `[data-testid="thresholds-save"]`},
 		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 5 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`, ""},
 	}
 	sizes := []struct{ w, h int64 }{{360, 740}, {1280, 800}}

@@ -90,8 +90,8 @@ func TestE2EThresholdsAreSetPerFighter(t *testing.T) {
 	}))
 	require.Equal(t, 1, stored, "one settings record for Kofi")
 	assert.Equal(t, map[string]map[string]float64{"spar_density": {"hard_cap_rounds": 25}}, body.Thresholds)
-	require.Eventually(t, func() bool { return !hasThreshold(todaysFlags(t, h, kofi), "spar_density.hard_cap_rounds") }, 10*time.Second, 100*time.Millisecond,
-		"21 hard rounds are under Kofi's own cap of 25")
+	// The hub drops the fighter's cached flags before it answers the push.
+	assert.False(t, hasThreshold(todaysFlags(t, h, kofi), "spar_density.hard_cap_rounds"), "21 hard rounds are under Kofi's own cap of 25")
 	assert.True(t, hasThreshold(todaysFlags(t, h, kofi), "spar_spacing.max_hard_days"), "his other flags stay")
 	shot(t, ctx, filepath.Join(pwatest.ShotDir(t), "thresholds.png"))
 
@@ -100,4 +100,30 @@ func TestE2EThresholdsAreSetPerFighter(t *testing.T) {
 	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="threshold-spar_density-hard_cap_rounds"]')?.value === '25'`, 20*time.Second))
 	who, _ = pwatest.Text(ctx, "thresholds-who")
 	assert.Contains(t, who, "Kofi Brandt: 1 threshold of their own")
+
+	// The whole camp's: the check-in hour camp set-up keeps, a camp-wide
+	// cap under Kofi's own, and the camp's other settings kept.
+	require.NoError(t, pwatest.Click(ctx, "thresholds-to-camp"))
+	require.NoError(t, pwatest.Poll(ctx, `document.querySelector('[data-testid="threshold-missing_checkin-hour"]')?.value === '10'`, 20*time.Second))
+	who, _ = pwatest.Text(ctx, "thresholds-who")
+	assert.Contains(t, who, "the whole camp")
+	require.NoError(t, coachSet(ctx, "threshold-missing_checkin-hour", "11"))
+	require.NoError(t, pwatest.Click(ctx, "thresholds-open-spar_density"))
+	require.NoError(t, coachSet(ctx, "threshold-spar_density-hard_cap_rounds", "12"))
+	require.NoError(t, pwatest.Click(ctx, "thresholds-save"))
+	require.NoError(t, pwatest.WaitText(ctx, "saved", "every fighter's flags"))
+	require.NoError(t, pwatest.WaitSynced(ctx))
+	var campBody map[string]any
+	n := 0
+	require.NoError(t, h.db.Range("", "settings", "", "", func(r devsync.Record) error {
+		n++
+		return json.Unmarshal(r.Body, &campBody)
+	}))
+	require.Equal(t, 1, n, "the camp's one settings record, edited in place")
+	assert.Equal(t, 11.0, campBody["checkin_hour"], "the hour stays where camp set-up keeps it")
+	assert.NotEmpty(t, campBody["gym_name"], "the camp's other settings are kept")
+	assert.Equal(t, map[string]any{"spar_density": map[string]any{"hard_cap_rounds": 12.0}}, campBody["thresholds"])
+	assert.False(t, hasThreshold(todaysFlags(t, h, kofi), "spar_density.hard_cap_rounds"), "Kofi's own 25 wins over the camp's 12")
+	require.NoError(t, pwatest.Open(ctx, h.url("/thresholds?athlete="+kofi)))
+	require.NoError(t, pwatest.WaitText(ctx, "threshold-missing_checkin-hour-fallback", "Empty: camp-wide 11 h"))
 }

@@ -3,7 +3,7 @@
 // QR), the device list with removal, and the backup download. Athletes are
 // records like any other (saved here first, synced); everything about
 // devices is the hub's and needs it reachable.
-import { html, useState, useEffect, useAthletes, useAsync, useVersion, SaveLine, savedState, plural } from './ui.js';
+import { html, useState, useEffect, useAthletes, useAsync, useVersion, SaveLine, savedState, plural, Link } from './ui.js';
 import { save, byKind } from './db.js';
 import { uuidv7 } from './uuid.js';
 import { hubGet, hubPost, HubReadError } from './coach/api.js';
@@ -298,6 +298,11 @@ export function Camp() {
     <${Devices} athletes=${athletes} version=${version} onChange=${bump} />
     <${Roster} />
     <${AddAthlete} />
+    <div class="card" data-testid="camp-thresholds">
+      <h2>Flag thresholds</h2>
+      <p class="muted">The whole camp's thresholds for each flag, and its morning check-in hour; a fighter's own, set from their charts, win over them.</p>
+      <p><${Link} to="/thresholds?camp=1" class="secondary linkbtn" data-testid="camp-to-thresholds">Camp's flag thresholds</${Link}></p>
+    </div>
     <${Backup} />
   </section>`;
 }

@@ -1,9 +1,11 @@
 // Flag thresholds: one fighter's own thresholds for the hub's flag rules,
-// saved in the fighter's settings record. A box left empty uses the
+// saved in the fighter's settings record, or (?camp=1) the whole camp's,
+// saved in the camp's settings record. A fighter's empty box uses the
 // camp-wide value where the camp's settings set one, else the product's
 // default (each from the sources in the product's references). The hub
 // merges defaults, camp and fighter in that order and recomputes the
-// fighter's flags when the record reaches it.
+// flags when the record reaches it. The camp's check-in hour is kept as
+// the record's checkin_hour, where camp set-up has always kept it.
 import { html, useState, useEffect, useRef, useAsync, useAthletes, useVersion, Link, SaveLine, savedState, savedHere, plural } from '../ui.js';
 import { save, byKind } from '../db.js';
 import { cmpHLC } from '../hlc.js';
@@ -22,6 +24,7 @@ function latestSettings(all, athlete) {
 }
 
 const key = (rule, p) => `${rule}.${p}`;
+const HOUR = 'missing_checkin.hour'; // the camp's check-in hour
 const sentence = (s) => (s ? s[0].toUpperCase() + s.slice(1) : s);
 const shown = (v) => (Number.isFinite(v) ? String(Math.round(v * 1000) / 1000) : '');
 const withUnit = (v, unit) => (unit ? `${shown(v)} ${unit}` : shown(v));
@@ -35,7 +38,9 @@ function parse(text) {
 }
 
 export function Thresholds() {
-  const id = new URLSearchParams(location.search).get('athlete') || '';
+  const q = new URLSearchParams(location.search);
+  const camp = q.get('camp') === '1';
+  const id = camp ? '' : q.get('athlete') || '';
   const list = useAthletes();
   const v = useVersion();
   const tables = useAsync(() => getTables().catch(() => null), [], undefined);
@@ -44,6 +49,7 @@ export function Thresholds() {
     return { own: latestSettings(all, id), camp: latestSettings(all, '') };
   }, [id, v], undefined);
   const [typed, setTyped] = useState({});
+  const who = camp ? 'camp' : id;
   const [state, setState] = useState(null);
   const [bad, setBad] = useState('');
   // Rules shown open: those with a number of the fighter's at the start and
@@ -54,18 +60,24 @@ export function Thresholds() {
   useEffect(() => {
     // Fill the boxes once per fighter: a sync arriving while the coach
     // types must not put the stored numbers back.
-    if (!settings || prefilled.current === id) return;
-    prefilled.current = id;
-    const th = (settings.own && settings.own.body && settings.own.body.thresholds) || {};
+    if (!settings || prefilled.current === who) return;
+    prefilled.current = who;
+    const body = (settings.own && settings.own.body) || {};
+    const th = body.thresholds || {};
     const out = {};
     for (const [rule, ps] of Object.entries(th)) for (const [p, x] of Object.entries(ps)) out[key(rule, p)] = shown(x);
+    const rules = new Set(Object.keys(th));
+    if (camp && Number.isFinite(body.checkin_hour) && !out[HOUR]) {
+      out[HOUR] = shown(body.checkin_hour);
+      rules.add('missing_checkin');
+    }
     setTyped(out);
-    setOpened(new Set(Object.keys(th)));
-  }, [settings, id]);
+    setOpened(rules);
+  }, [settings, who]);
 
   const loading = list === null || tables === undefined || settings === undefined;
   if (loading) return html`<section class="coach" data-testid="screen-thresholds" data-ready="false"><h1>Flag thresholds</h1><p class="muted">Loading…</p></section>`;
-  const a = (list || []).find((x) => x.id === id);
+  const a = camp ? { name: 'the whole camp' } : (list || []).find((x) => x.id === id);
   if (!a) {
     return html`<section class="coach" data-testid="screen-thresholds" data-ready="true"><h1>Flag thresholds</h1>
       <p>Open a fighter's charts and choose <strong>Flag thresholds</strong> there.</p>
@@ -75,8 +87,8 @@ export function Thresholds() {
     return html`<section class="coach" data-testid="screen-thresholds" data-ready="true"><h1>Flag thresholds</h1>
       <p class="error" role="alert" data-testid="thresholds-no-tables">The rules' thresholds come from the hub and this device has not had them yet. Open this screen once on the camp Wi-Fi.</p></section>`;
   }
-  const campTh = (settings.camp && settings.camp.body && settings.camp.body.thresholds) || {};
-  const campHour = settings.camp && settings.camp.body ? settings.camp.body.checkin_hour : undefined;
+  const campTh = camp ? {} : (settings.camp && settings.camp.body && settings.camp.body.thresholds) || {};
+  const campHour = !camp && settings.camp && settings.camp.body ? settings.camp.body.checkin_hour : undefined;
   // fallback: what applies to a box left empty, and where it comes from.
   const fallback = (rule, p) => {
     const c = campTh[rule] && campTh[rule][p.name];
@@ -105,12 +117,23 @@ export function Thresholds() {
     }
     const old = settings.own;
     const body = { ...((old && old.body) || {}) };
+    if (camp) {
+      // The camp's check-in hour stays where camp set-up keeps it.
+      const hour = th.missing_checkin && th.missing_checkin.hour;
+      if (hour !== undefined) {
+        body.checkin_hour = hour;
+        delete th.missing_checkin.hour;
+        if (!Object.keys(th.missing_checkin).length) delete th.missing_checkin;
+      } else delete body.checkin_hour;
+    }
     if (Object.keys(th).length) body.thresholds = th; else delete body.thresholds;
-    if (!old && !Object.keys(body).length) return setState({ error: 'Nothing to save: every box is empty, so this fighter has the camp-wide and default thresholds.' });
+    if (!old && !Object.keys(body).length) {
+      return setState({ error: camp ? 'Nothing to save: every box is empty, so the camp has the default thresholds.' : 'Nothing to save: every box is empty, so this fighter has the camp-wide and default thresholds.' });
+    }
     setState({ saving: true });
     try {
-      await save({ id: old ? old.id : undefined, kind: 'settings', athlete: id, day: old ? old.day : undefined, body });
-      setState(savedState(`${savedHere()}. The hub recomputes ${a.name}'s flags with these thresholds when it receives them.`));
+      await save({ id: old ? old.id : undefined, kind: 'settings', athlete: camp ? undefined : id, day: old ? old.day : undefined, body });
+      setState(savedState(`${savedHere()}. The hub recomputes ${camp ? "every fighter's" : `${a.name}'s`} flags with these thresholds when it receives them.`));
     } catch (err) {
       const m = /^body\.thresholds\.([a-z0-9_]+)\.([a-z0-9_]+)$/.exec(err.field || '');
       if (m) refuse(m[1], key(m[1], m[2]));
@@ -120,7 +143,9 @@ export function Thresholds() {
 
   return html`<form class="coach" onSubmit=${submit} data-testid="screen-thresholds" data-ready="true" novalidate>
     <h1>Flag thresholds</h1>
-    <p data-testid="thresholds-who">For <strong>${a.name}</strong>: ${own ? plural(own, 'threshold', 'thresholds') + ' of their own' : 'none of their own yet'}. A box left empty uses the camp-wide value where the camp has one, else the default.</p>
+    ${camp
+      ? html`<p data-testid="thresholds-who">For <strong>the whole camp</strong>: ${own ? plural(own, 'threshold', 'thresholds') + ' of its own' : 'none of its own yet'}. A box left empty uses the default; a fighter's own number, set from their charts, wins over the camp's.</p>`
+      : html`<p data-testid="thresholds-who">For <strong>${a.name}</strong>: ${own ? plural(own, 'threshold', 'thresholds') + ' of their own' : 'none of their own yet'}. A box left empty uses the camp-wide value where the camp has one, else the default (<${Link} to="/thresholds?camp=1" data-testid="thresholds-to-camp">the camp's thresholds</${Link}>).</p>`}
     <p class="caution" data-testid="thresholds-caution">A flag is a prompt for your judgement, not a verdict. The defaults come from published work and common practice; change one when you know this fighter's own noise or history. Stand-downs after a head knock can be made longer, never shorter, and the medical team and the sanctioning body's rules always come first.</p>
     ${tables.rules.map((r) => {
       const mine = (r.params || []).filter((p) => String(typed[key(r.id, p.name)] || '').trim() !== '').length;
@@ -142,6 +167,8 @@ export function Thresholds() {
     })}
     <button type="submit" class="primary" data-testid="thresholds-save" disabled=${state && state.saving}>Save thresholds</button>
     <${SaveLine} state=${state} />
-    <p class="row no-print"><${Link} to=${`/athlete?id=${encodeURIComponent(id)}`} class="secondary linkbtn" data-testid="thresholds-to-athlete">${a.name}'s charts</${Link}></p>
+    ${camp
+      ? html`<p class="row no-print"><${Link} to="/camp" class="secondary linkbtn" data-testid="thresholds-to-setup">Camp set-up</${Link}></p>`
+      : html`<p class="row no-print"><${Link} to=${`/athlete?id=${encodeURIComponent(id)}`} class="secondary linkbtn" data-testid="thresholds-to-athlete">${a.name}'s charts</${Link}></p>`}
   </form>`;
 }
