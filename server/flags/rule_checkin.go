@@ -168,5 +168,5 @@ func (e *engine) missingCheckin() {
 	h := int(hour)
 	m := int(math.Round((hour - float64(h)) * 60))
 	e.add(Flag{Rule: rule, Level: LevelInfo, Title: "No morning check-in", Threshold: f64(hour), ThresholdName: rule + ".hour", Unit: "h",
-		Reason: fmt.Sprintf("No morning check-in for %s by %02d:%02d camp time.", e.in.Day, h, m)})
+		Reason: fmt.Sprintf("No morning check-in on %s by %02d:%02d camp time.", e.today.Words(), h, m)})
 }

@@ -70,7 +70,7 @@ func (e *engine) massAbovePath() {
 		ThresholdName: rule + "." + name, Unit: "kg", Inputs: append(ids, p.id), Caution: CautionMass,
 		Details: map[string]float64{"excess_kg": excess, "excess_pct_of_limit": pct, "latest_kg": latest, "limit_kg": limit},
 		Reason: fmt.Sprintf("Mass trend %s is %s (%.1f %% of the %s limit) above the planned %s for today; latest morning mass %s on %s.",
-			e.mass(trend, 1), e.mass(excess, 1), pct, e.mass(limit, 1), e.mass(planned, 1), e.mass(latest, 1), latestDay)})
+			e.mass(trend, 1), e.mass(excess, 1), pct, e.mass(limit, 1), e.mass(planned, 1), e.mass(latest, 1), latestDay.Words())})
 }
 
 // inFinalDays reports whether today is in a bout's final phase: from n

@@ -134,7 +134,7 @@ func (e *engine) residualGap() {
 			e.add(Flag{Rule: rule, Level: LevelInfo, Title: q.title + " not trained lately", Value: f64(gap), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
 				Unit: "days", Inputs: []string{last.id},
 				Reason: fmt.Sprintf("%.0f days since the last %s session (%s), over %.0f; its training effect lasts about %s days.",
-					gap, q.name, last.day, limit, q.effect)})
+					gap, q.name, last.day.Words(), limit, q.effect)})
 			continue
 		}
 		span := float64(e.historyDays() - 1)

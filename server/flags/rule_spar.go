@@ -122,14 +122,14 @@ func (e *engine) sparSpacing() {
 			}
 			e.add(Flag{Rule: rule, Level: LevelWatch, Title: title, Value: f64(float64(apart)), Threshold: f64(float64(gap)),
 				ThresholdName: rule + ".min_gap_days", Unit: "days", Inputs: ids,
-				Reason: fmt.Sprintf("Hard sparring on %s and again today, under %s apart.", prev, count(gap, "day", "days"))})
+				Reason: fmt.Sprintf("Hard sparring on %s and again today, under %s apart.", prev.Words(), count(gap, "day", "days"))})
 		}
 	}
 	if maxDays := e.param(rule, "max_hard_days"); float64(len(hardDays)) > maxDays {
 		raised = true
 		names := make([]string, len(hardDays))
 		for i, d := range hardDays {
-			names[i] = d.String()
+			names[i] = d.Words()
 		}
 		e.add(Flag{Rule: rule, Level: LevelWatch, Title: fmt.Sprintf("Hard sparring on %d of the last %d days", len(hardDays), window),
 			Value: f64(float64(len(hardDays))), Threshold: f64(maxDays),
@@ -255,10 +255,10 @@ func (e *engine) sparOnHold() {
 				clearNote = " (clearance recorded; the minimum still runs)"
 			}
 			f.Reason = fmt.Sprintf("Stand-down after the %s on %s, day %.0f of at least %d: no sparring or contact before %s%s.",
-				what, inc.day, since, sd.days, end, clearNote)
+				what, inc.day.Words(), since, sd.days, end.Words(), clearNote)
 		} else {
 			res.Rule = capitalize(what) + ": treated as suspected concussion"
-			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (treated as suspected concussion), day %.0f: no sparring or contact until %s.", what, inc.day, since, UntilCleared)
+			f.Reason = fmt.Sprintf("Stand-down after the %s on %s (treated as suspected concussion), day %.0f: no sparring or contact until %s.", what, inc.day.Words(), since, UntilCleared)
 		}
 		res.RTS = e.ladder(&inc)
 		f.Restriction = res

@@ -92,6 +92,14 @@ func (n Number) Civil() (y, m, d int) {
 	return y, m, d
 }
 
+// Words names n as a coach reads it in a sentence: "Thu 3 Dec" (the
+// weekday and the date, as the fight-week screens write them; a camp's
+// days need no year).
+func (n Number) Words() string {
+	y, m, d := n.Civil()
+	return time.Date(y, time.Month(m), d, 12, 0, 0, 0, time.UTC).Format("Mon 2 Jan")
+}
+
 // String formats n as YYYY-MM-DD.
 func (n Number) String() string {
 	y, m, d := n.Civil()

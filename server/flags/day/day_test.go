@@ -74,3 +74,13 @@ func TestOfUsesWallClockDate(t *testing.T) {
 		t.Fatalf("Of = %s, want 2026-03-05", got)
 	}
 }
+
+// TestWordsNamesTheWeekday: 1970-01-01, day 0, was a Thursday, and so is
+// 2026-12-03 (the Gregorian calendar; common practice, no source).
+func TestWordsNamesTheWeekday(t *testing.T) {
+	for in, want := range map[string]string{"1970-01-01": "Thu 1 Jan", "2026-12-03": "Thu 3 Dec", "2024-02-29": "Thu 29 Feb", "2027-01-04": "Mon 4 Jan"} {
+		if got := MustParse(in).Words(); got != want {
+			t.Errorf("%s: %q, want %q", in, got, want)
+		}
+	}
+}
