@@ -126,4 +126,12 @@ func TestE2EThresholdsAreSetPerFighter(t *testing.T) {
 	assert.False(t, hasThreshold(todaysFlags(t, h, kofi), "spar_density.hard_cap_rounds"), "Kofi's own 25 wins over the camp's 12")
 	require.NoError(t, pwatest.Open(ctx, h.url("/thresholds?athlete="+kofi)))
 	require.NoError(t, pwatest.WaitText(ctx, "threshold-missing_checkin-hour-fallback", "Empty: camp-wide 11 h"))
+
+	// On a staff device the thresholds are shown, not offered for change.
+	require.NoError(t, pwatest.Eval(ctx, `import('/js/db.js').then((db) => db.setMeta('role', 'staff')).then(() => true)`, nil))
+	require.NoError(t, pwatest.Open(ctx, h.url("/thresholds?athlete="+kofi)))
+	require.NoError(t, pwatest.WaitText(ctx, "thresholds-read-only", "Only a coach's device changes thresholds"))
+	var offered bool
+	require.NoError(t, pwatest.Eval(ctx, `!!document.querySelector('[data-testid="thresholds-save"]') || !document.querySelector('[data-testid="threshold-spar_density-hard_cap_rounds"]').disabled`, &offered))
+	assert.False(t, offered, "no save and no editable box on a staff device")
 }

@@ -7,7 +7,7 @@
 // flags when the record reaches it. The camp's check-in hour is kept as
 // the record's checkin_hour, where camp set-up has always kept it.
 import { html, useState, useEffect, useRef, useAsync, useAthletes, useVersion, Link, SaveLine, savedState, savedHere, plural } from '../ui.js';
-import { save, byKind } from '../db.js';
+import { save, byKind, getMeta } from '../db.js';
 import { cmpHLC } from '../hlc.js';
 import { getTables } from './api.js';
 import { ruleName } from './common.js';
@@ -44,6 +44,8 @@ export function Thresholds() {
   const list = useAthletes();
   const v = useVersion();
   const tables = useAsync(() => getTables().catch(() => null), [], undefined);
+  // Thresholds are the coach's: a staff device shows them and says so.
+  const role = useAsync(() => getMeta('role').then((r) => r || ''), [], null);
   const settings = useAsync(async () => {
     const all = await byKind('settings');
     return { own: latestSettings(all, id), camp: latestSettings(all, '') };
@@ -75,7 +77,8 @@ export function Thresholds() {
     setOpened(rules);
   }, [settings, who]);
 
-  const loading = list === null || tables === undefined || settings === undefined;
+  const loading = list === null || tables === undefined || settings === undefined || role === null;
+  const readOnly = role === 'staff' || role === 'athlete';
   if (loading) return html`<section class="coach" data-testid="screen-thresholds" data-ready="false"><h1>Flag thresholds</h1><p class="muted">Loading…</p></section>`;
   const a = camp ? { name: 'the whole camp' } : (list || []).find((x) => x.id === id);
   if (!a) {
@@ -146,6 +149,7 @@ export function Thresholds() {
     ${camp
       ? html`<p data-testid="thresholds-who">For <strong>the whole camp</strong>: ${own ? plural(own, 'threshold', 'thresholds') + ' of its own' : 'none of its own yet'}. A box left empty uses the default; a fighter's own number, set from their charts, wins over the camp's.</p>`
       : html`<p data-testid="thresholds-who">For <strong>${a.name}</strong>: ${own ? plural(own, 'threshold', 'thresholds') + ' of their own' : 'none of their own yet'}. A box left empty uses the camp-wide value where the camp has one, else the default (<${Link} to="/thresholds?camp=1" data-testid="thresholds-to-camp">the camp's thresholds</${Link}>).</p>`}
+    ${readOnly && html`<p class="card" role="note" data-testid="thresholds-read-only">Only a coach's device changes thresholds; this ${role} device shows them.</p>`}
     <p class="caution" data-testid="thresholds-caution">A flag is a prompt for your judgement, not a verdict. The defaults come from published work and common practice; change one when you know this fighter's own noise or history. Stand-downs after a head knock can be made longer, never shorter, and the medical team and the sanctioning body's rules always come first.</p>
     ${tables.rules.map((r) => {
       const mine = (r.params || []).filter((p) => String(typed[key(r.id, p.name)] || '').trim() !== '').length;
@@ -158,15 +162,15 @@ export function Thresholds() {
           return html`<div class="threshold">
             <label for=${tid}>${sentence(p.help)}</label>
             <div class="unit-input"><input id=${tid} data-testid=${tid} inputmode="decimal" autocomplete="off"
-              placeholder=${shown(fb.v)} value=${typed[k] || ''} aria-invalid=${bad === k ? 'true' : 'false'}
+              placeholder=${shown(fb.v)} value=${typed[k] || ''} aria-invalid=${bad === k ? 'true' : 'false'} disabled=${readOnly}
               onInput=${(e) => set(k, e.target.value)} /><span class="unit">${p.unit || ''}</span></div>
             <p class="muted small" data-testid=${`${tid}-fallback`}>Empty: ${fb.from} ${withUnit(fb.v, p.unit)}${fb.from === 'camp-wide' ? ` (default ${withUnit(p.default, p.unit)})` : ''}. Allowed ${withUnit(p.min, '')} to ${withUnit(p.max, p.unit)}.</p>
           </div>`;
         })}
       </details>`;
     })}
-    <button type="submit" class="primary" data-testid="thresholds-save" disabled=${state && state.saving}>Save thresholds</button>
-    <${SaveLine} state=${state} />
+    ${!readOnly && html`<button type="submit" class="primary" data-testid="thresholds-save" disabled=${state && state.saving}>Save thresholds</button>
+    <${SaveLine} state=${state} />`}
     ${camp
       ? html`<p class="row no-print"><${Link} to="/camp" class="secondary linkbtn" data-testid="thresholds-to-setup">Camp set-up</${Link}></p>`
       : html`<p class="row no-print"><${Link} to=${`/athlete?id=${encodeURIComponent(id)}`} class="secondary linkbtn" data-testid="thresholds-to-athlete">${a.name}'s charts</${Link}></p>`}
