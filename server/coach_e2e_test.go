@@ -86,6 +86,11 @@ func coachSet(ctx context.Context, testid, value string) error {
 		e.dispatchEvent(new Event('input', { bubbles: true })); e.dispatchEvent(new Event('change', { bubbles: true })); return true })()`, sel, v), nil)
 }
 
+// allCharts: a fighter's charts page has drawn all of its charts — the
+// six of the last six weeks and the camp plan against what was done,
+// which the page loads together and shows at once — each with points.
+const allCharts = `(() => { const f = [...document.querySelectorAll('figure.chart:not(.test-chart)')]; return f.length === 7 && f.every((e) => Number(e.dataset.points) > 0) })()`
+
 // coachGet reads one JSON answer from the hub.
 func coachGet(url string) ([]byte, error) {
 	res, err := http.Get(url)
@@ -609,7 +614,7 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 	require.NoError(t, pwatest.Eval(ctx, "(() => { "+axeSource(t)+"\n; return typeof axe === 'object' })()", nil))
 	screens := []struct{ name, path, ready, more string }{
 		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`, `[data-testid^="review-athlete-"]`},
-		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, `[...document.querySelectorAll('figure.chart:not(.test-chart)')].length === 6 && [...document.querySelectorAll('figure.chart:not(.test-chart)')].every((e) => Number(e.dataset.points) > 0) && document.querySelector('[data-testid="test-charts"]')`, `[data-testid="chart-load"]`},
+		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, allCharts + ` && document.querySelector('[data-testid="test-charts"]')`, `[data-testid="chart-load"]`},
 		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`, `[data-testid="plan-weeks"]`},
 		{"thresholds", "/thresholds?athlete=" + ids["Kofi Brandt"], `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]') && (document.querySelector('[data-testid="thresholds-rule-jump_drop"]').open = true)`, `[data-testid="thresholds-save"]`},
 		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 5 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`, ""},
@@ -622,7 +627,11 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 			require.NoError(t, chromedp.Do(ctx, chromedp.EmulateViewport(sz.w, sz.h)))
 			for _, s := range screens {
 				require.NoError(t, pwatest.Route(ctx, s.path))
-				require.NoError(t, pwatest.Poll(ctx, s.ready, 15*time.Second), s.name)
+				if err := pwatest.Poll(ctx, s.ready, 15*time.Second); err != nil {
+					var st string
+					_ = pwatest.Eval(ctx, `JSON.stringify({url: location.href, figs: [...document.querySelectorAll('figure.chart:not(.test-chart)')].map((e) => e.dataset.points + ':' + (e.getAttribute('aria-label') || '').slice(0, 40)), tests: !!document.querySelector('[data-testid="test-charts"]'), err: [...document.querySelectorAll('.error')].map((e) => e.textContent)})`, &st)
+					t.Fatalf("%s %s %dx%d: %v; %s", s.name, scheme, sz.w, sz.h, err, st)
+				}
 				time.Sleep(150 * time.Millisecond) // charts settle to the new width
 				if sz.w == 360 {
 					checkPhoneScreen(t, ctx, s.name, scheme)

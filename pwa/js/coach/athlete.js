@@ -10,8 +10,11 @@ import { TestCharts } from './testcharts.js';
 
 const SPAN_DAYS = 42;
 
+// useSeries loads everything the charts draw — the series, the path on to
+// the weigh-in and the plan report — before any chart is shown, so the
+// charts appear together and none pushes the others down when it lands.
 function useSeries(id, day) {
-  const [st, setSt] = useState({ s: null, future: null, error: '' });
+  const [st, setSt] = useState({ s: null, future: null, plan: null, error: '' });
   useEffect(() => {
     if (!id) return undefined;
     let alive = true;
@@ -21,7 +24,10 @@ function useSeries(id, day) {
     if (c) setSt({ ...c.data, error: '', cachedAt: c.at });
     (async () => {
       try {
-        const s = await hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from, to: day }));
+        const [s, plan] = await Promise.all([
+          hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from, to: day })),
+          hubGet(query(`/api/athletes/${encodeURIComponent(id)}/plan`, { day })).catch(() => ({ none: true })),
+        ]);
         let future = null;
         const wi = s.mass && s.mass.weigh_in_day;
         // The planned path runs on to the weigh-in: fetch that stretch for the path alone.
@@ -29,8 +35,8 @@ function useSeries(id, day) {
           future = await hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from: addDays(day, 1), to: wi }));
         }
         if (!alive) return;
-        remember(key, { s, future });
-        setSt({ s, future, error: '' });
+        remember(key, { s, future, plan });
+        setSt({ s, future, plan, error: '' });
       } catch (e) {
         if (alive) setSt((o) => ({ ...o, error: e.message }));
       }
@@ -88,7 +94,7 @@ export function AthletePage() {
       <${RatioChart} s=${st.s} />
       <${SparChart} s=${st.s} />
       <${WellnessChart} s=${st.s} />
-      <${PlanChart} id=${id} day=${day} />
+      <${PlanChart} rep=${st.plan} />
     </div>`}
     ${id && html`<h2 key=${'t' + scheme}>Tests and prescriptions</h2><${TestCharts} key=${'c' + scheme} id=${id} day=${day} />`}
   </section>`;
@@ -343,14 +349,8 @@ const LEVEL_WORDS = { rest: 'Rest', low: 'Low', medium: 'Medium', medium_heavy: 
 
 // PlanChart is the camp plan against what was done, week by week: planned
 // and done session load, planned and done sparring rounds, from the hub's
-// plan report up to the chart's day.
-function PlanChart({ id, day }) {
-  const [rep, setRep] = useState(null);
-  useEffect(() => {
-    let alive = true;
-    hubGet(query(`/api/athletes/${encodeURIComponent(id)}/plan`, { day })).then((r) => alive && setRep(r), () => alive && setRep({ none: true }));
-    return () => { alive = false; };
-  }, [id, day]);
+// plan report up to the chart's day (loaded with the series).
+function PlanChart({ rep }) {
   if (!rep || rep.none || !rep.weeks || !rep.weeks.length) return null;
   const c = colors();
   const ws = rep.weeks;
