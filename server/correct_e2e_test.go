@@ -11,6 +11,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"cornerbook/pwa/pwatest"
+	"cornerbook/server/records"
 	devsync "cornerbook/sync"
 )
 
@@ -41,18 +42,10 @@ func TestTodayCorrectsAWeighInAndAStep(t *testing.T) {
 	ids := h.ids()
 	sami, mateo := ids["Sami Arkwright"], ids["Mateo Lindqvist"]
 	wi := firstOf(t, h, sami, "weigh_in", func(b map[string]any) bool { return b["type"] == "check" })
-	var wb struct {
-		Type   string  `json:"type"`
-		MassKg float64 `json:"mass_kg"`
-	}
+	var wb records.WeighIn
 	require.NoError(t, json.Unmarshal(wi.Body, &wb))
 	step := firstOf(t, h, mateo, "rts_step", func(b map[string]any) bool { return b["step"] == 3.0 })
-	var sb struct {
-		Step         int    `json:"step"`
-		Symptoms     string `json:"symptoms"`
-		SupervisedBy string `json:"supervised_by"`
-		Incident     string `json:"incident"`
-	}
+	var sb records.RTSStep
 	require.NoError(t, json.Unmarshal(step.Body, &sb))
 
 	ctx := coachBrowser(t, h, "/today?day="+wi.Day)
@@ -86,10 +79,7 @@ func TestTodayCorrectsAWeighInAndAStep(t *testing.T) {
 	require.NoError(t, pwatest.WaitSynced(ctx))
 	got, err := h.db.Get(wi.ID)
 	require.NoError(t, err)
-	var gb struct {
-		Type   string  `json:"type"`
-		MassKg float64 `json:"mass_kg"`
-	}
+	var gb records.WeighIn
 	require.NoError(t, json.Unmarshal(got.Body, &gb))
 	assert.InDelta(t, newLb*0.45359237, gb.MassKg, 0.0005, "the corrected mass, in kg")
 	assert.Equal(t, "check", gb.Type)
@@ -117,12 +107,7 @@ func TestTodayCorrectsAWeighInAndAStep(t *testing.T) {
 	require.NoError(t, pwatest.WaitSynced(ctx))
 	got, err = h.db.Get(step.ID)
 	require.NoError(t, err)
-	var gs struct {
-		Step         int    `json:"step"`
-		Symptoms     string `json:"symptoms"`
-		SupervisedBy string `json:"supervised_by"`
-		Incident     string `json:"incident"`
-	}
+	var gs records.RTSStep
 	require.NoError(t, json.Unmarshal(got.Body, &gs))
 	assert.Equal(t, "None; shadow boxing, skipping and footwork.", gs.Symptoms)
 	assert.Equal(t, 3, gs.Step)
