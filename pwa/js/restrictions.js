@@ -5,7 +5,7 @@
 // doctor's written clearance ends it. The hub decides what is running;
 // this module only words it.
 import { html, useState, useEffect, useVersion } from './ui.js';
-import { getMeta } from './db.js';
+import { hubGet } from './sync.js';
 import { localDay } from './record.js';
 
 export const UNTIL = 'cleared in writing by a doctor';
@@ -170,13 +170,8 @@ export function useOwnStandDowns(role) {
     const timer = setTimeout(() => { if (alive) setSt((o) => (o.ready ? o : { ...o, ready: true })); }, WAIT_MS);
     (async () => {
       try {
-        const token = await getMeta('token');
-        const headers = { Accept: 'application/json' };
-        if (token) headers.Authorization = `Bearer ${token}`;
         // Today as the hub counts it (the camp's time zone, not the phone's).
-        const res = await fetch('/api/flags', { headers, cache: 'no-store' });
-        if (!res.ok) throw new Error(`the hub answered ${res.status}`);
-        const data = await res.json();
+        const data = await hubGet('/api/flags');
         const names = {};
         for (const a of data.athletes || []) names[a.id] = a.name;
         const got = { list: restrictionsOf(data.flags), names, day: data.day || localDay() };

@@ -38,6 +38,10 @@ export class HubError extends Error {
   }
 }
 
+// hubGet reads one JSON answer from the hub with this device's pass and
+// the sync's time limit (a HubError when the hub refuses).
+export const hubGet = (url) => api('GET', url);
+
 async function api(method, url, body, knownToken) {
   const token = knownToken !== undefined ? knownToken : await getMeta('token');
   const headers = { Accept: 'application/json' };
