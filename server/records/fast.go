@@ -146,7 +146,7 @@ func builtin(t reflect.Type) bool {
 // type.
 func fastDecode(raw []byte, dst any) (present fieldSet, ok bool) {
 	rv := reflect.ValueOf(dst)
-	if rv.Kind() != reflect.Pointer || rv.IsNil() {
+	if rv.Kind() != reflect.Pointer || rv.IsNil() || rv.Elem().Kind() != reflect.Struct {
 		return fieldSet{}, false
 	}
 	p := planOf(rv.Type().Elem())
