@@ -52,9 +52,9 @@ func thresholdFields() []Field {
 	return out
 }
 
-// VocabRule is a flag rule as the app's checks see it: its id and the
-// names of its parameters, in table order (the hub's words for a threshold
-// of no rule, or of another rule, list them so).
+// VocabRule is a flag rule as the app's checks and screens see it: its
+// id, its name in the coach's words and the names of its parameters, in
+// table order (a threshold naming another parameter is refused).
 type VocabRule struct {
 	ID     string   `json:"id"`
 	Name   string   `json:"name"` // in the coach's words
