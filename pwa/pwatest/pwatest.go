@@ -351,8 +351,16 @@ func Text(ctx context.Context, testid string) (string, error) {
 }
 
 // WaitText waits until the element with a data-testid contains want.
+// When it gives up, the error says what the element held instead.
 func WaitText(ctx context.Context, testid, want string) error {
-	return Poll(ctx, fmt.Sprintf(`((document.querySelector(%q) || {}).textContent || '').includes(%q)`, Q(testid), want), 10*time.Second)
+	err := Poll(ctx, fmt.Sprintf(`((document.querySelector(%q) || {}).textContent || '').includes(%q)`, Q(testid), want), 10*time.Second)
+	if err != nil {
+		var held string
+		if Eval(ctx, fmt.Sprintf(`(() => { const e = document.querySelector(%q); if (e) return JSON.stringify(e.textContent); const a = [...document.querySelectorAll('[role=alert]')].map((x) => x.textContent); return 'no such element on ' + location.pathname + location.search + (a.length ? '; alerts: ' + JSON.stringify(a) : ''); })()`, Q(testid)), &held) == nil {
+			return fmt.Errorf("%w; %s held %s", err, testid, held)
+		}
+	}
+	return err
 }
 
 // SelectAthlete picks an athlete by name in the screen's athlete list.

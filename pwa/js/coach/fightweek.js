@@ -32,13 +32,13 @@ function localOffset() {
 }
 
 function useFightWeek(id, day, v) {
-  const [st, setSt] = useState({ fw: null, med: null, error: '', loaded: false });
+  const key = `fightweek.${id}.${day}`;
+  const [st, setSt] = useState({ key: '', fw: null, med: null, error: '', loaded: false });
   useEffect(() => {
     if (!id) return undefined;
     let alive = true;
-    const key = `fightweek.${id}.${day}`;
     const c = recall(key);
-    if (c) setSt({ ...c.data, error: '', cachedAt: c.at, loaded: true });
+    if (c) setSt({ ...c.data, key, error: '', cachedAt: c.at, loaded: true });
     (async () => {
       try {
         const [fw, med] = await Promise.all([
@@ -47,14 +47,17 @@ function useFightWeek(id, day, v) {
         ]);
         if (!alive) return;
         remember(key, { fw, med });
-        setSt({ fw, med, error: '', loaded: true });
+        setSt({ key, fw, med, error: '', loaded: true });
       } catch (e) {
-        if (alive) setSt((o) => ({ ...o, error: e.message, loaded: true }));
+        // A refusal keeps what this fighter's week already showed, never
+        // another fighter's.
+        if (alive) setSt((o) => (o.key === key ? { ...o, error: e.message, loaded: true } : { key, fw: null, med: null, error: e.message, loaded: true }));
       }
     })();
     return () => { alive = false; };
-  }, [id, day, v]);
-  return st;
+  }, [key, v]);
+  // Another fighter's or day's week is never shown under this one's name.
+  return st.key === key ? st : { fw: null, med: null, error: '', loaded: false };
 }
 
 // StandDowns shows every stand-down in force, above everything else, with
@@ -174,6 +177,13 @@ export function FightWeek() {
   const st = useFightWeek(athleteID, day, v);
   const fw = st.fw;
   const units = (fw && fw.units) || (a && a.units) || 'kg';
+  // Nothing below the title is drawn until the device's role, the camp's
+  // fighters and any entry being corrected are in hand, and then the week
+  // with its forms at once: a form never moves under a finger because a
+  // "Loading…" line above it went away.
+  if (role === null || list === null || editing === undefined) {
+    return html`<section class="coach" data-testid="screen-fightweek" data-ready="false"><h1>Fight week</h1><p class="muted" data-testid="fw-loading">Loading…</p></section>`;
+  }
   const ready = !athleteID || st.loaded;
   return html`<section class="coach" data-testid="screen-fightweek" data-ready=${ready && fw ? 'true' : 'false'}>
     <h1>Fight week${a ? html` — ${a.name}` : ''}</h1>
@@ -190,7 +200,7 @@ export function FightWeek() {
     ${st.error && html`<p class="error" data-testid="fw-error">${fw ? `Showing the last copy: ${st.error}.` : `No fight week: ${st.error}. It is computed by the hub and appears once the hub can be reached.`}</p>`}
     ${athleteID && !st.loaded && html`<p class="muted" data-testid="fw-loading">Loading…</p>`}
     ${fw && html`<${StandDowns} med=${st.med} units=${units} />`}
-    ${editing && a && role && role !== 'athlete' && html`<${WeighInForm} athlete=${a} units=${units} editing=${editing} onSaved=${() => setV((x) => x + 1)} />`}
+    ${editing && a && role !== 'athlete' && ready && html`<${WeighInForm} athlete=${a} units=${units} editing=${editing} onSaved=${() => setV((x) => x + 1)} />`}
     ${fw && !fw.bout && html`<p data-testid="fw-nobout">No bout is planned for this fighter.</p>`}
     ${fw && fw.bout && html`<${Week} fw=${fw} units=${units} staff=${!!role && role !== 'athlete'} />`}
     ${fw && fw.bout && a && role && role !== 'athlete' && !editing && html`<${WeighInForm} athlete=${a} units=${units} onSaved=${() => setV((x) => x + 1)} />`}
