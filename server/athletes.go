@@ -50,7 +50,7 @@ func (s *Server) handleSeries(w http.ResponseWriter, r *http.Request) error {
 	if err := series.CheckRange(from, to); err != nil {
 		return fromField(err)
 	}
-	in, err := s.flags.input(id, to)
+	in, err := s.flags.seriesInput(id, from, to)
 	if err != nil {
 		return err
 	}
@@ -224,7 +224,7 @@ func (s *Server) handleBaselines(w http.ResponseWriter, r *http.Request) error {
 		if who.Role == "athlete" && a.ID != who.Athlete {
 			continue
 		}
-		in, err := s.flags.input(a.ID, day)
+		in, err := s.flags.seriesInput(a.ID, from, day)
 		if err != nil {
 			return err
 		}

@@ -134,7 +134,7 @@ func (s *Server) FightWeek(athlete, today string) (FightWeekView, error) {
 	}
 	if in.Day < sTo {
 		// The history must reach the fight week's last day.
-		if in, err = s.flags.input(athlete, sTo); err != nil {
+		if in, err = s.flags.seriesInput(athlete, sFrom, sTo); err != nil {
 			return v, err
 		}
 	}

@@ -20,12 +20,17 @@ import (
 
 // History windows the flag rules need: the longest rolling window is the
 // 28-day baseline plus the 28-day chronic load, and residual gaps look
-// back up to ~40 days; incidents, clearances and return-to-sport steps are read in full because a
-// stand-down can outlast any window.
+// back flags.LookbackDays (120), as does the load series; incidents, clearances and
+// return-to-sport steps are read in full because a stand-down can outlast
+// any window.
 const flagWindowDays = FlagWindowDays
 
 // FlagWindowDays is exported for benchmarks that read the same records.
 const FlagWindowDays = 120
+
+// The window holds every day the rules look back over (a shorter one
+// would not build: an array of negative length).
+var _ [FlagWindowDays - flags.LookbackDays]struct{}
 
 // flagService computes the day's flags from the store and keeps them
 // current: a push invalidates only the athletes it touched, and the
@@ -463,6 +468,27 @@ func (f *flagService) input(id, day string) (flags.Input, error) {
 	in.FirstDay, in.From = f.firstDay(id, day), from
 	if in.Settings, err = f.settingsFor(id); err != nil {
 		return in, err
+	}
+	return in, nil
+}
+
+// seriesInput is input for day to, with the records a chart from..to
+// needs: every day of it is computed as the engine would on that day, from
+// the LookbackDays before it.
+func (f *flagService) seriesInput(id, from, to string) (flags.Input, error) {
+	in, err := f.input(id, to)
+	if err != nil {
+		return in, err
+	}
+	lo, err := addDays(from, -flags.LookbackDays)
+	if err != nil {
+		return in, err
+	}
+	if lo < in.From {
+		if in.Records, err = f.history(id, lo, to); err != nil {
+			return in, err
+		}
+		in.From = lo
 	}
 	return in, nil
 }

@@ -18,11 +18,18 @@ import (
 // 28-day baselines plus the day, and the mass trend's 42 days).
 const recentDays = 42
 
-// maxHistoryDays bounds the load series: records older than this many days
-// before the evaluated day are ignored (a mistyped year cannot make the
-// engine allocate centuries of days). After ten years the chronic EWMA
-// keeps no trace of its seed.
-const maxHistoryDays = 3650
+// LookbackDays bounds the load series and the search for a quality's
+// last session (residual_gap): the series starts at the athlete's first
+// record or this many days before the evaluated day, whichever is later,
+// and sessions before that are not read. The chronic average keeps a
+// weight of (1 − 2/29)^120 < 0.0002 of a load that old (λ = 2/(N+1), N =
+// 28; Williams et al. 2017), and residual effects last at most 30 ± 5 days
+// (Issurin 2008). So the flags are the same whether a caller passes the
+// whole history or, as the hub does, a window of at least this many days;
+// and a mistyped year cannot make the engine allocate centuries of days.
+// Incidents, clearances, return-to-sport steps and decisions are read
+// however old they are.
+const LookbackDays = 120
 
 type checkin struct {
 	id   string
@@ -137,7 +144,7 @@ func newEngine(in *Input) (*engine, bool) {
 			continue
 		}
 		d, ok := dayOf(r.Day)
-		if ok && d <= today && d >= today-maxHistoryDays && countsAsActivity(r.Kind) {
+		if ok && d <= today && countsAsActivity(r.Kind) {
 			e.active = true
 			if d < e.first {
 				e.first = d
@@ -149,9 +156,12 @@ func newEngine(in *Input) (*engine, bool) {
 		if from, ok := dayOf(in.From); ok && d < from {
 			d = from // sessions before From are not in Records
 		}
-		if d < e.first && d >= today-maxHistoryDays {
+		if d < e.first {
 			e.first = d
 		}
+	}
+	if e.first < today-LookbackDays {
+		e.first = today - LookbackDays
 	}
 	e.loads = make([]float64, int(today-e.first)+1)
 	// Pass 2: index each record under its day, decoding only the bodies a
@@ -163,7 +173,7 @@ func newEngine(in *Input) (*engine, bool) {
 			continue
 		}
 		d, ok := dayOf(r.Day)
-		if !ok || d > today || d < e.first {
+		if !ok || d > today {
 			continue
 		}
 		age := int(today - d)
@@ -200,7 +210,7 @@ func newEngine(in *Input) (*engine, bool) {
 			}
 		case kindSession:
 			var b SessionBody
-			if !decodeSession(r.Body, &b) {
+			if d < e.first || !decodeSession(r.Body, &b) {
 				continue
 			}
 			s := session{id: r.ID, day: d, loadAU: b.Load(), focus: b.Focus}

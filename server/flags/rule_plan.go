@@ -139,10 +139,16 @@ func (e *engine) residualGap() {
 		}
 		span := float64(e.historyDays() - 1)
 		if span > limit {
+			within := fmt.Sprintf("the %.0f days on record", span)
+			if span >= LookbackDays {
+				// No session in all the days the rule looks back over.
+				span = LookbackDays
+				within = fmt.Sprintf("the last %.0f days", span)
+			}
 			e.add(Flag{Rule: rule, Level: LevelInfo, Title: q.title + " not trained lately", Value: f64(span), Threshold: f64(limit), ThresholdName: rule + "." + q.param,
 				Unit: "days", Details: map[string]float64{"lower_bound": 1},
-				Reason: fmt.Sprintf("No %s session in the %.0f days on record, over %.0f; its training effect lasts about %s days.",
-					q.name, span, limit, q.effect)})
+				Reason: fmt.Sprintf("No %s session in %s, over %.0f; its training effect lasts about %s days.",
+					q.name, within, limit, q.effect)})
 			continue
 		}
 		e.forming(rule, q.title+" not trained yet", fmt.Sprintf("No %s session yet in the %s on record (window %s).", q.name, count(int(span), "day", "days"), count(int(limit), "day", "days")), nil)

@@ -125,6 +125,28 @@ func TestResidualGap(t *testing.T) {
 	if !strings.Contains(f.Reason, "No speed or plyometric session in the 40 days on record") {
 		t.Errorf("reason %q", f.Reason)
 	}
+	// A speed session 131 days back, in the camp before this one: beyond
+	// the 120 days the rule looks back, so reported as the lower bound,
+	// the same with the whole history as with the hub's window.
+	c = &camp{}
+	c.session(d(-131), 30, 6, "speed")
+	c.standardBout(nil)
+	c.mass(d(0), 70)
+	c.session(d(-1), 60, 7, "max_strength")
+	for _, from := range []string{"", d(-120)} {
+		in := c.input(d(0))
+		in.From = from
+		var f Flag
+		for _, x := range Compute(in) {
+			if x.Rule == RuleResidualGap && strings.Contains(x.Title, "Speed") {
+				f = x
+			}
+		}
+		if f.Value == nil || *f.Value != LookbackDays || f.Details["lower_bound"] != 1 ||
+			!strings.Contains(f.Reason, "No speed or plyometric session in the last 120 days") {
+			t.Errorf("from %q: %+v", from, f)
+		}
+	}
 	// A new athlete: forming for both qualities.
 	c = &camp{}
 	c.standardBout(nil)

@@ -82,9 +82,14 @@ func newBuilder(in *flags.Input, from, to day.Number) *builder {
 		if !own(r) || r.Kind == records.KindAthlete || r.Kind == records.KindBout || r.Kind == records.KindSettings || r.Kind == records.KindNote {
 			continue
 		}
-		if d, ok := dayOf(r.Day); ok && d <= to && d >= to-maxHistoryDays && d < b.first {
+		if d, ok := dayOf(r.Day); ok && d <= to && d < b.first {
 			b.first, b.hasFirst = d, true
 		}
+	}
+	// The load series of a day runs from at most flags.LookbackDays
+	// before it, as in the engine: nothing older is read.
+	if b.hasFirst && b.first < from-flags.LookbackDays {
+		b.first = from - flags.LookbackDays
 	}
 	b.lo = from - recentDays + 1
 	if b.hasFirst && b.first < b.lo {
@@ -388,23 +393,29 @@ func (b *builder) load(s *Series) {
 		return
 	}
 	la, lc := stats.Lambda(acuteN), stats.Lambda(chronicN)
-	var acute, chronic float64
-	for d := b.first; d <= b.to; d++ {
-		x := b.at(d).load
-		if d == b.first {
-			acute, chronic = x, x // both seeded with the first day's load
-		} else {
-			// One step of the recursion the engine runs over the whole
-			// history: the same function, so the same floating-point result.
+	for i := range s.Days {
+		d := b.from + day.Number(i)
+		if d < b.first {
+			continue
+		}
+		// Each day's averages run as the engine runs them for that day:
+		// seeded with the load of the first record's day or of the day
+		// flags.LookbackDays before, whichever is later.
+		start := max(b.first, d-flags.LookbackDays)
+		var acute, chronic float64
+		for e := start; e <= d; e++ {
+			x := b.at(e).load
+			if e == start {
+				acute, chronic = x, x // both seeded with the first day's load
+				continue
+			}
+			// One step of the engine's recursion: the same function, so
+			// the same floating-point result.
 			acute = stats.EWMASeeded([]float64{x}, la, acute)
 			chronic = stats.EWMASeeded([]float64{x}, lc, chronic)
 		}
-		if d < b.from {
-			continue
-		}
-		i := int(d - b.from)
-		l.DailyAU[i], l.AcuteAU[i], l.ChronicAU[i] = f64(x), f64(acute), f64(chronic)
-		if int(d-b.first)+1 >= minDays && chronic > 0 {
+		l.DailyAU[i], l.AcuteAU[i], l.ChronicAU[i] = f64(b.at(d).load), f64(acute), f64(chronic)
+		if int(d-start)+1 >= minDays && chronic > 0 {
 			l.Ratio[i] = f64(acute / chronic)
 		}
 	}

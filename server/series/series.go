@@ -243,6 +243,3 @@ func f64(v float64) *float64 {
 // rounds older than this many days before the evaluated day are not read
 // (the longest window a rule reads: 28-day baselines and the 42-day trend).
 const recentDays = 42
-
-// maxHistoryDays bounds the load history as the engine does.
-const maxHistoryDays = 3650
