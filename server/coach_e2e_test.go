@@ -398,10 +398,11 @@ func TestCoachAthletePageDrawsAllFiveCharts(t *testing.T) {
 		require.NoError(t, err)
 		assert.NotEmpty(t, sum, "%s has a text summary", c)
 	}
-	// Below them, each test's trend and the interval sessions done against
-	// prescribed, as the hub computed them: Tomas ran stage 22 then 23.
+	// Below them, each test's trend across camps and the interval sessions
+	// done against prescribed, as the hub computed them: Tomas ran stages
+	// 21 and 22 in his summer camp, 22 then 23 in this one.
 	require.NoError(t, pwatest.Poll(ctx, `(() => { const e = document.querySelector('[data-testid="test-chart-ift_30_15"]');
-		return !!e && Number(e.dataset.points) === 2 && !!e.querySelector('canvas') })()`, 15*time.Second))
+		return !!e && Number(e.dataset.points) === 4 && !!e.querySelector('canvas') })()`, 15*time.Second))
 	ift, err := pwatest.Text(ctx, "test-chart-ift_30_15-summary")
 	require.NoError(t, err)
 	assert.Contains(t, ift, "V_IFT 19.0 km/h (stage 23 from 8 km/h)")
@@ -616,6 +617,7 @@ func TestCoachScreensFitAPhoneAndWriteScreenshots(t *testing.T) {
 		{"review", "/review?day=" + coachDay, `document.querySelector('[data-testid="review-fresh"][data-live="true"]') && document.querySelectorAll('[data-testid="flag"]').length > 5`, `[data-testid^="review-athlete-"]`},
 		{"athlete", "/athlete?id=" + ids["Tomas Varga"] + "&day=" + coachDay, allCharts + ` && document.querySelector('[data-testid="test-charts"]')`, `[data-testid="chart-load"]`},
 		{"plan", "/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`, `[data-testid="plan-weeks"]`},
+		{"camps", "/camps?athlete=" + ids["Tomas Varga"] + "&day=" + coachDay, campCharts, `[data-testid="camps-tests"]`},
 		{"thresholds", "/thresholds?athlete=" + ids["Kofi Brandt"], `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]') && (document.querySelector('[data-testid="thresholds-rule-jump_drop"]').open = true)`, `[data-testid="thresholds-save"]`},
 		{"sheet", "/sheet?day=" + coachDay, `document.querySelectorAll('[data-testid="sheet-keys"]').length === 5 && ![...document.querySelectorAll('[data-testid="sheet-keys"]')].some((e) => e.textContent.includes('unavailable')) && document.querySelectorAll('[data-testid="sheet-flag"]').length > 5`, ""},
 	}

@@ -244,7 +244,86 @@ func (g *gen) build() []devsync.Record {
 	for _, f := range fs {
 		g.tests(f)
 	}
+	// Then the camps before this one, for the camp history: each drawn
+	// after all of this camp's records, so this camp's draws do not move.
+	for _, f := range fs {
+		if pc, ok := pastCamps[f.key]; ok {
+			g.pastCamp(f, pc)
+		}
+	}
 	return g.out
+}
+
+// pastCamp is an earlier camp of a demo fighter, for the camp history.
+type pastCamp struct {
+	boutIn    int     // days from today to that bout (negative)
+	weeks     int     // the camp's length
+	limitKg   float64 // that bout's limit
+	class     string
+	startMass float64 // morning mass at camp start
+	// weekOutPct is how far above the limit the morning mass was a week
+	// before the weigh-in: he came down steadily to it, then made weight
+	// about 0.5 % under the limit.
+	weekOutPct float64
+	baseCMJ    float64
+	stages     [2]int // 30-15 IFT final stages, first week and four weeks in
+	note       string
+}
+
+// pastCamps: Tomas's summer camp, when he came in on his path and jumped
+// higher than now; Kofi's spring camp at the same 71 kg, a shorter one.
+var pastCamps = map[string]pastCamp{
+	"tomas": {boutIn: -168, weeks: 8, limitKg: records.LbToKg(135), class: "pro_lightweight", startMass: 66.4, weekOutPct: 3.5,
+		baseCMJ: 46.5, stages: [2]int{21, 22}, note: "Made weight at the first attempt."},
+	"kofi": {boutIn: -210, weeks: 6, limitKg: 71, class: "ol2024_m_71", startMass: 73.4, weekOutPct: 1.5,
+		baseCMJ: 41.0, stages: [2]int{23, 24}, note: "Made weight at the first attempt."},
+}
+
+// pastCamp adds one earlier camp: its bout, a daily check-in, jumps,
+// training and sparring as in this camp, the two 30-15 IFTs and the
+// official weigh-in, which was made.
+func (g *gen) pastCamp(f *fighter, pc pastCamp) {
+	boutDay := pc.boutIn
+	campStart := boutDay - 7*pc.weeks + 1
+	weighDay := boutDay - 1
+	if f.weighType == "same_day" {
+		weighDay = boutDay
+	}
+	p := *f // the same fighter, in that camp
+	p.key = f.key + "-past"
+	p.campStart, p.boutIn, p.baseCMJ, p.limitKg, p.class = campStart, boutDay, pc.baseCMJ, pc.limitKg, pc.class
+	p.startMass = pc.startMass
+	weekOut, made := pc.limitKg*(1+pc.weekOutPct/100), pc.limitKg*0.995
+	p.massAt = func(d int) float64 {
+		if d <= weighDay-7 {
+			return pc.startMass + (weekOut-pc.startMass)*float64(d-campStart)/float64(weighDay-7-campStart)
+		}
+		return weekOut + (made-weekOut)*float64(d-(weighDay-7))/7
+	}
+	p.weeks = planWeeks(campStart, boutDay)
+	aid, phone := f.aid, "demo-phone-"+f.key
+	g.add(records.KindBout, aid, campStart, 8, 0, coachTablet, records.Bout{
+		Name: "Earlier bout, " + g.day(boutDay).Format("January 2006"), CampStart: g.dayStr(campStart),
+		WeighIn: g.day(weighDay).Add(9 * time.Hour).Format(time.RFC3339), WeighInType: f.weighType, BoutDay: g.dayStr(boutDay),
+		WeightClass: pc.class, LimitKg: round2(pc.limitKg), StartMassKg: pc.startMass, ReferenceLoadAU: f.refLoad, Weeks: p.weeks,
+	})
+	for d := campStart; d <= boutDay; d++ {
+		wd := g.day(d).Weekday()
+		if d <= weighDay {
+			g.checkin(&p, aid, phone, d)
+		}
+		if d < boutDay-3 && (wd == time.Monday || wd == time.Wednesday || wd == time.Friday) {
+			g.jump(&p, aid, d)
+		}
+		if wd == time.Sunday || d >= weighDay {
+			continue
+		}
+		g.trainingDay(&p, aid, phone, d, wd)
+	}
+	for i, d := range []int{campStart + 1, campStart + 29} {
+		g.add(records.KindFitnessTest, aid, d, 16, 0, coachTablet, records.FitnessTest{Protocol: records.ProtocolIFT, Stage: pc.stages[i]})
+	}
+	g.add(records.KindWeighIn, aid, weighDay, 9, 0, coachTablet, records.WeighIn{Type: "official", MassKg: round1(made), Note: pc.note})
 }
 
 func (g *gen) fighter(f *fighter, start int) {
