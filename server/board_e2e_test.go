@@ -285,6 +285,8 @@ func TestCoachScreensSpeakWords(t *testing.T) {
 		{"/plan?athlete=" + ids["Ines Halloran"], `document.querySelector('[data-testid="plan-weeks"]') && (document.querySelector('[data-testid="plan-issues"]') || document.querySelector('[data-testid="plan-ok"]'))`},
 		{"/thresholds?athlete=" + ids["Kofi Brandt"], `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]')`},
 		{"/thresholds?camp=1", `document.querySelector('[data-testid="screen-thresholds"][data-ready="true"] [data-testid="thresholds-save"]')`},
+		{"/camps?athlete=" + ids["Tomas Varga"] + "&day=" + coachDay, campCharts},
+		{"/camps?athlete=" + ids["Mateo Lindqvist"] + "&day=" + coachDay, campCharts},
 	}
 	for _, day := range coveringDays(t, h) {
 		screens = append(screens,

@@ -162,6 +162,7 @@ func (s *Server) Handler() http.Handler {
 	s.routeAccounts(api)
 	s.routeAthletes(api)
 	s.routeTests(api)
+	s.routeCamps(api)
 	s.routeGlance(api)
 	s.routeFightWeek(api)
 	api.PathPrefix("/").HandlerFunc(s.serve(func(w http.ResponseWriter, r *http.Request) error {

@@ -83,6 +83,7 @@ export function AthletePage() {
     ${id && html`<p class="muted">${shortDay(addDays(day, -(SPAN_DAYS - 1)))} to ${longDay(day)} · masses in ${units}</p>
       <p class="row no-print"><${Link} to=${query('/review', { day, athlete: id })} class="secondary linkbtn" data-testid="athlete-to-review">Flags of the day</${Link}>
       <${Link} to=${query('/plan', { athlete: id })} class="secondary linkbtn" data-testid="athlete-to-plan">Camp plan</${Link}>
+      <${Link} to=${query('/camps', { athlete: id, day: day !== today() ? day : '' })} class="secondary linkbtn" data-testid="athlete-to-camps">Camp history</${Link}>
       <${Link} to=${query('/thresholds', { athlete: id })} class="secondary linkbtn" data-testid="athlete-to-thresholds">Flag thresholds</${Link}></p>`}
     ${!id && html`<p class="muted">Choose an athlete to see the charts.</p>`}
     ${st.error && html`<p class="error" data-testid="athlete-error">${st.s ? `Showing the last copy: ${st.error}.` : `No charts: ${st.error}. Charts are drawn from the hub's numbers; they appear once it can be reached.`}</p>`}

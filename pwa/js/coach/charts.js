@@ -89,16 +89,23 @@ function labelsPlugin(labels) {
 
 const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
+// daysOut names a day by its days to the bout: "bout", "−30 d".
+export const daysOut = (v) => (v === 0 ? 'bout' : `${v < 0 ? '−' : '+'}${Math.abs(v)} d`);
+
 // draw builds one uPlot chart in el. spec: {series: [{label, stroke,
-// kind: 'line'|'points'|'bars'|'dash', scale, width}], scales, axes,
-// bands, marks}. Returns the plot (call destroy on unmount).
+// kind: 'line'|'points'|'linepoints'|'bars'|'dash', dash: [on, off], scale,
+// width}], scales, axes, bands, marks, xDays}. With xDays the x values are
+// days to the bout (…, −1, 0), not calendar days. Returns the plot (call
+// destroy on unmount).
 export async function draw(el, x, ys, spec) {
   const uPlot = await loadUPlot();
   const ink = cssVar('--muted', '#666');
   const grid = cssVar('--grid', '#ddd');
-  const series = [{ label: 'day', value: (u, v) => (v == null ? '' : new Date(v * 1000).toISOString().slice(0, 10)) }];
+  const xDays = !!spec.xDays;
+  const series = [{ label: xDays ? 'days to the bout' : 'day', value: (u, v) => (v == null ? '' : xDays ? daysOut(v) : new Date(v * 1000).toISOString().slice(0, 10)) }];
   for (const s of spec.series) {
     const o = { label: s.label, stroke: s.stroke, width: s.width || 2, scale: s.scale || 'y', spanGaps: s.spanGaps !== false, points: { show: false } };
+    if (s.dash) o.dash = s.dash;
     if (s.kind === 'points') Object.assign(o, { width: 0, paths: () => null, points: { show: true, size: s.size || 8, stroke: s.stroke, fill: s.fill || s.stroke, width: 1 } });
     if (s.kind === 'linepoints') Object.assign(o, { points: { show: true, size: s.size || 6, stroke: s.stroke, fill: s.stroke } });
     if (s.kind === 'dash') o.dash = [8, 5];
@@ -117,11 +124,13 @@ export async function draw(el, x, ys, spec) {
     legend: { show: false },
     padding: [10, 18, 0, 0],
     cursor: { points: { size: 8 }, drag: { x: false, y: false } },
-    scales: { x: { time: true }, ...(spec.scales || {}) },
+    scales: { x: { time: !xDays }, ...(spec.scales || {}) },
     series,
     bands: spec.bands || [],
     axes: [
-      axis({ values: (u, vals) => vals.map((v) => { const d = new Date(v * 1000); return `${d.getUTCDate()} ${MO[d.getUTCMonth()]}`; }), space: 64 }),
+      xDays
+        ? axis({ values: (u, vals) => vals.map(daysOut), space: 56, incrs: [1, 7, 14, 28] })
+        : axis({ values: (u, vals) => vals.map((v) => { const d = new Date(v * 1000); return `${d.getUTCDate()} ${MO[d.getUTCMonth()]}`; }), space: 64 }),
       axis({ scale: 'y', label: spec.yLabel || '', size: 56 }),
       ...(spec.y2 ? [axis({ scale: spec.y2.scale, side: 1, label: spec.y2.label, size: 48, grid: { show: false } })] : []),
     ],

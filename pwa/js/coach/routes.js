@@ -48,4 +48,5 @@ export const COACH_ROUTES = {
   '/camp': lazy(() => import('../camp.js'), 'Camp'),
   '/decision': lazy(() => import('./decision.js'), 'Decision'),
   '/thresholds': lazy(() => import('./thresholds.js'), 'Thresholds'),
+  '/camps': lazy(() => import('./camps.js'), 'Camps'),
 };
