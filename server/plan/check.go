@@ -54,7 +54,7 @@ func check(b records.Bout, th map[string]map[string]float64) []Issue {
 	trainingDays := int(bout - start)
 	if need < UsualMinWeeks || need > UsualMaxWeeks {
 		add(CheckCampLength, "body.bout_day", LevelInfo, "", "The camp has %d training days (%d weeks, %s to %s); a fight camp is usually %d–%d weeks.",
-			trainingDays, need, b.CampStart, (bout - 1).String(), UsualMinWeeks, UsualMaxWeeks)
+			trainingDays, need, start.Words(), (bout - 1).Words(), UsualMinWeeks, UsualMaxWeeks)
 	}
 	out = append(out, checkWeeks(b, start, bout, need, th)...)
 	out = append(out, checkMass(b, start, th)...)
@@ -82,10 +82,10 @@ func checkWeeks(b records.Bout, start, bout day.Number, need int, th map[string]
 			missing = append(missing, k)
 		}
 		add(CheckWeeksCover, "body.weeks", LevelWatch, "", "The plan has %d weeks but the camp has %d (%s to %s): %s, from %s, %s no planned level or sparring cap.",
-			len(ws), need, b.CampStart, (bout - 1).String(), weekList(missing), (start + day.Number(7*len(ws))).String(), hasHave(len(missing)))
+			len(ws), need, start.Words(), (bout - 1).Words(), weekList(missing), (start + day.Number(7*len(ws))).Words(), hasHave(len(missing)))
 	case len(ws) > maxWeeks:
 		add(CheckWeeksCover, "body.weeks", LevelWatch, "", "The plan has %d weeks but the camp has %d; week %d would start on %s, after the bout on %s.",
-			len(ws), need, maxWeeks+1, (start + day.Number(7*maxWeeks)).String(), b.BoutDay)
+			len(ws), need, maxWeeks+1, (start + day.Number(7*maxWeeks)).Words(), bout.Words())
 	}
 	// Long stretches of loading without a lighter week.
 	run, from := 0, 0
@@ -188,7 +188,7 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 		finalDays := param(th, records.RuleMassAbovePath, "final_days")
 		add(CheckPathFlat, "body.start_mass_kg", LevelInfo, records.RuleMassAbovePath+"."+name,
 			"The limit × %.2f (%.1f kg), where the default path starts its final %.0f days, is above the start mass of %.1f kg: the path holds %.1f kg until %s and then goes to the limit.",
-			f, b.LimitKg*f, finalDays, b.StartMassKg, b.StartMassKg, (wi - day.Number(finalDays)).String())
+			f, b.LimitKg*f, finalDays, b.StartMassKg, b.StartMassKg, (wi - day.Number(finalDays)).Words())
 	}
 	path := PathFor(b, th)
 	if len(path) == 0 {
@@ -214,7 +214,7 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 		add(CheckPathRate, field, level, records.RuleMassLossFast+"."+name,
 			"The planned path falls from %.1f kg on %s to %.1f kg on %s: %.2f %% of body mass a week (%.2f kg a week over %.1f weeks), %.2f %%/week above the %.1f %%/week level of the fast-loss rule. "+
 				"At %.1f %%/week, which preserved lean mass better than 1.4 %%/week (Garthe et al. 2011), this loss takes %.1f weeks. Review the timeline, the weight class and the plan with the dietitian.",
-			s.FromKg, s.From, s.ToKg, s.To, s.PctWeek, (s.FromKg-s.ToKg)/weeks, weeks, s.PctWeek-thr, thr, GartheSlowPctWeek, slow)
+			s.FromKg, s.From.Words(), s.ToKg, s.To.Words(), s.PctWeek, (s.FromKg-s.ToKg)/weeks, weeks, s.PctWeek-thr, thr, GartheSlowPctWeek, slow)
 	}
 	// The final phase: the drop from the path's mass when the final days
 	// start to the weigh-in, against the cut_at_risk levels.
@@ -237,11 +237,11 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 			}
 			add(CheckPathFinalWeek, field, LevelWatch, records.RuleCutAtRisk+"."+name,
 				"The path plans %.1f kg (%.1f %% of body mass) of loss in the final %d days, from %.1f kg on %s to %.1f kg at the weigh-in on %s, above %.0f %% for a %s weigh-in. Any acute loss must be planned and supervised by a sports dietitian or physician.",
-				kneeKg-endKg, drop, int(wi-finalStart), kneeKg, finalStart, endKg, wi, thr, kind)
+				kneeKg-endKg, drop, int(wi-finalStart), kneeKg, finalStart.Words(), endKg, wi.Words(), thr, kind)
 		}
 	}
 	if endKg > b.LimitKg+0.005 {
-		add(CheckPathEnd, field, LevelWatch, "", "The planned path ends at %.1f kg on the weigh-in day %s, %.1f kg above the %.2f kg limit.", endKg, wi, endKg-b.LimitKg, b.LimitKg)
+		add(CheckPathEnd, field, LevelWatch, "", "The planned path ends at %.1f kg on the weigh-in day, %s, %.1f kg above the %.2f kg limit.", endKg, wi.Words(), endKg-b.LimitKg, b.LimitKg)
 	}
 	// Gradual loss at the cut_at_risk rate from the start mass to the final
 	// phase: what would be left for the final days (the rule's view on day 1).
@@ -254,7 +254,7 @@ func checkMass(b records.Bout, start day.Number, th map[string]map[string]float6
 			add(CheckPathFinalWeek, "body.start_mass_kg", LevelWatch, records.RuleCutAtRisk+".watch_pct_"+suffix,
 				"Losing a gradual %.1f %%/week from the %.1f kg start mass reaches %.1f kg by %s, leaving %.1f kg (%.1f %% of body mass) for the final %d days, above %.0f %% for a %s weigh-in. "+
 					"Review the weight class and the timeline with the dietitian and physician; the sanctioning body's rules apply.",
-				rate, b.StartMassKg, projected, finalStart, still, pct, int(wi-finalStart), w, kind)
+				rate, b.StartMassKg, projected, finalStart.Words(), still, pct, int(wi-finalStart), w, kind)
 		}
 	}
 	return out

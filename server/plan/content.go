@@ -164,7 +164,7 @@ func checkContent(b records.Bout, start, bout day.Number, th map[string]map[stri
 		if gap := int(bout - last); gap > MaxStrengthResidualDays {
 			add(CheckStrengthResid, fmt.Sprintf("body.weeks[%d].strength", lastMax-1), LevelWatch,
 				"The last maximal-strength week (week %d) ends on %s, %d days before the bout: maximal strength keeps its effect about 30 ± 5 days after its training stops (Issurin 2008), so little of it may be left on the night. Plan some maximal-strength work within %d days of the bout.",
-				lastMax, last, gap, MaxStrengthResidualDays)
+				lastMax, last.Words(), gap, MaxStrengthResidualDays)
 		}
 	}
 
@@ -192,7 +192,7 @@ func checkContent(b records.Bout, start, bout day.Number, th map[string]map[stri
 		if !found && lastWeek > 0 {
 			add(CheckSpeedResid, fmt.Sprintf("body.weeks[%d].strength", lastWeek-1), LevelWatch,
 				"No speed or jump work is planned in the last %d days before the bout (%s to %s): speed keeps its effect only about 5 ± 3 days after its training stops (Issurin 2008).",
-				SpeedResidualDays, from, bout-1)
+				SpeedResidualDays, from.Words(), (bout - 1).Words())
 		}
 	}
 
@@ -218,7 +218,7 @@ func checkContent(b records.Bout, start, bout day.Number, th map[string]map[stri
 				break
 			}
 			if f, ok := Fraction(ws[k-1].Level, th); ok && f > lowFrac {
-				heavy = append(heavy, fmt.Sprintf("%s (week %d, %s)", d, k, LevelWords(ws[k-1].Level)))
+				heavy = append(heavy, fmt.Sprintf("%s (week %d, %s)", d.Words(), k, LevelWords(ws[k-1].Level)))
 			}
 		}
 		if len(heavy) == 0 {
@@ -226,7 +226,7 @@ func checkContent(b records.Bout, start, bout day.Number, th map[string]map[stri
 		}
 		add(CheckTravelRecovery, fmt.Sprintf("body.weeks[%d].travel", i), LevelWatch,
 			"The journey from %s to %s arriving %s shifts the clock %s h (%s); the body needs about %d days to adjust (about %s zone a day %s; Janse van Rensburg et al. 2021), but %s %s planned above low. A lighter plan for those days lets the fighter adjust.",
-			j.From, j.To, j.ArriveDay, signed(j.ShiftH), j.Direction, j.Days, fmtRate(j.Rate), j.Direction, joinAnd(heavy), isAre(len(heavy)))
+			j.From, j.To, dayWords(j.ArriveDay), signed(j.ShiftH), j.Direction, j.Days, fmtRate(j.Rate), j.Direction, joinAnd(heavy), isAre(len(heavy)))
 	}
 	return out
 }
@@ -271,7 +271,7 @@ func checkTaper(b records.Bout, bout day.Number, th map[string]map[string]float6
 		if days < TaperMinDays || days > TaperMaxDays {
 			add(CheckTaperLength, fmt.Sprintf("body.weeks[%d].level", first-1), LevelInfo, "",
 				"The taper runs %d days (%s to %s, %s); tapers of %d–%d days worked best in %s.",
-				days, from, bout-1, weekRange(first, lastWeek), TaperMinDays, TaperMaxDays, model)
+				days, from.Words(), (bout - 1).Words(), weekRange(first, lastWeek), TaperMinDays, TaperMaxDays, model)
 		}
 	}
 	if cut, ok := TaperCut(ws, th); ok && (cut < minCut || cut > maxCut) {
@@ -395,4 +395,13 @@ func joinAnd(s []string) string {
 		out += x
 	}
 	return out + " and " + s[len(s)-1]
+}
+
+// dayWords names a YYYY-MM-DD day as the flag reasons do ("Sat 12 Dec");
+// anything else is given back as it is.
+func dayWords(s string) string {
+	if n, err := day.Parse(s); err == nil {
+		return n.Words()
+	}
+	return s
 }

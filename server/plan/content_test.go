@@ -83,7 +83,7 @@ func TestCheck_StrengthResidual(t *testing.T) {
 	b.Weeks[4].Strength = &records.Emphasis{IDs: []string{"strength_speed"}}
 	is := checksOf(plan.Check(b, nil), plan.CheckStrengthResid)
 	if len(is) != 1 || is[0].Level != plan.LevelWatch || is[0].Field != "body.weeks[3].strength" ||
-		!strings.Contains(is[0].Message, "(week 4) ends on 2026-02-01, 42 days before the bout") || !strings.Contains(is[0].Message, "Issurin 2008") {
+		!strings.Contains(is[0].Message, "(week 4) ends on Sun 1 Feb, 42 days before the bout") || !strings.Contains(is[0].Message, "Issurin 2008") {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
 }
@@ -97,7 +97,7 @@ func TestCheck_SpeedResidual(t *testing.T) {
 	ws[8].Strength = &records.Emphasis{IDs: []string{"max_strength"}}
 	ws[9].Strength = &records.Emphasis{IDs: []string{"max_strength"}, Label: "heavy singles"}
 	is := checksOf(plan.Check(fullBout(t, 69, "day_before", ws), nil), plan.CheckSpeedResid)
-	if len(is) != 1 || is[0].Level != plan.LevelWatch || !strings.Contains(is[0].Message, "last 8 days before the bout (2026-03-07 to 2026-03-14)") {
+	if len(is) != 1 || is[0].Level != plan.LevelWatch || !strings.Contains(is[0].Message, "last 8 days before the bout (Sat 7 Mar to Sat 14 Mar)") {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
 	ws[9].Strength = &records.Emphasis{IDs: []string{"plyometric"}}
@@ -129,7 +129,7 @@ func TestCheck_TaperLength(t *testing.T) {
 	}
 	ws[7].Level = "taper" // three weeks: 20 days
 	is := checksOf(plan.Check(fullBout(t, 69, "day_before", ws), nil), plan.CheckTaperLength)
-	if len(is) != 1 || is[0].Field != "body.weeks[7].level" || !strings.Contains(is[0].Message, "The taper runs 20 days (2026-02-23 to 2026-03-14, weeks 8–10)") ||
+	if len(is) != 1 || is[0].Field != "body.weeks[7].level" || !strings.Contains(is[0].Message, "The taper runs 20 days (Mon 23 Feb to Sat 14 Mar, weeks 8–10)") ||
 		!strings.Contains(is[0].Message, "Bosquet et al. 2007 meta-analysis") {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
@@ -194,7 +194,7 @@ func TestCheck_TravelRecovery(t *testing.T) {
 	is := checksOf(plan.Check(mk("heavy", ny), nil), plan.CheckTravelRecovery)
 	if len(is) != 1 || is[0].Level != plan.LevelWatch || is[0].Field != "body.weeks[2].travel" ||
 		!strings.Contains(is[0].Message, "shifts the clock -4 h (west); the body needs about 3 days") ||
-		!strings.Contains(is[0].Message, "2025-03-20 (week 3, heavy), 2025-03-21 (week 3, heavy) and 2025-03-22 (week 3, heavy) are planned above low") {
+		!strings.Contains(is[0].Message, "Thu 20 Mar (week 3, heavy), Fri 21 Mar (week 3, heavy) and Sat 22 Mar (week 3, heavy) are planned above low") {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
 	if is := checksOf(plan.Check(mk("low", ny), nil), plan.CheckTravelRecovery); len(is) != 0 {
@@ -204,7 +204,7 @@ func TestCheck_TravelRecovery(t *testing.T) {
 	late := ny
 	late.DepartAt, late.ArriveAt = "2025-03-23T09:00:00Z", "2025-03-23T13:00:00-04:00"
 	is = checksOf(plan.Check(mk("low", late), nil), plan.CheckTravelRecovery)
-	if len(is) != 1 || !strings.Contains(is[0].Message, "2025-03-24 (week 4, medium) and 2025-03-25 (week 4, medium)") {
+	if len(is) != 1 || !strings.Contains(is[0].Message, "Mon 24 Mar (week 4, medium) and Tue 25 Mar (week 4, medium)") {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
 	moscow := records.Travel{DepartAt: "2025-03-20T09:00:00Z", ArriveAt: "2025-03-20T16:00:00+03:00", FromZone: "Europe/London", ToZone: "Europe/Moscow"}

@@ -19,6 +19,9 @@ const campStart = "2026-01-05"
 
 func d(off int) string { return (day.MustParse(campStart) + day.Number(off)).String() }
 
+// w is that day as the plan checks name it ("Mon 5 Jan").
+func w(off int) string { return (day.MustParse(campStart) + day.Number(off)).Words() }
+
 func near(t *testing.T, what string, got, want, tol float64) {
 	t.Helper()
 	if math.IsNaN(got) || math.Abs(got-want) > tol {
@@ -158,7 +161,7 @@ func TestCheck_Weeks(t *testing.T) {
 	ws, _ := plan.DefaultWeeks(campStart, d(55))
 	// Six weeks for an eight-week camp.
 	is := issuesOf(plan.Check(bout(t, 55, 70, 66.5, nil, ws[:6]), nil), "body.weeks", plan.LevelWatch)
-	if len(is) != 1 || !strings.Contains(is[0].Message, "weeks 7 and 8, from "+d(42)) {
+	if len(is) != 1 || !strings.Contains(is[0].Message, "weeks 7 and 8, from "+w(42)) {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
 	// No taper, and five loading weeks in a row.
@@ -215,7 +218,7 @@ func TestCheck_FastPathSegment(t *testing.T) {
 		t.Fatalf("issues:\n%s", messages(is))
 	}
 	m := is[0].Message
-	for _, part := range []string{"70.0 kg on " + d(0), "65.0 kg on " + d(28), "1.79 %", "0.29 %/week above the 1.5 %/week", "1.25 kg a week"} {
+	for _, part := range []string{"70.0 kg on " + w(0), "65.0 kg on " + w(28), "1.79 %", "0.29 %/week above the 1.5 %/week", "1.25 kg a week"} {
 		if !strings.Contains(m, part) {
 			t.Fatalf("message lacks %q: %s", part, m)
 		}
