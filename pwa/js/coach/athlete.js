@@ -2,9 +2,9 @@
 // mass against the planned path, CMJ against baseline, load and its
 // acute:chronic ratio, sparring against the cap, wellness against its
 // threshold. Each chart has a plain-words title and a text summary.
-import { html, useState, useEffect, useRef, useAthletes, Link } from '../ui.js';
+import { html, useState, useEffect, useAthletes, Link } from '../ui.js';
 import { hubGet, remember, recall } from './api.js';
-import { draw, dayTs, countPoints, cssVar } from './charts.js';
+import { dayTs, cssVar, usePlot, useSchemeChanges } from './charts.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
 import { TestCharts } from './testcharts.js';
 
@@ -57,13 +57,7 @@ export function AthletePage() {
   const a = (list || []).find((x) => x.id === id);
   const st = useSeries(id, day);
   // Redraw in the new colours when the device switches light/dark.
-  const [scheme, setScheme] = useState(0);
-  useEffect(() => {
-    const mq = matchMedia('(prefers-color-scheme: dark)');
-    const fn = () => setScheme((x) => x + 1);
-    mq.addEventListener('change', fn);
-    return () => mq.removeEventListener('change', fn);
-  }, []);
+  const scheme = useSchemeChanges();
   const units = (st.s && st.s.units) || (a && a.units) || 'kg';
   return html`<section class="coach" data-testid="screen-athlete">
     <h1>${a ? a.name : 'Fighter charts'}</h1>
@@ -103,23 +97,7 @@ export function AthletePage() {
 
 // Chart is one card: title, the plot, a legend in words, the summary.
 function Chart({ testid, title, summary, legend, build, deps }) {
-  const el = useRef(null);
-  const [info, setInfo] = useState({ points: 0, series: 0, error: '', lines: '', marks: '' });
-  useEffect(() => {
-    let plot = null;
-    let alive = true;
-    const { x, ys, spec } = build();
-    const points = countPoints([x, ...ys]);
-    draw(el.current, x, ys, spec).then((u) => {
-      if (!alive) { u.destroy(); return; }
-      plot = u;
-      // What is drawn, named: each series and each labelled marker.
-      const lines = spec.series.map((x) => x.label).join('|');
-      const marks = [...(spec.marks || []).map((m) => m.label), ...(spec.labels || []).filter((l) => Number.isFinite(l.y)).map((l) => l.text)].join('|');
-      setInfo({ points, series: ys.length, error: '', lines, marks });
-    }, (e) => alive && setInfo({ points: 0, series: 0, error: e.message, lines: '', marks: '' }));
-    return () => { alive = false; if (plot) plot.destroy(); };
-  }, deps);
+  const [el, info] = usePlot(build, deps);
   return html`<figure class="chart card" data-testid=${testid} data-points=${info.points} data-series=${info.series} data-lines=${info.lines} data-marks=${info.marks} aria-labelledby=${`${testid}-t`}>
     <h2 id=${`${testid}-t`}>${title}</h2>
     <div class="plot" ref=${el} role="img" aria-label=${summary}></div>

@@ -2,10 +2,10 @@
 // days to that camp's bout, so "30 days out" lines up in every camp —
 // morning mass against the limit and the planned path, CMJ, weekly load,
 // sparring a week, and the tests of each camp. Every number is the hub's.
-import { html, useState, useEffect, useRef, useAthletes, Link } from '../ui.js';
+import { html, useState, useEffect, useAthletes, Link } from '../ui.js';
 import { getMeta } from '../db.js';
 import { hubGet, remember, recall } from './api.js';
-import { draw, daysOut, countPoints, cssVar } from './charts.js';
+import { daysOut, cssVar, usePlot, useSchemeChanges } from './charts.js';
 import { longDay, isDay, query, mass, fmtN, MASS_CAUTION } from './common.js';
 
 const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
@@ -67,13 +67,7 @@ export function Camps() {
   const day = isDay(p.get('day')) ? p.get('day') : '';
   useEffect(() => { history.replaceState(null, '', query('/camps', { athlete: id, day })); }, [id]);
   const st = useCamps(id, day);
-  const [scheme, setScheme] = useState(0);
-  useEffect(() => {
-    const mq = matchMedia('(prefers-color-scheme: dark)');
-    const fn = () => setScheme((x) => x + 1);
-    mq.addEventListener('change', fn);
-    return () => mq.removeEventListener('change', fn);
-  }, []);
+  const scheme = useSchemeChanges();
   if (list === null || role === null) {
     return html`<section class="coach" data-testid="screen-camps" data-ready="false"><h1>Camp history</h1><p class="muted">Loading…</p></section>`;
   }
@@ -129,18 +123,7 @@ function History({ h }) {
 
 // CampChart is one card: title, plot, legend in words and a summary.
 function CampChart({ testid, title, summary, x, ys, spec, legend, caution }) {
-  const el = useRef(null);
-  const [info, setInfo] = useState({ points: 0, lines: '', error: '' });
-  useEffect(() => {
-    let plot = null;
-    let alive = true;
-    draw(el.current, x, ys, spec).then((u) => {
-      if (!alive) { u.destroy(); return; }
-      plot = u;
-      setInfo({ points: countPoints([x, ...ys]), lines: spec.series.map((s) => s.label).join('|'), error: '' });
-    }, (e) => alive && setInfo({ points: 0, lines: '', error: e.message }));
-    return () => { alive = false; if (plot) plot.destroy(); };
-  }, [JSON.stringify([x, ys])]);
+  const [el, info] = usePlot(() => ({ x, ys, spec }), [JSON.stringify([x, ys])]);
   return html`<figure class="chart card" data-testid=${testid} data-points=${info.points} data-lines=${info.lines} aria-labelledby=${`${testid}-t`}>
     <h2 id=${`${testid}-t`}>${title}</h2>
     <div class="plot" ref=${el} role="img" aria-label=${summary}></div>

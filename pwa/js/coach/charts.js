@@ -1,5 +1,6 @@
 // Drawing with the vendored uPlot, loaded only when a chart screen opens.
 // These functions draw what the hub computed; they compute no numbers.
+import { useState, useEffect, useRef } from '../ui.js';
 
 let lib = null;
 export function loadUPlot() {
@@ -149,4 +150,39 @@ export async function draw(el, x, ys, spec) {
     u.destroy = () => { ro.disconnect(); destroy(); };
   }
   return u;
+}
+
+// usePlot draws build()'s {x, ys, spec} into the element of the returned
+// ref whenever deps change, and says what it drew: the points, the
+// series, each series' label and each labelled marker ("|"-joined, for
+// the page's own checks and for tests), or why it could not draw.
+export function usePlot(build, deps) {
+  const el = useRef(null);
+  const [info, setInfo] = useState({ points: 0, series: 0, lines: '', marks: '', error: '' });
+  useEffect(() => {
+    let plot = null;
+    let alive = true;
+    const { x, ys, spec } = build();
+    draw(el.current, x, ys, spec).then((u) => {
+      if (!alive) { u.destroy(); return; }
+      plot = u;
+      const marks = [...(spec.marks || []).map((m) => m.label), ...(spec.labels || []).filter((l) => Number.isFinite(l.y)).map((l) => l.text)].join('|');
+      setInfo({ points: countPoints([x, ...ys]), series: ys.length, lines: spec.series.map((s) => s.label).join('|'), marks, error: '' });
+    }, (e) => alive && setInfo({ points: 0, series: 0, lines: '', marks: '', error: e.message }));
+    return () => { alive = false; if (plot) plot.destroy(); };
+  }, deps);
+  return [el, info];
+}
+
+// useSchemeChanges counts the device's switches between light and dark,
+// for a key that redraws the charts in the new colours.
+export function useSchemeChanges() {
+  const [n, setN] = useState(0);
+  useEffect(() => {
+    const mq = matchMedia('(prefers-color-scheme: dark)');
+    const fn = () => setN((x) => x + 1);
+    mq.addEventListener('change', fn);
+    return () => mq.removeEventListener('change', fn);
+  }, []);
+  return n;
 }

@@ -1,9 +1,9 @@
 // Fighter charts, tests part: each test's history across camps (V_IFT,
 // sprint decrement, 1RM estimates, drop-jump RSI) and the interval sessions
 // prescribed from them, done against prescribed — as the hub computed them.
-import { html, useState, useEffect, useRef } from '../ui.js';
+import { html, useState, useEffect } from '../ui.js';
 import { hubGet, remember, recall } from './api.js';
-import { draw, dayTs, countPoints, cssVar } from './charts.js';
+import { dayTs, cssVar, usePlot } from './charts.js';
 import { query, shortDay } from './common.js';
 import { changeWords } from './tests.js';
 
@@ -26,18 +26,8 @@ function useTestsReport(id, day) {
 }
 
 function Plot({ testid, title, summary, x, ys, spec }) {
-  const el = useRef(null);
-  const [pts, setPts] = useState(0);
-  useEffect(() => {
-    let plot = null;
-    let alive = true;
-    draw(el.current, x, ys, spec).then((u) => {
-      if (!alive) { u.destroy(); return; }
-      plot = u;
-      setPts(countPoints([x, ...ys]));
-    }, () => {});
-    return () => { alive = false; if (plot) plot.destroy(); };
-  }, [JSON.stringify([x, ys])]);
+  const [el, info] = usePlot(() => ({ x, ys, spec }), [JSON.stringify([x, ys])]);
+  const pts = info.points;
   return html`<figure class="chart card test-chart" data-testid=${testid} data-points=${pts} aria-labelledby=${`${testid}-t`}>
     <h2 id=${`${testid}-t`}>${title}</h2>
     <div class="plot" ref=${el} role="img" aria-label=${summary}></div>
