@@ -8,6 +8,17 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
+// callers are the devices the read-route authorization tests call as:
+// the coach, staff, athlete A's own phone, athlete B's, a revoked phone
+// and a device never paired.
+var callers = []string{"coach", "staff", "athleteA", "athleteB", "revoked", "none"}
+
+// answers is the status each caller gets on one route; a revoked or
+// unpaired device always gets 401.
+func answers(coach, staff, own, other int) map[string]int {
+	return map[string]int{"coach": coach, "staff": staff, "athleteA": own, "athleteB": other, "revoked": 401, "none": 401}
+}
+
 // TestAuthorization_FightWeekAndMedical: the fight-week, stand-down and
 // preset routes for every caller — the coach, staff, an athlete's own
 // phone, another athlete's phone, a revoked phone and a device never
@@ -20,28 +31,24 @@ func TestAuthorization_FightWeekAndMedical(t *testing.T) {
 	c := newCampHub(t)
 	a, b := c.athleteA.ID, c.athleteB.ID
 	const nobody = "01900000-0000-7000-8000-000000000000"
-	roles := []string{"coach", "staff", "athleteA", "athleteB", "revoked", "none"}
-	all := func(coach, staff, own, other int) map[string]int {
-		return map[string]int{"coach": coach, "staff": staff, "athleteA": own, "athleteB": other, "revoked": 401, "none": 401}
-	}
 	routes := []struct {
 		path string
 		want map[string]int
 	}{
-		{"/api/athletes/" + a + "/fightweek", all(200, 200, 200, 403)},
-		{"/api/athletes/" + a + "/fightweek?day=2026-11-20", all(200, 200, 200, 403)},
-		{"/api/athletes/" + b + "/fightweek", all(200, 200, 403, 200)},
-		{"/api/athletes/" + nobody + "/fightweek", all(404, 404, 403, 403)},
-		{"/api/athletes/" + a + "/fightweek?day=20-11-2026", all(400, 400, 400, 403)},
-		{"/api/athletes/" + a + "/medical", all(200, 200, 200, 403)},
-		{"/api/athletes/" + a + "/medical?day=2026-11-20", all(200, 200, 200, 403)},
-		{"/api/athletes/" + b + "/medical", all(200, 200, 403, 200)},
-		{"/api/athletes/" + nobody + "/medical", all(404, 404, 403, 403)},
-		{"/api/athletes/" + a + "/medical?day=yesterday", all(400, 400, 400, 403)},
-		{"/api/fightweek/presets", all(200, 200, 200, 200)},
+		{"/api/athletes/" + a + "/fightweek", answers(200, 200, 200, 403)},
+		{"/api/athletes/" + a + "/fightweek?day=2026-11-20", answers(200, 200, 200, 403)},
+		{"/api/athletes/" + b + "/fightweek", answers(200, 200, 403, 200)},
+		{"/api/athletes/" + nobody + "/fightweek", answers(404, 404, 403, 403)},
+		{"/api/athletes/" + a + "/fightweek?day=20-11-2026", answers(400, 400, 400, 403)},
+		{"/api/athletes/" + a + "/medical", answers(200, 200, 200, 403)},
+		{"/api/athletes/" + a + "/medical?day=2026-11-20", answers(200, 200, 200, 403)},
+		{"/api/athletes/" + b + "/medical", answers(200, 200, 403, 200)},
+		{"/api/athletes/" + nobody + "/medical", answers(404, 404, 403, 403)},
+		{"/api/athletes/" + a + "/medical?day=yesterday", answers(400, 400, 400, 403)},
+		{"/api/fightweek/presets", answers(200, 200, 200, 200)},
 	}
 	for _, rt := range routes {
-		for _, role := range roles {
+		for _, role := range callers {
 			st, out := c.do(role, "GET", rt.path, nil)
 			assert.Equal(t, rt.want[role], st, "GET %s as %s: %s", rt.path, role, truncate(out))
 		}
@@ -70,7 +77,7 @@ func TestAuthorization_FightWeekAndMedical(t *testing.T) {
 	assert.Contains(t, e.Reason, "its own athlete")
 	// Only reads: the routes take no writes from anyone.
 	for _, p := range []string{"/api/athletes/" + a + "/fightweek", "/api/athletes/" + a + "/medical", "/api/fightweek/presets"} {
-		for _, role := range roles {
+		for _, role := range callers {
 			st, _ := c.do(role, "POST", p, map[string]any{})
 			assert.Contains(t, []int{401, 404, 405}, st, "POST %s as %s", p, role)
 		}
