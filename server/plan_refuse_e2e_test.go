@@ -50,7 +50,7 @@ func TestE2EPlanRefusesWhatTheHubWould(t *testing.T) {
 	require.NoError(t, coachSet(ctx, "plan-wi-time", "10:00"))
 	require.NoError(t, coachSet(ctx, "plan-class", "ol2024_m_71"))
 	require.NoError(t, pwatest.Type(ctx, "plan-start-mass", "74.0"))
-	try("before the camp starts on 2027-01-04")
+	try("before the camp starts on Mon 4 Jan 2027")
 
 	require.NoError(t, coachSet(ctx, "plan-bout-day", "2027-03-12"))
 	require.NoError(t, coachSet(ctx, "plan-wi-date", "2027-03-11"))

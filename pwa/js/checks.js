@@ -98,6 +98,16 @@ function checkField(f, body, year) {
 const DAY = 86400000;
 const dayNum = (s) => (typeof s === 'string' && /^\d{4}-\d\d-\d\d$/.test(s) ? Date.parse(s + 'T00:00:00Z') : NaN);
 
+// dayWords names a YYYY-MM-DD day in a refusal as the hub's DayWords
+// does, with its year: "Sat 12 Dec 2026"; anything else as it is.
+const WD = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'];
+const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
+function dayWords(s) {
+  if (typeof s !== 'string' || !/^\d{4}-\d{2}-\d{2}$/.test(s)) return s;
+  const d = new Date(Date.UTC(+s.slice(0, 4), +s.slice(5, 7) - 1, +s.slice(8, 10)));
+  return `${WD[d.getUTCDay()]} ${d.getUTCDate()} ${MO[d.getUTCMonth()]} ${d.getUTCFullYear()}`;
+}
+
 // weighInDay is the calendar day of the weigh-in: in its venue's zone when
 // one is named, otherwise as written (its own offset), as the hub reads it.
 function weighInDay(wi, zone) {
@@ -139,30 +149,30 @@ const cross = {
     const start = dayNum(b.camp_start);
     const bout = dayNum(b.bout_day);
     if (!Number.isFinite(start) || !Number.isFinite(bout)) return null; // the screen asks for both days
-    if (bout < start) return { field: 'body.bout_day', label: 'Bout day', reason: `is ${b.bout_day}, before the camp starts on ${b.camp_start}` };
+    if (bout < start) return { field: 'body.bout_day', label: 'Bout day', reason: `is ${dayWords(b.bout_day)}, before the camp starts on ${dayWords(b.camp_start)}` };
     const days = Math.round((bout - start) / DAY);
     if (days > VOCAB.limits.max_camp_days) {
       return { field: 'body.bout_day', label: 'Bout day', reason: `is ${days} days after the camp start; a camp is at most ${VOCAB.limits.max_camp_days} days — check the year` };
     }
     const wiDay = b.weigh_in ? weighInDay(b.weigh_in, b.weigh_in_zone) : '';
     if (wiDay) {
-      if (wiDay > b.bout_day) return { field: 'body.weigh_in', label: 'Weigh-in', reason: `is on ${wiDay}, after the bout day ${b.bout_day}` };
-      if (wiDay < b.camp_start) return { field: 'body.weigh_in', label: 'Weigh-in', reason: `is on ${wiDay}, before the camp starts on ${b.camp_start}` };
+      if (wiDay > b.bout_day) return { field: 'body.weigh_in', label: 'Weigh-in', reason: `is on ${dayWords(wiDay)}, after the bout day, ${dayWords(b.bout_day)}` };
+      if (wiDay < b.camp_start) return { field: 'body.weigh_in', label: 'Weigh-in', reason: `is on ${dayWords(wiDay)}, before the camp starts on ${dayWords(b.camp_start)}` };
       const gap = Math.round((bout - dayNum(wiDay)) / DAY);
       if (b.weigh_in_type === 'same_day' && gap !== 0) {
-        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is set to "Same day", but it is on ${wiDay} and the bout on ${b.bout_day}; choose "Day before" or move the weigh-in` };
+        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is set to "Same day", but it is on ${dayWords(wiDay)} and the bout on ${dayWords(b.bout_day)}; choose "Day before" or move the weigh-in` };
       }
       const most = VOCAB.limits.max_day_before_days;
       if (b.weigh_in_type === 'day_before' && (gap < 1 || gap > most)) {
-        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is set to "Day before", so it must be 1 to ${most} days before the bout on ${b.bout_day}; it is on ${wiDay}` };
+        return { field: 'body.weigh_in_type', label: 'Weigh-in', reason: `is set to "Day before", so it must be 1 to ${most} days before the bout on ${dayWords(b.bout_day)}; it is on ${dayWords(wiDay)}` };
       }
     }
     let prev = '';
     for (const [i, k] of (b.path || []).entries()) {
       const field = `body.path[${i}].day`;
       if (!k || !k.day) continue;
-      if (k.day < b.camp_start || k.day > b.bout_day) return { field, label: 'Planned mass', reason: `is ${k.day}, outside the camp (${b.camp_start} to ${b.bout_day})` };
-      if (prev && k.day <= prev) return { field, label: 'Planned mass', reason: `is ${k.day}; path days must be in order, each after the one before (${prev})` };
+      if (k.day < b.camp_start || k.day > b.bout_day) return { field, label: 'Planned mass', reason: `is ${dayWords(k.day)}, outside the camp (${dayWords(b.camp_start)} to ${dayWords(b.bout_day)})` };
+      if (prev && k.day <= prev) return { field, label: 'Planned mass', reason: `is ${dayWords(k.day)}; path days must be in order, each after the one before (${dayWords(prev)})` };
       prev = k.day;
     }
     for (const [i, w] of (b.weeks || []).entries()) {
@@ -412,7 +422,7 @@ function boutFightWeek(b) {
     if (!RFC3339.test(b.bout_at) || !Number.isFinite(Date.parse(b.bout_at))) {
       return { field: 'body.bout_at', label, reason: `must be the bout's start with the venue's offset, e.g. 2026-02-28T20:30:00-07:00; got ${JSON.stringify(b.bout_at)}` };
     }
-    if (b.bout_at.slice(0, 10) !== b.bout_day) return { field: 'body.bout_at', label, reason: `is on ${b.bout_at.slice(0, 10)}, but the bout day is ${b.bout_day}` };
+    if (b.bout_at.slice(0, 10) !== b.bout_day) return { field: 'body.bout_at', label, reason: `is on ${dayWords(b.bout_at.slice(0, 10))}, but the bout day is ${dayWords(b.bout_day)}` };
     const wi = Date.parse(b.weigh_in);
     if (Number.isFinite(wi)) {
       const h = (Date.parse(b.bout_at) - wi) / 3600000;

@@ -136,7 +136,7 @@ func checkBoutFightWeek(b *Bout) error {
 			return fe("body.bout_at", "must be the bout's start with the venue's offset, e.g. 2026-02-28T20:30:00-07:00; got %q", b.BoutAt)
 		}
 		if d := t.Format(time.DateOnly); d != b.BoutDay {
-			return fe("body.bout_at", "is on %s, but the bout day is %s", d, b.BoutDay)
+			return fe("body.bout_at", "is on %s, but the bout day is %s", DayWords(d), DayWords(b.BoutDay))
 		}
 		if wi, err := time.Parse(time.RFC3339, b.WeighIn); err == nil {
 			if !t.After(wi) {

@@ -176,7 +176,7 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 		return nil, err
 	}
 	if boutDay.Before(start) {
-		return nil, fe("body.bout_day", "is %s, before the camp starts on %s", b.BoutDay, b.CampStart)
+		return nil, fe("body.bout_day", "is %s, before the camp starts on %s", DayWords(b.BoutDay), DayWords(b.CampStart))
 	}
 	if days := int(boutDay.Sub(start).Hours() / 24); days > MaxCampDays {
 		return nil, fe("body.bout_day", "is %d days after the camp start; a camp is at most %d days — check the year", days, MaxCampDays)
@@ -200,10 +200,10 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 	}
 	wiDay := civil(wi)
 	if wiDay.After(boutDay) {
-		return nil, fe("body.weigh_in", "is on %s, after the bout day %s", wiDay.Format(time.DateOnly), b.BoutDay)
+		return nil, fe("body.weigh_in", "is on %s, after the bout day, %s", DayWords(wiDay.Format(time.DateOnly)), DayWords(b.BoutDay))
 	}
 	if wiDay.Before(start) {
-		return nil, fe("body.weigh_in", "is on %s, before the camp starts on %s", wiDay.Format(time.DateOnly), b.CampStart)
+		return nil, fe("body.weigh_in", "is on %s, before the camp starts on %s", DayWords(wiDay.Format(time.DateOnly)), DayWords(b.CampStart))
 	}
 	if err := oneOf("body.weigh_in_type", b.WeighInType, WeighInTypes); err != nil {
 		return nil, err
@@ -212,10 +212,10 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 	switch {
 	case b.WeighInType == "same_day" && gap != 0:
 		return nil, fe("body.weigh_in_type", "is set to \"Same day\", but it is on %s and the bout on %s; choose \"Day before\" or move the weigh-in",
-			wiDay.Format(time.DateOnly), b.BoutDay)
+			DayWords(wiDay.Format(time.DateOnly)), DayWords(b.BoutDay))
 	case b.WeighInType == "day_before" && (gap < 1 || gap > MaxDayBeforeDays):
 		return nil, fe("body.weigh_in_type", "is set to \"Day before\", so it must be 1 to %d days before the bout on %s; it is on %s",
-			MaxDayBeforeDays, b.BoutDay, wiDay.Format(time.DateOnly))
+			MaxDayBeforeDays, DayWords(b.BoutDay), DayWords(wiDay.Format(time.DateOnly)))
 	}
 	if err := boutLimit(&b, present); err != nil {
 		return nil, err
@@ -240,10 +240,10 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 			return nil, err
 		}
 		if d.Before(start) || d.After(boutDay) {
-			return nil, fe(field+".day", "is %s, outside the camp (%s to %s)", k.Day, b.CampStart, b.BoutDay)
+			return nil, fe(field+".day", "is %s, outside the camp (%s to %s)", DayWords(k.Day), DayWords(b.CampStart), DayWords(b.BoutDay))
 		}
 		if prev != "" && k.Day <= prev {
-			return nil, fe(field+".day", "is %s; path days must be in order, each after the one before (%s)", k.Day, prev)
+			return nil, fe(field+".day", "is %s; path days must be in order, each after the one before (%s)", DayWords(k.Day), DayWords(prev))
 		}
 		prev = k.Day
 		if err := between(field+".mass_kg", k.MassKg, MinMassKg, MaxMassKg, "kg"); err != nil {
@@ -256,7 +256,7 @@ func validateBout(c *check, raw json.RawMessage) (any, error) {
 			return nil, fe(field+".week", "must be %d: weeks are numbered 1, 2, 3, … in order; got %d", i+1, w.Week)
 		}
 		if ws := start.AddDate(0, 0, 7*i); ws.After(boutDay) {
-			return nil, fe(field+".week", "week %d would start on %s, after the bout on %s", w.Week, ws.Format(time.DateOnly), b.BoutDay)
+			return nil, fe(field+".week", "week %d would start on %s, after the bout on %s", w.Week, DayWords(ws.Format(time.DateOnly)), DayWords(b.BoutDay))
 		}
 		if err := oneOf(field+".level", w.Level, Levels); err != nil {
 			return nil, err
@@ -653,4 +653,16 @@ func round4(v float64) float64 { return math.Round(v*1e4) / 1e4 }
 
 func itoa(i int) string {
 	return fmtNum(float64(i))
+}
+
+// DayWords names a YYYY-MM-DD day in a refusal as a coach reads it, with
+// its year, since a mistyped year is a usual cause: "Sat 12 Dec 2026".
+// Anything else is given back as it is. The app's checks.js words days the
+// same way.
+func DayWords(s string) string {
+	t, err := time.Parse(time.DateOnly, s)
+	if err != nil {
+		return s
+	}
+	return t.Format("Mon 2 Jan 2006")
 }
