@@ -139,6 +139,9 @@ function App() {
   const [build, setBuild] = useState(sw.build);
   useEffect(() => { const fn = (x) => setBuild(x.build); sw.subs.add(fn); fn(sw); return () => sw.subs.delete(fn); }, []);
   const Screen = ROUTES[path] || NotFound;
+  // Ready once the app listens for moves (useRoute's effect runs first): a
+  // tap on a link, or Back, straight after the first render is not missed.
+  useEffect(() => { document.getElementById('app-root').dataset.ready = 'true'; }, []);
   return html`<header class="top">
       <${Link} to="/" class="home" data-testid="nav-home"><span class="mark" aria-hidden="true"></span>Cornerbook</${Link}>
       <span class="spacer"></span>
@@ -158,7 +161,6 @@ deviceId().then(() => getMeta('offset')).then((offset) => {
   const root = document.getElementById('app-root');
   root.textContent = '';
   render(html`<${App} />`, root);
-  root.dataset.ready = 'true';
   startSync();
   // Installed: ask once that the entries on this device are never evicted
   // (Chromium decides without a prompt; Settings shows the answer).

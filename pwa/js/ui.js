@@ -20,10 +20,13 @@ export function navigate(to, replace) {
 }
 export function useRoute() {
   const [, set] = useState(0);
+  const shown = location.pathname + location.search;
   useEffect(() => {
     const fn = () => set((x) => x + 1);
     routeSubs.add(fn);
     addEventListener('popstate', fn);
+    // A move between the first render and this subscription is caught up.
+    if (location.pathname + location.search !== shown) fn();
     return () => { routeSubs.delete(fn); removeEventListener('popstate', fn); };
   }, []);
   return { path: location.pathname.replace(/\/+$/, '') || '/', params: new URLSearchParams(location.search) };

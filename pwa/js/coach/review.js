@@ -68,8 +68,12 @@ export function useLocalDecisions(day) {
   }, [day, v], new Map());
 }
 
-function setQuery(params) {
-  history.replaceState(null, '', query(location.pathname, params));
+// setQuery writes the board's filters into its own address, only while
+// the board is still the screen shown: a write after a move to another
+// screen would put the board's query on that screen's address.
+function setQuery(path, params) {
+  if (location.pathname !== path) return;
+  history.replaceState(null, '', query(path, params));
 }
 
 // groupByAthlete orders athletes: those under a stand-down first (a
@@ -133,7 +137,8 @@ export function Review() {
     setLevels(new Set((q.get('level') || '').split(',').filter(Boolean)));
     written.current = location.search;
   }, [location.search]);
-  useEffect(() => { setQuery({ day, athlete: who, level: [...levels].join(',') }); written.current = location.search; }, [day, who, levels]);
+  const here = useRef(location.pathname).current;
+  useEffect(() => { setQuery(here, { day, athlete: who, level: [...levels].join(',') }); if (location.pathname === here) written.current = location.search; }, [day, who, levels]);
   const toggle = (l) => setLevels((s) => { const n = new Set(s); if (n.has(l)) n.delete(l); else n.add(l); return n; });
 
   const athletes = list || [];
