@@ -1,14 +1,13 @@
 package server
 
 import (
-	"encoding/json"
 	"fmt"
 	"net/http"
 
 	"github.com/gorilla/mux"
 
 	"cornerbook/server/flags"
-	"cornerbook/server/records"
+	"cornerbook/server/flags/day"
 	"cornerbook/server/series"
 	devsync "cornerbook/sync"
 )
@@ -48,37 +47,29 @@ type CampTest struct {
 	Summary string  `json:"summary"`
 }
 
-// Camps computes a fighter's camp history as of day ("" = today).
-func (s *Server) Camps(athlete, day string) (CampHistory, error) {
-	if day == "" {
-		day = s.flags.Today()
+// Camps computes a fighter's camp history as of the day on ("" = today).
+func (s *Server) Camps(athlete, on string) (CampHistory, error) {
+	if on == "" {
+		on = s.flags.Today()
 	}
-	cur, err := s.flags.input(athlete, day)
+	cur, err := s.flags.input(athlete, on)
 	if err != nil {
 		return CampHistory{}, err
 	}
-	out := CampHistory{Athlete: athlete, Name: athleteName(cur.Athlete), Units: "kg", Day: day, Camps: []series.Camp{}, Tests: []CampTest{}, Caution: flags.CautionMass}
-	if a, ok := unitsOf(cur.Athlete); ok {
-		out.Units = a
-	}
+	out := CampHistory{Athlete: athlete, Name: athleteName(cur.Athlete), Units: series.Units(cur.Athlete), Day: on,
+		Camps: []series.Camp{}, Tests: []CampTest{}, Caution: flags.CautionMass}
 	current := ""
 	if cur.Bout != nil {
 		current = cur.Bout.ID
 	}
-	var ins []series.CampInput
-	for _, b := range cur.Bouts {
-		from, to, ok := series.CampRange(b, day)
-		if !ok {
-			continue
-		}
-		in, err := s.flags.seriesInput(athlete, from, to)
-		if err != nil {
+	for _, span := range series.CampSpans(cur.Bouts, current, on) {
+		in := cur // the athlete, bouts and thresholds of the day; the camp's own records
+		if err := s.flags.reach(&in, span.From, span.To); err != nil {
 			return CampHistory{}, err
 		}
-		ins = append(ins, series.CampInput{Bout: b, Input: in})
+		out.Camps = append(out.Camps, span.Camp(in))
 	}
-	out.Camps = series.Camps(ins, current, day)
-	rep, err := s.Tests(athlete, day)
+	rep, err := s.Tests(athlete, on)
 	if err != nil {
 		return CampHistory{}, err
 	}
@@ -87,30 +78,11 @@ func (s *Server) Camps(athlete, day string) (CampHistory, error) {
 			if len(c.Days) == 0 || e.Day < c.Days[0] || e.Day > c.Days[len(c.Days)-1] {
 				continue
 			}
-			i, _ := dayIndex(c.Days, e.Day)
-			out.Tests = append(out.Tests, CampTest{Camp: c.Bout, DaysOut: c.DaysOut[i], Day: e.Day, Series: e.Series, Label: e.Label,
+			out.Tests = append(out.Tests, CampTest{Camp: c.Bout, DaysOut: int(day.MustParse(e.Day) - day.MustParse(c.BoutDay)), Day: e.Day, Series: e.Series, Label: e.Label,
 				Value: e.Value, Unit: e.Unit, Better: e.Better, Summary: e.Summary})
 		}
 	}
 	return out, nil
-}
-
-// dayIndex is the position of d in the consecutive days ds.
-func dayIndex(ds []string, d string) (int, bool) {
-	for i, x := range ds {
-		if x == d {
-			return i, true
-		}
-	}
-	return 0, false
-}
-
-func unitsOf(a devsync.Record) (string, bool) {
-	var b records.Athlete
-	if err := json.Unmarshal(a.Body, &b); err != nil || b.Units == "" {
-		return "", false
-	}
-	return b.Units, true
 }
 
 func (s *Server) handleCamps(w http.ResponseWriter, r *http.Request) error {
@@ -122,13 +94,13 @@ func (s *Server) handleCamps(w http.ResponseWriter, r *http.Request) error {
 	if who.Role == "athlete" && id != who.Athlete {
 		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's camps")
 	}
-	day := r.URL.Query().Get("day")
-	if day != "" {
-		if _, err := addDays(day, 0); err != nil {
-			return userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day written YYYY-MM-DD; got %q", day))
+	on := r.URL.Query().Get("day")
+	if on != "" {
+		if _, err := day.Parse(on); err != nil {
+			return userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day written YYYY-MM-DD; got %q", on))
 		}
 	}
-	h, err := s.Camps(id, day)
+	h, err := s.Camps(id, on)
 	if err != nil {
 		return err
 	}

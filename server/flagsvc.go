@@ -480,17 +480,23 @@ func (f *flagService) seriesInput(id, from, to string) (flags.Input, error) {
 	if err != nil {
 		return in, err
 	}
+	return in, f.reach(&in, from, to)
+}
+
+// reach gives in the records a chart from..to needs, LookbackDays before
+// from up to to, reading them only when in does not hold them already.
+func (f *flagService) reach(in *flags.Input, from, to string) error {
 	lo, err := addDays(from, -flags.LookbackDays)
 	if err != nil {
-		return in, err
+		return err
 	}
-	if lo < in.From {
-		if in.Records, err = f.history(id, lo, to); err != nil {
-			return in, err
+	if lo < in.From || to > in.Day {
+		if in.Records, err = f.history(in.Athlete.ID, lo, to); err != nil {
+			return err
 		}
-		in.From = lo
+		in.From, in.Day = lo, to
 	}
-	return in, nil
+	return nil
 }
 
 // errFound stops a Range at its first record.

@@ -233,6 +233,27 @@ func (b *builder) path() []flags.Knot {
 	return flags.DefaultPath(b.campStart, b.weighIn, bt.StartMassKg, bt.LimitKg, factor, int(b.param(records.RuleMassAbovePath, "final_days")))
 }
 
+// pathAt is the planned path's mass on day d, from camp start to the
+// weigh-in; null outside it or without a path.
+func (b *builder) pathAt(path []flags.Knot, d day.Number) *float64 {
+	if path == nil || !b.hasCamp || !b.hasWeighIn || d < b.campStart || d > b.weighIn {
+		return nil
+	}
+	return f64(flags.PathAt(path, d))
+}
+
+// PathOnly is Build's Mass.PathKg for from..to without the rest of the
+// series (no record is read): the planned path on to a bout still ahead.
+func PathOnly(in flags.Input, from, to day.Number) []*float64 {
+	b := newBuilder(&flags.Input{Athlete: in.Athlete, Bout: in.Bout, Settings: in.Settings}, from, to)
+	path := b.path()
+	out := make([]*float64, int(to-from)+1)
+	for i := range out {
+		out[i] = b.pathAt(path, from+day.Number(i))
+	}
+	return out
+}
+
 func (b *builder) mass(s *Series) {
 	m := &s.Mass
 	if b.bout != nil && b.bout.LimitKg > 0 {
@@ -260,9 +281,7 @@ func (b *builder) mass(s *Series) {
 				m.MorningKg[i] = f64(kg)
 			}
 		}
-		if path != nil && b.hasCamp && b.hasWeighIn && d >= b.campStart && d <= b.weighIn {
-			m.PathKg[i] = f64(flags.PathAt(path, d))
-		}
+		m.PathKg[i] = b.pathAt(path, d)
 		trend, ok := b.trend(d)
 		if !ok {
 			continue

@@ -3,10 +3,12 @@ package series
 import (
 	"encoding/json"
 	"math"
+	"slices"
 	"sort"
 
 	"cornerbook/server/flags"
 	"cornerbook/server/flags/day"
+	"cornerbook/server/flags/stats"
 	"cornerbook/server/records"
 	devsync "cornerbook/sync"
 )
@@ -15,16 +17,13 @@ import (
 // one of the day and the ones before it, newest first.
 const MaxCamps = 4
 
-// DefaultCampDays is a camp's length when its bout names no camp start.
-const DefaultCampDays = 56
-
 // Camp is one of a fighter's camps, day by day from its start to its bout
 // (or to the day asked, for a camp still running), each day placed by its
 // days to the bout so that camps of different lengths and dates line up.
 type Camp struct {
 	Bout        string   `json:"bout"` // the bout record's id
 	Name        string   `json:"name,omitempty"`
-	CampStart   string   `json:"camp_start"` // the first day drawn
+	CampStart   string   `json:"camp_start"`
 	BoutDay     string   `json:"bout_day"`
 	WeighInDay  string   `json:"weigh_in_day,omitempty"` // the venue's calendar day
 	WeightClass string   `json:"weight_class,omitempty"`
@@ -37,11 +36,11 @@ type Camp struct {
 	// day asked, before its bout).
 	Days    []string `json:"days"`
 	DaysOut []int    `json:"days_out"`
-	// MorningKg and PathKg are the morning mass and the planned path, as
-	// on the fighter's charts. OverLimitPct and PathOverLimitPct are the
-	// same against the camp's own limit, (mass − limit) / limit × 100,
-	// the form in which sanctioning bodies state check weights, so camps
-	// at different limits share one scale; null without a limit.
+	// MorningKg is the morning mass, as on the fighter's charts, and
+	// OverLimitPct the same against the camp's own limit, (mass − limit) /
+	// limit × 100, the form in which sanctioning bodies state check
+	// weights, so camps at different limits share one scale; null without
+	// a limit.
 	MorningKg    []*float64 `json:"morning_kg"`
 	OverLimitPct []*float64 `json:"over_limit_pct"`
 	// Path is the planned path over the whole camp, to the bout day even
@@ -82,136 +81,109 @@ type CampWeek struct {
 	MeanCMJCm *float64 `json:"mean_cmj_cm"`
 }
 
-// CampInput gives Camps one camp's bout and the input to compute it from:
-// the athlete's records (at least LookbackDays before the camp start on),
-// thresholds and bouts, with Bout set to this camp's.
-type CampInput struct {
-	Bout  devsync.Record
-	Input flags.Input
+// CampSpan is one camp the history draws: its bout and the days drawn.
+type CampSpan struct {
+	Bout     devsync.Record
+	From, To string
+	Current  bool
+	body     records.Bout
 }
 
-// CampRange is the span Camps draws for a bout on the day asked: from the
-// camp start (DefaultCampDays before the bout without one) to the bout
-// day, or to the day asked if that is earlier. ok is false for a bout
-// whose camp starts after the day asked, or that cannot be read.
-func CampRange(bout devsync.Record, asked string) (from, to string, ok bool) {
-	var b records.Bout
-	if bout.Deleted || json.Unmarshal(bout.Body, &b) != nil {
+// campRange is the span drawn for a bout on the day asked: from the camp
+// start to the bout day, or to the day asked if that is earlier (a stored
+// bout's camp is at most records.MaxCampDays long, within a chart's
+// MaxDays). ok is false for a camp that starts after the day asked.
+func campRange(b records.Bout, asked string) (from, to string, ok bool) {
+	start, err1 := day.Parse(b.CampStart)
+	bd, err2 := day.Parse(b.BoutDay)
+	a, err3 := day.Parse(asked)
+	if err1 != nil || err2 != nil || err3 != nil {
 		return "", "", false
 	}
-	bd, err := day.Parse(b.BoutDay)
-	if err != nil {
-		return "", "", false
-	}
-	a, err := day.Parse(asked)
-	if err != nil {
-		return "", "", false
-	}
-	start := bd - DefaultCampDays + 1
-	if cs, err := day.Parse(b.CampStart); err == nil && cs <= bd {
-		start = cs
-	}
-	end := bd
-	if a < end {
-		end = a
-	}
+	end := min(bd, a)
 	if start > end {
 		return "", "", false
-	}
-	// A camp longer than a chart draws keeps its last MaxDays days.
-	if int(end-start)+1 > MaxDays {
-		start = end - MaxDays + 1
 	}
 	return start.String(), end.String(), true
 }
 
-// Camps lines up a fighter's camps by days to the bout: the camp whose
-// bout is current (current: that bout record's id) and the camps before
-// it, newest first, at most MaxCamps. A later camp than the current one
-// is not shown. Each camp's numbers are Build's for its own span, so they
-// are the numbers its charts and flags showed.
-func Camps(ins []CampInput, current, asked string) []Camp {
-	type cand struct {
-		in       CampInput
-		b        records.Bout
-		from, to string
-	}
-	var cs []cand
-	var curDay string
-	for _, ci := range ins {
+// CampSpans picks the camps the history draws on the day asked: the camp
+// whose bout is current (current: that bout record's id) and the camps
+// before it, newest first, at most MaxCamps. A later camp than the
+// current one, and a camp not started by the day asked, are left out.
+func CampSpans(bouts []devsync.Record, current, asked string) []CampSpan {
+	var out []CampSpan
+	curDay := ""
+	for _, r := range bouts {
 		var b records.Bout
-		if json.Unmarshal(ci.Bout.Body, &b) != nil {
+		if r.Deleted || json.Unmarshal(r.Body, &b) != nil {
 			continue
 		}
-		if ci.Bout.ID == current {
+		if r.ID == current {
 			curDay = b.BoutDay
 		}
-		from, to, ok := CampRange(ci.Bout, asked)
-		if !ok {
-			continue
+		if from, to, ok := campRange(b, asked); ok {
+			out = append(out, CampSpan{Bout: r, From: from, To: to, Current: r.ID == current, body: b})
 		}
-		cs = append(cs, cand{ci, b, from, to})
 	}
-	sort.Slice(cs, func(i, j int) bool {
-		if cs[i].b.BoutDay != cs[j].b.BoutDay {
-			return cs[i].b.BoutDay > cs[j].b.BoutDay
+	out = slices.DeleteFunc(out, func(c CampSpan) bool { return curDay != "" && c.body.BoutDay > curDay })
+	sort.Slice(out, func(i, j int) bool {
+		if out[i].body.BoutDay != out[j].body.BoutDay {
+			return out[i].body.BoutDay > out[j].body.BoutDay
 		}
-		return cs[i].in.Bout.ID < cs[j].in.Bout.ID
+		return out[i].Bout.ID < out[j].Bout.ID
 	})
-	out := []Camp{}
-	for _, c := range cs {
-		if curDay != "" && c.b.BoutDay > curDay {
-			continue
-		}
-		if len(out) == MaxCamps {
-			break
-		}
-		out = append(out, campOf(c.in, c.b, c.from, c.to, c.in.Bout.ID == current))
-	}
-	return out
+	return out[:min(len(out), MaxCamps)]
 }
 
-func campOf(ci CampInput, b records.Bout, from, to string, current bool) Camp {
-	in := ci.Input
-	bout := ci.Bout
+// Camp computes the camp from in: the athlete's records from LookbackDays
+// before From on, thresholds and bouts (in.Bout is set to the camp's).
+// Its numbers are Build's for its own span, so they are the numbers its
+// charts and flags showed.
+func (cs CampSpan) Camp(in flags.Input) Camp {
+	b := cs.body
+	bout := cs.Bout
 	in.Bout = &bout
-	s := Build(in, from, to)
+	s := Build(in, cs.From, cs.To)
 	bd := day.MustParse(b.BoutDay)
-	c := Camp{Bout: bout.ID, Name: b.Name, CampStart: from, BoutDay: b.BoutDay, WeightClass: b.WeightClass,
-		WeighInDay: s.Mass.WeighInDay, LimitKg: s.Mass.LimitKg, Current: current,
+	from := day.MustParse(cs.From)
+	c := Camp{Bout: bout.ID, Name: b.Name, CampStart: cs.From, BoutDay: b.BoutDay, WeightClass: b.WeightClass,
+		WeighInDay: s.Mass.WeighInDay, LimitKg: s.Mass.LimitKg, Current: cs.Current,
 		Days: s.Days, DaysOut: make([]int, len(s.Days)), MorningKg: s.Mass.MorningKg,
 		OverLimitPct: make([]*float64, len(s.Days)), CMJCm: s.Jump.MeanCm, Weeks: []CampWeek{}}
 	limit := 0.0
 	if c.LimitKg != nil {
 		limit = *c.LimitKg
 	}
-	for i, d := range s.Days {
-		c.DaysOut[i] = int(day.MustParse(d) - bd)
-		c.OverLimitPct[i] = OverLimitPct(s.Mass.MorningKg[i], limit)
+	// The planned path over the whole camp, on to the bout day.
+	c.Path = CampPath{Kg: PathOnly(in, from, bd)}
+	c.Path.DaysOut, c.Path.OverLimitPct = make([]int, len(c.Path.Kg)), make([]*float64, len(c.Path.Kg))
+	for i, kg := range c.Path.Kg {
+		c.Path.DaysOut[i] = int(from-bd) + i
+		c.Path.OverLimitPct[i] = OverLimitPct(kg, limit)
 	}
-	// The path on to the bout day: the days after to, from a series of
-	// their own (only its path is read).
-	days, path := s.Days, s.Mass.PathKg
-	if to != b.BoutDay && CheckRange(day.MustParse(to).String(), b.BoutDay) == nil {
-		rest := Build(in, (day.MustParse(to) + 1).String(), b.BoutDay)
-		days, path = append(append([]string(nil), days...), rest.Days...), append(append([]*float64(nil), path...), rest.Mass.PathKg...)
-	}
-	c.Path = CampPath{DaysOut: make([]int, len(days)), Kg: path, OverLimitPct: make([]*float64, len(days))}
-	for i, d := range days {
-		c.Path.DaysOut[i] = int(day.MustParse(d) - bd)
-		c.Path.OverLimitPct[i] = OverLimitPct(path[i], limit)
-	}
-	// Weeks back from the bout: week k holds days −7k−6 … −7k.
-	byWeek := map[int]*CampWeek{}
-	cmj := map[int][]float64{}
-	for i := range s.Days {
-		k := -c.DaysOut[i] / 7
-		w := byWeek[k]
-		if w == nil {
-			lo, hi := bd-day.Number(7*k+6), bd-day.Number(7*k)
-			w = &CampWeek{WeeksOut: k, From: lo.String(), To: hi.String()}
-			byWeek[k] = w
+	// Days in order, and weeks back from the bout (week k holds days
+	// −7k−6 … −7k), furthest first: a new week begins where k changes.
+	var cmj []float64
+	closeWeek := func() {
+		if n := len(c.Weeks); n > 0 {
+			w := &c.Weeks[n-1]
+			w.LoadAU = math.Round(w.LoadAU*10) / 10
+			if len(cmj) > 0 {
+				w.MeanCMJCm = f64(stats.Mean(cmj))
+			}
 		}
+		cmj = cmj[:0]
+	}
+	for i := range s.Days {
+		out := int(from-bd) + i
+		c.DaysOut[i] = out
+		c.OverLimitPct[i] = OverLimitPct(s.Mass.MorningKg[i], limit)
+		if k := -out / 7; len(c.Weeks) == 0 || c.Weeks[len(c.Weeks)-1].WeeksOut != k {
+			closeWeek()
+			c.Weeks = append(c.Weeks, CampWeek{WeeksOut: k, From: (bd - day.Number(7*k+6)).String(), To: (bd - day.Number(7*k)).String()})
+		}
+		w := &c.Weeks[len(c.Weeks)-1]
 		w.Days++
 		if v := s.Load.DailyAU[i]; v != nil {
 			w.LoadAU += *v
@@ -219,21 +191,10 @@ func campOf(ci CampInput, b records.Bout, from, to string, current bool) Camp {
 		w.Rounds += s.Sparring.Rounds[i]
 		w.HardRounds += s.Sparring.HardRounds[i]
 		if v := s.Jump.MeanCm[i]; v != nil {
-			cmj[k] = append(cmj[k], *v)
+			cmj = append(cmj, *v)
 		}
 	}
-	for _, w := range byWeek {
-		if v := cmj[w.WeeksOut]; len(v) > 0 {
-			sum := 0.0
-			for _, x := range v {
-				sum += x
-			}
-			w.MeanCMJCm = f64(sum / float64(len(v)))
-		}
-		w.LoadAU = math.Round(w.LoadAU*10) / 10
-		c.Weeks = append(c.Weeks, *w)
-	}
-	sort.Slice(c.Weeks, func(i, j int) bool { return c.Weeks[i].WeeksOut > c.Weeks[j].WeeksOut })
+	closeWeek()
 	return c
 }
 

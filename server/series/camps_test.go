@@ -34,19 +34,20 @@ func twoCamps(t *testing.T) (*camp, devsync.Record, devsync.Record) {
 	return c, past, now
 }
 
-func campInputs(c *camp, bouts ...devsync.Record) []series.CampInput {
-	var out []series.CampInput
-	for _, b := range bouts {
+// camps draws the camps CampSpans picks, each from the camp's records.
+func camps(c *camp, current, asked string, bouts ...devsync.Record) []series.Camp {
+	var out []series.Camp
+	for _, span := range series.CampSpans(bouts, current, asked) {
 		in := c.input(nil)
 		in.Bouts = bouts
-		out = append(out, series.CampInput{Bout: b, Input: in})
+		out = append(out, span.Camp(in))
 	}
 	return out
 }
 
 func TestCampsLineUpByDaysToTheBout(t *testing.T) {
 	c, past, now := twoCamps(t)
-	cs := series.Camps(campInputs(c, past, now), now.ID, d(180))
+	cs := camps(c, now.ID, d(180), past, now)
 	if len(cs) != 2 {
 		t.Fatalf("%d camps, want 2", len(cs))
 	}
@@ -114,14 +115,16 @@ func TestCampsLineUpByDaysToTheBout(t *testing.T) {
 // has not started is not drawn.
 func TestCampsLeaveOutLaterBouts(t *testing.T) {
 	c, past, now := twoCamps(t)
-	cs := series.Camps(campInputs(c, past, now), past.ID, d(20))
+	cs := camps(c, past.ID, d(20), past, now)
 	if len(cs) != 1 || cs[0].Bout != past.ID || !cs[0].Current {
 		t.Fatalf("asked inside the earlier camp: %+v", cs)
 	}
 	if got := cs[0].Days[len(cs[0].Days)-1]; got != d(20) {
 		t.Fatalf("the running camp stops at the day asked, not %s", got)
 	}
-	if _, _, ok := series.CampRange(now, d(100)); ok {
-		t.Fatal("a camp starting after the day asked has no range")
+	// Asked before this camp starts (d(144)), with its bout current: only
+	// the earlier camp is drawn.
+	if cs := series.CampSpans([]devsync.Record{past, now}, now.ID, d(100)); len(cs) != 1 || cs[0].Bout.ID != past.ID || cs[0].Current {
+		t.Fatalf("a camp starting after the day asked is drawn: %+v", cs)
 	}
 }

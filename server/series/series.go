@@ -192,7 +192,7 @@ func CheckRange(from, to string) error {
 // the athlete's history (the load averages run from the first record). A
 // range CheckRange refuses gives a Series with no days.
 func Build(in flags.Input, from, to string) Series {
-	s := Series{Athlete: in.Athlete.ID, From: from, To: to, Units: units(in.Athlete)}
+	s := Series{Athlete: in.Athlete.ID, From: from, To: to, Units: Units(in.Athlete)}
 	if CheckRange(from, to) != nil {
 		s.alloc(0)
 		return s
@@ -211,7 +211,8 @@ func Build(in flags.Input, from, to string) Series {
 	return s
 }
 
-func units(a devsync.Record) string {
+// Units is how an athlete wants masses shown: "lb" or "kg" (the default).
+func Units(a devsync.Record) string {
 	var body struct {
 		Units string `json:"units"`
 	}
