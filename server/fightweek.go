@@ -176,11 +176,7 @@ func fightWeekWords(v *FightWeekView) []string {
 		out = append(out, line+".")
 	}
 	if v.Mass7dBeforeKg != nil {
-		when := v.Mass7dBeforeDay
-		if n, err := day.Parse(when); err == nil {
-			when = n.Words()
-		}
-		line := fmt.Sprintf("Morning mass 7 days before the weigh-in (%s): %s", when, m(*v.Mass7dBeforeKg))
+		line := fmt.Sprintf("Morning mass 7 days before the weigh-in (%s): %s", day.Words(v.Mass7dBeforeDay), m(*v.Mass7dBeforeKg))
 		if v.AcuteLossPct != nil {
 			line += fmt.Sprintf("; %.1f %% lost to the official weigh-in", *v.AcuteLossPct)
 		}

@@ -226,7 +226,7 @@ func checkContent(b records.Bout, start, bout day.Number, th map[string]map[stri
 		}
 		add(CheckTravelRecovery, fmt.Sprintf("body.weeks[%d].travel", i), LevelWatch,
 			"The journey from %s to %s arriving %s shifts the clock %s h (%s); the body needs about %d days to adjust (about %s zone a day %s; Janse van Rensburg et al. 2021), but %s %s planned above low. A lighter plan for those days lets the fighter adjust.",
-			j.From, j.To, dayWords(j.ArriveDay), signed(j.ShiftH), j.Direction, j.Days, fmtRate(j.Rate), j.Direction, joinAnd(heavy), isAre(len(heavy)))
+			j.From, j.To, day.Words(j.ArriveDay), signed(j.ShiftH), j.Direction, j.Days, fmtRate(j.Rate), j.Direction, joinAnd(heavy), isAre(len(heavy)))
 	}
 	return out
 }
@@ -395,13 +395,4 @@ func joinAnd(s []string) string {
 		out += x
 	}
 	return out + " and " + s[len(s)-1]
-}
-
-// dayWords names a YYYY-MM-DD day as the flag reasons do ("Sat 12 Dec");
-// anything else is given back as it is.
-func dayWords(s string) string {
-	if n, err := day.Parse(s); err == nil {
-		return n.Words()
-	}
-	return s
 }

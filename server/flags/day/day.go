@@ -100,6 +100,15 @@ func (n Number) Words() string {
 	return time.Date(y, time.Month(m), d, 12, 0, 0, 0, time.UTC).Format("Mon 2 Jan")
 }
 
+// Words names the YYYY-MM-DD day s as Number.Words does; anything else is
+// given back as it is.
+func Words(s string) string {
+	if n, err := Parse(s); err == nil {
+		return n.Words()
+	}
+	return s
+}
+
 // String formats n as YYYY-MM-DD.
 func (n Number) String() string {
 	y, m, d := n.Civil()

@@ -84,3 +84,13 @@ func TestWordsNamesTheWeekday(t *testing.T) {
 		}
 	}
 }
+
+// TestWordsOfAString: a written day in words, anything else untouched
+// (a refusal or a reason never loses what it was given).
+func TestWordsOfAString(t *testing.T) {
+	for in, want := range map[string]string{"2026-12-03": "Thu 3 Dec", "2026-13-01": "2026-13-01", "": ""} {
+		if got := Words(in); got != want {
+			t.Errorf("Words(%q) = %q, want %q", in, got, want)
+		}
+	}
+}
