@@ -2,6 +2,7 @@
 // with this device's pass when it has one. Flags, chart series and plan
 // checks are computed by the hub; these screens only draw them.
 import { getMeta, getRecord, onChange } from '../db.js';
+import { useState, useEffect } from '../ui.js';
 
 export class HubReadError extends Error {
   constructor(status, body, offline) {
@@ -53,6 +54,29 @@ export function remember(key, data) {
 }
 export function recall(key) {
   try { return JSON.parse(localStorage.getItem('cb.coach.' + key) || 'null'); } catch (_) { return null; }
+}
+
+// useHubCopy is what load() reads from the hub for key ("" loads
+// nothing), with this device's last copy of it shown until the answer
+// comes: {data, error, loaded, cachedAt}. A refusal keeps that copy; what
+// was read for another key is never returned. deps reload the same key.
+export function useHubCopy(key, load, deps = []) {
+  const [st, setSt] = useState({ key: '', data: null, error: '', loaded: false });
+  useEffect(() => {
+    if (!key) return undefined;
+    let alive = true;
+    const c = recall(key);
+    if (c) setSt({ key, data: c.data, error: '', cachedAt: c.at, loaded: true });
+    load().then((data) => {
+      if (!alive) return;
+      remember(key, data);
+      setSt({ key, data, error: '', loaded: true });
+    }, (e) => {
+      if (alive) setSt((o) => (o.key === key ? { ...o, error: e.message, loaded: true } : { key, data: null, error: e.message, loaded: true }));
+    });
+    return () => { alive = false; };
+  }, [key, ...deps]);
+  return st.key === key ? st : { data: null, error: '', loaded: false };
 }
 
 let tables = null;

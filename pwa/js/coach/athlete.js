@@ -3,7 +3,7 @@
 // acute:chronic ratio, sparring against the cap, wellness against its
 // threshold. Each chart has a plain-words title and a text summary.
 import { html, useState, useEffect, useAthletes, Link } from '../ui.js';
-import { hubGet, remember, recall } from './api.js';
+import { hubGet, useHubCopy } from './api.js';
 import { dayTs, cssVar, usePlot, useSchemeChanges } from './charts.js';
 import { addDays, isDay, today, longDay, shortDay, query, mass, massNum, fmtN, MASS_CAUTION } from './common.js';
 import { TestCharts } from './testcharts.js';
@@ -14,36 +14,20 @@ const SPAN_DAYS = 42;
 // the weigh-in and the plan report — before any chart is shown, so the
 // charts appear together and none pushes the others down when it lands.
 function useSeries(id, day) {
-  const [st, setSt] = useState({ s: null, future: null, plan: null, error: '' });
-  useEffect(() => {
-    if (!id) return undefined;
-    let alive = true;
-    const from = addDays(day, -(SPAN_DAYS - 1));
-    const key = `series.${id}.${day}`;
-    const c = recall(key);
-    if (c) setSt({ ...c.data, error: '', cachedAt: c.at });
-    (async () => {
-      try {
-        const [s, plan] = await Promise.all([
-          hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from, to: day })),
-          hubGet(query(`/api/athletes/${encodeURIComponent(id)}/plan`, { day })).catch(() => ({ none: true })),
-        ]);
-        let future = null;
-        const wi = s.mass && s.mass.weigh_in_day;
-        // The planned path runs on to the weigh-in: fetch that stretch for the path alone.
-        if (wi && wi > day && wi <= addDays(day, 120)) {
-          future = await hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from: addDays(day, 1), to: wi }));
-        }
-        if (!alive) return;
-        remember(key, { s, future, plan });
-        setSt({ s, future, plan, error: '' });
-      } catch (e) {
-        if (alive) setSt((o) => ({ ...o, error: e.message }));
-      }
-    })();
-    return () => { alive = false; };
-  }, [id, day]);
-  return st;
+  const st = useHubCopy(id ? `series.${id}.${day}` : '', async () => {
+    const [s, plan] = await Promise.all([
+      hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from: addDays(day, -(SPAN_DAYS - 1)), to: day })),
+      hubGet(query(`/api/athletes/${encodeURIComponent(id)}/plan`, { day })).catch(() => ({ none: true })),
+    ]);
+    let future = null;
+    const wi = s.mass && s.mass.weigh_in_day;
+    // The planned path runs on to the weigh-in: fetch that stretch for the path alone.
+    if (wi && wi > day && wi <= addDays(day, 120)) {
+      future = await hubGet(query(`/api/athletes/${encodeURIComponent(id)}/series`, { from: addDays(day, 1), to: wi }));
+    }
+    return { s, future, plan };
+  });
+  return { s: null, future: null, plan: null, ...st.data, error: st.error };
 }
 
 const last = (xs) => { for (let i = xs.length - 1; i >= 0; i--) if (xs[i] !== null && xs[i] !== undefined) return i; return -1; };

@@ -4,30 +4,9 @@
 // sparring a week, and the tests of each camp. Every number is the hub's.
 import { html, useState, useEffect, useAthletes, Link } from '../ui.js';
 import { getMeta } from '../db.js';
-import { hubGet, remember, recall } from './api.js';
+import { hubGet, useHubCopy } from './api.js';
 import { daysOut, cssVar, usePlot, useSchemeChanges } from './charts.js';
-import { longDay, isDay, query, mass, fmtN, MASS_CAUTION } from './common.js';
-
-const MO = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
-const monthOf = (d) => `${MO[+d.slice(5, 7) - 1]} ${d.slice(0, 4)}`;
-
-function useCamps(id, day) {
-  const key = `camps.${id}.${day}`;
-  const [st, setSt] = useState({ key: '', h: null, error: '' });
-  useEffect(() => {
-    if (!id) return undefined;
-    let alive = true;
-    const c = recall(key);
-    if (c) setSt({ key, h: c.data, error: '', cachedAt: c.at });
-    hubGet(query(`/api/athletes/${encodeURIComponent(id)}/camps`, { day })).then((h) => {
-      if (!alive) return;
-      remember(key, h);
-      setSt({ key, h, error: '' });
-    }, (e) => { if (alive) setSt((o) => (o.key === key ? { ...o, error: e.message } : { key, h: null, error: e.message })); });
-    return () => { alive = false; };
-  }, [key]);
-  return st.key === key ? st : { h: null, error: '' };
-}
+import { longDay, isDay, query, mass, massNum, fmtN, monthYear, MASS_CAUTION } from './common.js';
 
 // Each camp's line: this camp in the accent colour and thickest; earlier
 // camps told apart by colour and by dash, so the lines read in grey too.
@@ -42,18 +21,20 @@ function styles(camps) {
   });
 }
 
-// short names a camp on the chart: "this camp", "Jun 2026".
-const short = (c) => (c.current ? 'this camp' : `${monthOf(c.bout_day)} camp`);
+// A camp's names: "this camp" or "Jun 2026 camp" on a chart, "This
+// camp" or "Jun 2026 camp" in a heading, and "The Jun 2026 camp" to begin
+// a sentence.
+const short = (c) => (c.current ? 'this camp' : `${monthYear(c.bout_day)} camp`);
+const heading = (c) => (c.current ? 'This camp' : `${monthYear(c.bout_day)} camp`);
+const subject = (c) => (c.current ? 'This camp' : `The ${heading(c)}`);
 
-// at finds a camp's value at days-out n, or the nearest one within 3
-// days (a missed check-in), as [value, daysOut] or null.
+// at is the index of a camp's value at days-out n in xs, or of the nearest
+// one within 3 days (a missed check-in); -1 if none.
 function at(c, xs, n) {
-  let best = null;
+  let best = -1;
   for (let i = 0; i < c.days_out.length; i++) {
-    const v = xs[i];
-    if (v === null || v === undefined) continue;
-    const gap = Math.abs(c.days_out[i] - n);
-    if (gap <= 3 && (!best || gap < best[2])) best = [v, c.days_out[i], gap];
+    if (xs[i] === null || xs[i] === undefined) continue;
+    if (Math.abs(c.days_out[i] - n) <= 3 && (best < 0 || Math.abs(c.days_out[i] - n) < Math.abs(c.days_out[best] - n))) best = i;
   }
   return best;
 }
@@ -66,13 +47,13 @@ export function Camps() {
   const [id, setId] = useState(p.get('athlete') || '');
   const day = isDay(p.get('day')) ? p.get('day') : '';
   useEffect(() => { history.replaceState(null, '', query('/camps', { athlete: id, day })); }, [id]);
-  const st = useCamps(id, day);
+  const st = useHubCopy(id ? `camps.${id}.${day}` : '', () => hubGet(query(`/api/athletes/${encodeURIComponent(id)}/camps`, { day })));
   const scheme = useSchemeChanges();
   if (list === null || role === null) {
     return html`<section class="coach" data-testid="screen-camps" data-ready="false"><h1>Camp history</h1><p class="muted">Loading…</p></section>`;
   }
   const a = list.find((x) => x.id === id);
-  const h = st.h;
+  const h = st.data;
   const ready = !id || !!h || !!st.error;
   return html`<section class="coach" data-testid="screen-camps" data-ready=${ready ? 'true' : 'false'}>
     <h1>Camp history${a ? html` — ${a.name}` : ''}</h1>
@@ -106,7 +87,7 @@ function History({ h }) {
     <ul class="camp-list" data-testid="camps-list">${camps.map((c, i) => html`
       <li class="card" data-testid="camp" data-bout=${c.bout} data-current=${c.current ? 'true' : 'false'}>
         <i class=${`swatch ${sty[i].legend}`} style=${`color:${sty[i].color}`} aria-hidden="true"></i>
-        <div><strong>${c.current ? 'This camp' : `${monthOf(c.bout_day)} camp`}</strong>${c.name ? ` — ${c.name}` : ''}<br />
+        <div><strong>${heading(c)}</strong>${c.name ? ` — ${c.name}` : ''}<br />
           <span class="muted">Bout ${longDay(c.bout_day)} · ${c.current && c.days[c.days.length - 1] < c.bout_day ? `${c.days.length} days so far` : `${c.days.length} days`} from ${longDay(c.camp_start)} · ${c.limit_kg ? `limit ${mass(c.limit_kg, units)}` : 'no upper limit'}</span></div>
       </li>`)}</ul>
     ${camps.length === 1 && html`<p class="muted" data-testid="camps-one">Only this camp is on record; earlier camps appear beside it once their bouts are in Cornerbook.</p>`}
@@ -134,37 +115,23 @@ function CampChart({ testid, title, summary, x, ys, spec, legend, caution }) {
   </figure>`;
 }
 
-// spread puts every camp's values on one x axis of days out: xs are the
-// union of days out, each camp's series null where it has no day.
-function spread(camps, pick) {
-  const all = new Set();
-  for (const c of camps) for (const d of c.days_out) all.add(d);
-  const x = [...all].sort((a, b) => a - b);
-  const ys = camps.map((c) => {
-    const m = new Map(c.days_out.map((d, i) => [d, pick(c)[i]]));
-    return x.map((d) => (m.has(d) ? m.get(d) : null));
-  });
-  return { x, ys };
+// spread puts lines of the camps on one x axis of days out, the union of
+// theirs: each line is [days_out, values], null where it has no day.
+function spread(lines) {
+  const x = [...new Set(lines.flatMap(([days]) => days))].sort((a, b) => a - b);
+  return {
+    x,
+    ys: lines.map(([days, vals]) => { const m = new Map(days.map((d, i) => [d, vals[i]])); return x.map((d) => (m.has(d) ? m.get(d) : null)); }),
+  };
 }
 
-// spreadWithPaths is spread for the mass chart, whose planned paths run
-// on to each bout beyond the days drawn.
-function spreadWithPaths(camps, pick, pickPath) {
-  const all = new Set();
-  for (const c of camps) { for (const d of c.days_out) all.add(d); for (const d of c.path.days_out) all.add(d); }
-  const x = [...all].sort((a, b) => a - b);
-  const line = (days, vals) => { const m = new Map(days.map((d, i) => [d, vals[i]])); return x.map((d) => (m.has(d) ? m.get(d) : null)); };
-  return { x, ys: camps.map((c) => line(c.days_out, pick(c))), paths: camps.map((c) => line(c.path.days_out, pickPath(c))) };
-}
-
+// compareWords says each camp's value at days-out now (or within 3 days
+// of it) in words: fmt(c, i) for the value at index i of xs(c).
 function compareWords(camps, now, xs, fmt, what) {
-  const parts = [];
-  for (const c of camps) {
-    const v = at(c, xs(c), now);
-    if (!v) { parts.push(`${c.current ? 'This camp' : `The ${monthOf(c.bout_day)} camp`}: no ${what} near ${-now} days out`); continue; }
-    parts.push(`${c.current ? 'This camp' : `The ${monthOf(c.bout_day)} camp`}: ${fmt(v[0], c)} at ${-v[1]} days out`);
-  }
-  return parts.join('. ') + '.';
+  return camps.map((c) => {
+    const i = at(c, xs(c), now);
+    return i < 0 ? `${subject(c)}: no ${what} near ${-now} days out` : `${subject(c)}: ${fmt(c, i)} at ${-c.days_out[i]} days out`;
+  }).join('. ') + '.';
 }
 
 function MassChart({ camps, sty, units, now }) {
@@ -172,12 +139,16 @@ function MassChart({ camps, sty, units, now }) {
   const ink = cssVar('--ink', '#222');
   // With a limit in every camp, against the limit (camps at different
   // limits share one scale); otherwise in the athlete's units.
-  const val = limits ? (c) => c.over_limit_pct : (c) => c.morning_kg.map((v) => (v == null ? null : units === 'lb' ? v / 0.45359237 : v));
-  const path = limits ? (c) => c.path.over_limit_pct : (c) => c.path.kg.map((v) => (v == null ? null : units === 'lb' ? v / 0.45359237 : v));
-  // One x axis for the days drawn and the paths on to each bout.
-  const { x, ys, paths } = spreadWithPaths(camps, val, path);
+  const inUnits = (xs) => xs.map((v) => massNum(v, units));
+  const val = limits ? (c) => c.over_limit_pct : (c) => inUnits(c.morning_kg);
+  const path = limits ? (c) => c.path.over_limit_pct : (c) => inUnits(c.path.kg);
+  // One x axis for the days drawn and the paths on to each bout: the
+  // camps' mass lines, then their paths.
+  const { x, ys: all } = spread([...camps.map((c) => [c.days_out, val(c)]), ...camps.map((c) => [c.path.days_out, path(c)])]);
+  const ys = all.slice(0, camps.length);
+  const paths = all.slice(camps.length);
   const summary = compareWords(camps, now, (c) => c.morning_kg,
-    (kg, c) => (c.limit_kg ? `${mass(kg, units)}, ${fmtN((kg - c.limit_kg) / c.limit_kg * 100, 1)} % over the limit of ${mass(c.limit_kg, units)}` : mass(kg, units)), 'morning mass');
+    (c, i) => (c.limit_kg ? `${mass(c.morning_kg[i], units)}, ${fmtN(c.over_limit_pct[i], 1)} % over the limit of ${mass(c.limit_kg, units)}` : mass(c.morning_kg[i], units)), 'morning mass');
   const series = [];
   const data = [];
   camps.forEach((c, i) => {
@@ -194,14 +165,14 @@ function MassChart({ camps, sty, units, now }) {
 }
 
 function CMJChart({ camps, sty, now }) {
-  const { x, ys } = spread(camps, (c) => c.cmj_cm);
+  const { x, ys } = spread(camps.map((c) => [c.days_out, c.cmj_cm]));
   const summary = camps.map((c) => {
     const w = c.weeks.filter((x) => x.mean_cmj_cm != null);
     const nowWeek = Math.floor(-now / 7);
     const same = w.find((x) => x.weeks_out === nowWeek);
-    const name = c.current ? 'This camp' : `The ${monthOf(c.bout_day)} camp`;
-    if (!w.length) return `${name}: no CMJ test.`;
-    return same ? `${name}: ${fmtN(same.mean_cmj_cm, 1)} cm on average ${nowWeek} weeks out.` : `${name}: ${fmtN(w[w.length - 1].mean_cmj_cm, 1)} cm on average ${w[w.length - 1].weeks_out} weeks out.`;
+    if (!w.length) return `${subject(c)}: no CMJ test.`;
+    const shown = same || w[w.length - 1];
+    return `${subject(c)}: ${fmtN(shown.mean_cmj_cm, 1)} cm on average ${shown.weeks_out} weeks out.`;
   }).join(' ');
   return html`<${CampChart} testid="camps-cmj" title="Jump height, CMJ (cm)" summary=${summary} x=${x} ys=${ys}
     legend=${camps.map((c, i) => [`${short(c)}: the day's CMJ`, sty[i].color, sty[i].legend])}
@@ -211,16 +182,12 @@ function CMJChart({ camps, sty, now }) {
 // WeekChart draws one weekly number per camp, each week at its middle day
 // (3 days before its last), so weeks line up with the daily charts.
 function WeekChart({ testid, title, unit, camps, sty, now, value, words }) {
-  const all = new Set();
-  for (const c of camps) for (const w of c.weeks) all.add(-7 * w.weeks_out - 3);
-  const x = [...all].sort((a, b) => a - b);
-  const ys = camps.map((c) => { const m = new Map(c.weeks.map((w) => [-7 * w.weeks_out - 3, value(w)])); return x.map((d) => (m.has(d) ? m.get(d) : null)); });
+  const { x, ys } = spread(camps.map((c) => [c.weeks.map((w) => -7 * w.weeks_out - 3), c.weeks.map(value)]));
   const nowWeek = Math.floor(-now / 7);
   const summary = camps.map((c) => {
-    const name = c.current ? 'This camp' : `The ${monthOf(c.bout_day)} camp`;
     const w = c.weeks.find((x) => x.weeks_out === nowWeek);
-    if (!w) return `${name}: nothing ${nowWeek} weeks out.`;
-    return `${name}, ${nowWeek === 0 ? 'the week of the bout' : `${nowWeek} weeks out`}: ${words(w)}${w.days < 7 ? ` (${w.days} of its 7 days)` : ''}.`;
+    if (!w) return `${subject(c)}: nothing ${nowWeek} weeks out.`;
+    return `${subject(c)}, ${nowWeek === 0 ? 'the week of the bout' : `${nowWeek} weeks out`}: ${words(w)}${w.days < 7 ? ` (${w.days} of its 7 days)` : ''}.`;
   }).join(' ');
   return html`<${CampChart} testid=${testid} title=${title} summary=${summary} x=${x} ys=${ys}
     legend=${camps.map((c, i) => [short(c), sty[i].color, sty[i].legend])}
@@ -240,10 +207,10 @@ function TestsTable({ h }) {
   }
   return html`<h2>Tests in each camp</h2>
     <table class="camp-tests" data-testid="camps-tests">
-      <thead><tr><th scope="col">Test</th>${h.camps.map((c) => html`<th scope="col">${c.current ? 'This camp' : `${monthOf(c.bout_day)} camp`}</th>`)}</tr></thead>
+      <thead><tr><th scope="col">Test</th>${h.camps.map((c) => html`<th scope="col">${heading(c)}</th>`)}</tr></thead>
       <tbody>${[...bySeries.entries()].map(([k, s]) => html`<tr data-series=${k}>
         <th scope="row">${s.label}${s.better === 'down' ? html`<br /><span class="muted small">lower is better</span>` : ''}</th>
-        ${h.camps.map((c) => html`<td>${(s.rows.get(c.bout) || []).map((t) => html`<div>${fmtN(t.value, t.unit === 'km/h' ? 1 : t.unit === 'kg' ? 0 : 1)} ${t.unit} <span class="muted small">${daysOut(t.days_out)}</span></div>`)}${!(s.rows.get(c.bout) || []).length && html`<span class="muted">–</span>`}</td>`)}
+        ${h.camps.map((c) => html`<td>${(s.rows.get(c.bout) || []).map((t) => html`<div>${fmtN(t.value, t.unit === 'kg' ? 0 : 1)} ${t.unit} <span class="muted small">${daysOut(t.days_out)}</span></div>`)}${!(s.rows.get(c.bout) || []).length && html`<span class="muted">–</span>`}</td>`)}
       </tr>`)}</tbody>
     </table>`;
 }

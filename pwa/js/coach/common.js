@@ -132,6 +132,11 @@ export function shortDay(day) {
   return `${WD[d.getUTCDay()].slice(0, 3)} ${d.getUTCDate()} ${MO[d.getUTCMonth()].slice(0, 3)}`;
 }
 
+// monthYear names a day's month: "Jun 2026".
+export function monthYear(day) {
+  return `${MO[+day.slice(5, 7) - 1].slice(0, 3)} ${day.slice(0, 4)}`;
+}
+
 // query builds a path with search parameters, leaving out empty ones.
 export function query(path, params) {
   const q = new URLSearchParams();

@@ -8,7 +8,7 @@ import { html, useState, useEffect, useRef, useAthletes, Link, SaveLine, savedSt
 import { save, getMeta } from '../db.js';
 import { toKg, fromKg, roundTo, parseNum, localDay } from '../record.js';
 import { useEditing, EditNote } from '../screens.js';
-import { hubGet, remember, recall, onData } from './api.js';
+import { hubGet, useHubCopy, onData } from './api.js';
 import { mass, fmtN, query, shortDay, isDay } from './common.js';
 
 const TYPES = [['check', 'Check weight'], ['official', 'Official weigh-in'], ['fight_day', 'Fight-day weigh-in']];
@@ -32,32 +32,11 @@ function localOffset() {
 }
 
 function useFightWeek(id, day, v) {
-  const key = `fightweek.${id}.${day}`;
-  const [st, setSt] = useState({ key: '', fw: null, med: null, error: '', loaded: false });
-  useEffect(() => {
-    if (!id) return undefined;
-    let alive = true;
-    const c = recall(key);
-    if (c) setSt({ ...c.data, key, error: '', cachedAt: c.at, loaded: true });
-    (async () => {
-      try {
-        const [fw, med] = await Promise.all([
-          hubGet(query(`/api/athletes/${encodeURIComponent(id)}/fightweek`, { day })),
-          hubGet(query(`/api/athletes/${encodeURIComponent(id)}/medical`, { day })),
-        ]);
-        if (!alive) return;
-        remember(key, { fw, med });
-        setSt({ key, fw, med, error: '', loaded: true });
-      } catch (e) {
-        // A refusal keeps what this fighter's week already showed, never
-        // another fighter's.
-        if (alive) setSt((o) => (o.key === key ? { ...o, error: e.message, loaded: true } : { key, fw: null, med: null, error: e.message, loaded: true }));
-      }
-    })();
-    return () => { alive = false; };
-  }, [key, v]);
-  // Another fighter's or day's week is never shown under this one's name.
-  return st.key === key ? st : { fw: null, med: null, error: '', loaded: false };
+  const st = useHubCopy(id ? `fightweek.${id}.${day}` : '', () => Promise.all([
+    hubGet(query(`/api/athletes/${encodeURIComponent(id)}/fightweek`, { day })),
+    hubGet(query(`/api/athletes/${encodeURIComponent(id)}/medical`, { day })),
+  ]).then(([fw, med]) => ({ fw, med })), [v]);
+  return { fw: null, med: null, ...st.data, error: st.error, loaded: st.loaded };
 }
 
 // StandDowns shows every stand-down in force, above everything else, with

@@ -1,28 +1,15 @@
 // Fighter charts, tests part: each test's history across camps (V_IFT,
 // sprint decrement, 1RM estimates, drop-jump RSI) and the interval sessions
 // prescribed from them, done against prescribed — as the hub computed them.
-import { html, useState, useEffect } from '../ui.js';
-import { hubGet, remember, recall } from './api.js';
+import { html } from '../ui.js';
+import { hubGet, useHubCopy } from './api.js';
 import { dayTs, cssVar, usePlot } from './charts.js';
 import { query, shortDay } from './common.js';
 import { changeWords } from './tests.js';
 
 function useTestsReport(id, day) {
-  const [st, setSt] = useState({ rep: null, error: '' });
-  useEffect(() => {
-    if (!id) return undefined;
-    let alive = true;
-    const key = `tests.${id}.${day}`;
-    const c = recall(key);
-    if (c) setSt({ rep: c.data, error: '' });
-    hubGet(query(`/api/athletes/${encodeURIComponent(id)}/tests`, { day })).then((rep) => {
-      if (!alive) return;
-      remember(key, rep);
-      setSt({ rep, error: '' });
-    }, (e) => { if (alive) setSt((o) => ({ ...o, error: e.message })); });
-    return () => { alive = false; };
-  }, [id, day]);
-  return st;
+  const st = useHubCopy(id ? `tests.${id}.${day}` : '', () => hubGet(query(`/api/athletes/${encodeURIComponent(id)}/tests`, { day })));
+  return { rep: st.data, error: st.error };
 }
 
 function Plot({ testid, title, summary, x, ys, spec }) {
