@@ -19,15 +19,16 @@ func answers(coach, staff, own, other int) map[string]int {
 	return map[string]int{"coach": coach, "staff": staff, "athleteA": own, "athleteB": other, "revoked": 401, "none": 401}
 }
 
-// TestAuthorization_FightWeekAndMedical: the fight-week, stand-down and
-// preset routes for every caller — the coach, staff, an athlete's own
-// phone, another athlete's phone, a revoked phone and a device never
-// paired. Coach and staff read every fighter; an athlete's phone reads
-// only its own fighter's fight week and stand-downs (403 for another's,
-// and 403 too for an id that names no athlete, so a phone cannot probe
-// which ids exist); the presets are the published rule sets, readable by
-// any paired device; nothing without a valid pass (401).
-func TestAuthorization_FightWeekAndMedical(t *testing.T) {
+// TestAuthorization_FighterReads: each fighter's read routes (fight week,
+// stand-downs, camp history, tests, plan report) and the presets for
+// every caller — the coach, staff, an athlete's own phone, another
+// athlete's phone, a revoked phone and a device never paired. Coach and
+// staff read every fighter; an athlete's phone reads only its own
+// fighter's (403 for another's, and 403 too for an id that names no
+// athlete, so a phone cannot probe which ids exist); a day that is not
+// one is refused (400); the presets are the published rule sets, readable
+// by any paired device; nothing without a valid pass (401).
+func TestAuthorization_FighterReads(t *testing.T) {
 	c := newCampHub(t)
 	a, b := c.athleteA.ID, c.athleteB.ID
 	const nobody = "01900000-0000-7000-8000-000000000000"
@@ -46,6 +47,19 @@ func TestAuthorization_FightWeekAndMedical(t *testing.T) {
 		{"/api/athletes/" + nobody + "/medical", answers(404, 404, 403, 403)},
 		{"/api/athletes/" + a + "/medical?day=yesterday", answers(400, 400, 400, 403)},
 		{"/api/fightweek/presets", answers(200, 200, 200, 200)},
+	}
+	// Past the door, these fighters have no bout: their plan report is
+	// "not found", their camps and tests are empty.
+	for what, ok := range map[string]int{"camps": 200, "tests": 200, "plan": 404} {
+		routes = append(routes, []struct {
+			path string
+			want map[string]int
+		}{
+			{"/api/athletes/" + a + "/" + what, answers(ok, ok, ok, 403)},
+			{"/api/athletes/" + b + "/" + what + "?day=2026-11-20", answers(ok, ok, 403, ok)},
+			{"/api/athletes/" + nobody + "/" + what, answers(404, 404, 403, 403)},
+			{"/api/athletes/" + a + "/" + what + "?day=20-11-2026", answers(400, 400, 400, 403)},
+		}...)
 	}
 	for _, rt := range routes {
 		for _, role := range callers {

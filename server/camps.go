@@ -86,19 +86,9 @@ func (s *Server) Camps(athlete, on string) (CampHistory, error) {
 }
 
 func (s *Server) handleCamps(w http.ResponseWriter, r *http.Request) error {
-	who, err := s.authorize(r, accessRead)
+	id, on, err := s.fighterRead(r, "camps")
 	if err != nil {
 		return err
-	}
-	id := mux.Vars(r)["id"]
-	if who.Role == "athlete" && id != who.Athlete {
-		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's camps")
-	}
-	on := r.URL.Query().Get("day")
-	if on != "" {
-		if _, err := day.Parse(on); err != nil {
-			return userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day written YYYY-MM-DD; got %q", on))
-		}
 	}
 	h, err := s.Camps(id, on)
 	if err != nil {
@@ -106,4 +96,27 @@ func (s *Server) handleCamps(w http.ResponseWriter, r *http.Request) error {
 	}
 	writeJSON(w, http.StatusOK, h)
 	return nil
+}
+
+// fighterRead authorizes a read of one fighter's numbers (what: "camps",
+// "fight week", …) and gives the fighter's id from the path and the day
+// asked, today when none is given. An athlete's device reads only its own
+// fighter; a day that is not a calendar day is refused by name.
+func (s *Server) fighterRead(r *http.Request, what string) (id, on string, err error) {
+	who, err := s.authorize(r, accessRead)
+	if err != nil {
+		return "", "", err
+	}
+	id = mux.Vars(r)["id"]
+	if who.Role == "athlete" && id != who.Athlete {
+		return "", "", userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's "+what)
+	}
+	on = r.URL.Query().Get("day")
+	if on == "" {
+		return id, s.flags.Today(), nil
+	}
+	if _, err := day.Parse(on); err != nil {
+		return "", "", userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day written YYYY-MM-DD; got %q", on))
+	}
+	return id, on, nil
 }

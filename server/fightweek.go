@@ -203,19 +203,9 @@ func clockWords(at string) string {
 }
 
 func (s *Server) handleFightWeek(w http.ResponseWriter, r *http.Request) error {
-	who, err := s.authorize(r, accessRead)
+	id, today, err := s.fighterRead(r, "fight week")
 	if err != nil {
 		return err
-	}
-	id := mux.Vars(r)["id"]
-	if who.Role == "athlete" && id != who.Athlete {
-		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's fight week")
-	}
-	today := r.URL.Query().Get("day")
-	if today == "" {
-		today = s.flags.Today()
-	} else if _, err := day.Parse(today); err != nil {
-		return userError(devsync.CodeBadRequest, "day", "must be a calendar day written YYYY-MM-DD")
 	}
 	v, err := s.FightWeek(id, today)
 	if err != nil {
@@ -399,19 +389,9 @@ func instantLess(a, b string) bool {
 }
 
 func (s *Server) handleMedical(w http.ResponseWriter, r *http.Request) error {
-	who, err := s.authorize(r, accessRead)
+	id, today, err := s.fighterRead(r, "stand-downs")
 	if err != nil {
 		return err
-	}
-	id := mux.Vars(r)["id"]
-	if who.Role == "athlete" && id != who.Athlete {
-		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's stand-downs")
-	}
-	today := r.URL.Query().Get("day")
-	if today == "" {
-		today = s.flags.Today()
-	} else if _, err := day.Parse(today); err != nil {
-		return userError(devsync.CodeBadRequest, "day", "must be a calendar day written YYYY-MM-DD")
 	}
 	v, err := s.Medical(id, today)
 	if err != nil {

@@ -4,9 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
-	"time"
-
-	"github.com/gorilla/mux"
 
 	"cornerbook/server/plan"
 	"cornerbook/server/records"
@@ -63,21 +60,11 @@ func (s *Server) PlanReportOf(athlete, boutID, day string) (plan.Report, error) 
 // handlePlanReport serves PlanReport; an athlete's device reads only its
 // own athlete's plan.
 func (s *Server) handlePlanReport(w http.ResponseWriter, r *http.Request) error {
-	who, err := s.authorize(r, accessRead)
+	id, day, err := s.fighterRead(r, "plan")
 	if err != nil {
 		return err
 	}
-	id := mux.Vars(r)["id"]
-	if who.Role == "athlete" && id != who.Athlete {
-		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's plan")
-	}
-	q := r.URL.Query()
-	if d := q.Get("day"); d != "" {
-		if _, err := time.Parse(time.DateOnly, d); err != nil {
-			return userError(devsync.CodeBadRequest, "day", fmt.Sprintf("must be a calendar day YYYY-MM-DD; got %q", d))
-		}
-	}
-	rep, err := s.PlanReportOf(id, q.Get("bout"), q.Get("day"))
+	rep, err := s.PlanReportOf(id, r.URL.Query().Get("bout"), day)
 	if err != nil {
 		return err
 	}

@@ -74,19 +74,9 @@ func (s *Server) Tests(athlete, day string) (TestsReport, error) {
 }
 
 func (s *Server) handleTests(w http.ResponseWriter, r *http.Request) error {
-	who, err := s.authorize(r, accessRead)
+	id, day, err := s.fighterRead(r, "tests")
 	if err != nil {
 		return err
-	}
-	id := mux.Vars(r)["id"]
-	if who.Role == "athlete" && id != who.Athlete {
-		return userError(devsync.CodeForbidden, "id", "this device may only see its own athlete's tests")
-	}
-	day := r.URL.Query().Get("day")
-	if day != "" {
-		if _, err := addDays(day, 0); err != nil {
-			return userError(devsync.CodeBadRequest, "day", "must be a calendar day YYYY-MM-DD")
-		}
 	}
 	rep, err := s.Tests(id, day)
 	if err != nil {
